@@ -1,0 +1,3 @@
+import { withRoute } from '@/lib/api/with-route';
+
+export const GET = withRoute({ action: 'project.read' }, async ({ principal }) => ({ user: principal }));

@@ -1,0 +1,8 @@
+import { NextResponse } from 'next/server';
+import { byProjectParam, withRoute } from '@/lib/api/with-route';
+import { enqueueJob } from '@/lib/jobs/queue';
+
+export const POST = withRoute({ action: 'audit.export', scope: byProjectParam }, async ({ db, principal, project }) => {
+  const job = await enqueueJob(db, { projectId: project.id, kind: 'audit-export', createdBy: principal.id });
+  return NextResponse.json({ job }, { status: 202 });
+});

@@ -1,0 +1,156 @@
+'use client';
+
+import { useRouter } from 'next/navigation';
+import { useMemo, useState } from 'react';
+import { Button, Field, Input, Notice, Select } from '@/components/ui/primitives';
+import { ACCURACY_CLASS_LABELS } from '@/lib/records/accuracy-classes';
+import { callApi } from './api-client';
+
+export interface ProjectFormValues {
+  name: string;
+  partnerOrganisation: string;
+  areaName: string;
+  defaultCrs: string;
+  extent: [number, number, number, number] | null;
+  timeZone: string;
+  unitSystem: 'metric' | 'imperial';
+  minCoverDepthM: number;
+  lateralToleranceM: number;
+  defaultAccuracyClass: keyof typeof ACCURACY_CLASS_LABELS;
+}
+
+export function ProjectForm({
+  mode,
+  projectId,
+  initial,
+  partnerLabel,
+}: {
+  mode: 'create' | 'edit';
+  projectId?: string;
+  initial: ProjectFormValues;
+  partnerLabel: string;
+}) {
+  const router = useRouter();
+  const [errors, setErrors] = useState<Record<string, string>>({});
+  const [message, setMessage] = useState<{ tone: 'bad' | 'ok'; text: string } | null>(null);
+  const [busy, setBusy] = useState(false);
+  const zones = useMemo(() => ['UTC', ...Intl.supportedValuesOf('timeZone')], []);
+
+  async function onSubmit(e: React.FormEvent<HTMLFormElement>) {
+    e.preventDefault();
+    const f = new FormData(e.currentTarget);
+    const s = (k: string) => String(f.get(k) ?? '').trim();
+    const extentParts = ['west', 'south', 'east', 'north'].map(s);
+    const local: Record<string, string> = {};
+    let extent: ProjectFormValues['extent'] = null;
+    if (extentParts.some((x) => x !== '')) {
+      const nums = extentParts.map(Number);
+      if (extentParts.some((x) => x === '') || nums.some((n) => !Number.isFinite(n))) local.extent = 'Give all four bounds as decimal degrees, or none.';
+      else extent = nums as [number, number, number, number];
+    }
+    const num = (k: string) => (s(k) === '' ? NaN : Number(s(k)));
+    if (!Number.isFinite(num('minCoverDepthM'))) local.minCoverDepthM = 'Give the minimum cover depth in metres.';
+    if (!Number.isFinite(num('lateralToleranceM'))) local.lateralToleranceM = 'Give the lateral tolerance in metres.';
+    if (Object.keys(local).length) {
+      setErrors(local);
+      setMessage({ tone: 'bad', text: 'Some fields need attention.' });
+      return;
+    }
+    const body = {
+      name: s('name'),
+      partnerOrganisation: s('partnerOrganisation'),
+      areaName: s('areaName'),
+      defaultCrs: s('defaultCrs'),
+      extent,
+      timeZone: s('timeZone'),
+      unitSystem: s('unitSystem'),
+      minCoverDepthM: num('minCoverDepthM'),
+      lateralToleranceM: num('lateralToleranceM'),
+      defaultAccuracyClass: s('defaultAccuracyClass'),
+    };
+    setBusy(true);
+    const res =
+      mode === 'create'
+        ? await callApi<{ project: { id: string } }>('/api/projects', 'POST', body)
+        : await callApi<{ project: { id: string } }>(`/api/projects/${projectId}`, 'PATCH', body);
+    setBusy(false);
+    if (!res.ok) {
+      setErrors(res.fieldErrors);
+      setMessage({ tone: 'bad', text: res.message });
+      return;
+    }
+    setErrors({});
+    if (mode === 'create') router.push(`/projects/${res.data.project.id}`);
+    else {
+      setMessage({ tone: 'ok', text: 'Settings saved.' });
+      router.refresh();
+    }
+  }
+
+  const err = (k: string) => errors[k];
+  return (
+    <form onSubmit={onSubmit} className="grid gap-5 md:grid-cols-2" noValidate>
+      {message && (
+        <div className="md:col-span-2" role="status">
+          <Notice tone={message.tone}>{message.text}</Notice>
+        </div>
+      )}
+      <Field label="Project name" htmlFor="name" error={err('name')}>
+        <Input id="name" name="name" defaultValue={initial.name} aria-invalid={!!err('name')} />
+      </Field>
+      <Field label={partnerLabel} htmlFor="partnerOrganisation" error={err('partnerOrganisation')} hint="Type the name; a new organisation is created when none has it.">
+        <Input id="partnerOrganisation" name="partnerOrganisation" defaultValue={initial.partnerOrganisation} aria-invalid={!!err('partnerOrganisation')} />
+      </Field>
+      <Field label="Area name" htmlFor="areaName" error={err('areaName')}>
+        <Input id="areaName" name="areaName" defaultValue={initial.areaName} />
+      </Field>
+      <Field label="Default coordinate system" htmlFor="defaultCrs" error={err('defaultCrs')} hint="EPSG code of the surveyors' usual grid, e.g. EPSG:25832.">
+        <Input id="defaultCrs" name="defaultCrs" defaultValue={initial.defaultCrs} aria-invalid={!!err('defaultCrs')} />
+      </Field>
+      <fieldset className="md:col-span-2">
+        <legend className="text-sm font-medium">Extent (optional, decimal degrees WGS 84; later derived from the planned network)</legend>
+        <div className="mt-1 grid grid-cols-2 gap-3 sm:grid-cols-4">
+          {(['west', 'south', 'east', 'north'] as const).map((k, i) => (
+            <Field key={k} label={k[0].toUpperCase() + k.slice(1)} htmlFor={`extent-${k}`}>
+              <Input id={`extent-${k}`} name={k} inputMode="decimal" defaultValue={initial.extent ? String(initial.extent[i]) : ''} />
+            </Field>
+          ))}
+        </div>
+        {err('extent') && <p className="mt-1 text-xs font-medium text-status-bad">{err('extent')}</p>}
+      </fieldset>
+      <Field label="Time zone" htmlFor="timeZone" error={err('timeZone')}>
+        <Select id="timeZone" name="timeZone" defaultValue={initial.timeZone}>
+          {zones.map((z) => (
+            <option key={z}>{z}</option>
+          ))}
+        </Select>
+      </Field>
+      <Field label="Units shown" htmlFor="unitSystem" error={err('unitSystem')}>
+        <Select id="unitSystem" name="unitSystem" defaultValue={initial.unitSystem}>
+          <option value="metric">Metric (m)</option>
+          <option value="imperial">Imperial (ft, in)</option>
+        </Select>
+      </Field>
+      <Field label="Minimum cover depth (m)" htmlFor="minCoverDepthM" error={err('minCoverDepthM')} hint="From the top of the duct bundle to the finished surface, as your contract or local code requires.">
+        <Input id="minCoverDepthM" name="minCoverDepthM" inputMode="decimal" defaultValue={String(initial.minCoverDepthM)} aria-invalid={!!err('minCoverDepthM')} />
+      </Field>
+      <Field label="Lateral tolerance (m)" htmlFor="lateralToleranceM" error={err('lateralToleranceM')} hint="How far the built trench may sit from the design before it counts as a deviation.">
+        <Input id="lateralToleranceM" name="lateralToleranceM" inputMode="decimal" defaultValue={String(initial.lateralToleranceM)} aria-invalid={!!err('lateralToleranceM')} />
+      </Field>
+      <Field label="Default accuracy of uploads" htmlFor="defaultAccuracyClass" error={err('defaultAccuracyClass')}>
+        <Select id="defaultAccuracyClass" name="defaultAccuracyClass" defaultValue={initial.defaultAccuracyClass}>
+          {Object.entries(ACCURACY_CLASS_LABELS).map(([v, l]) => (
+            <option key={v} value={v}>
+              {l}
+            </option>
+          ))}
+        </Select>
+      </Field>
+      <div className="md:col-span-2">
+        <Button type="submit" disabled={busy}>
+          {mode === 'create' ? 'Create project' : 'Save settings'}
+        </Button>
+      </div>
+    </form>
+  );
+}

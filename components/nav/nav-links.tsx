@@ -1,0 +1,29 @@
+'use client';
+
+import Link from 'next/link';
+import { usePathname } from 'next/navigation';
+import type { NavItem } from '@/lib/auth/navigation';
+
+export function NavLinks({ items }: { items: NavItem[] }) {
+  const path = usePathname();
+  return (
+    <nav aria-label="Main">
+      <ul className="flex flex-wrap gap-1 text-sm">
+        {items.map((i) => {
+          const active = path === i.href || path.startsWith(`${i.href}/`);
+          return (
+            <li key={i.href}>
+              <Link
+                href={i.href}
+                aria-current={active ? 'page' : undefined}
+                className={`rounded-md px-3 py-1.5 no-underline hover:no-underline ${active ? 'bg-brand-light font-semibold text-brand-dark' : 'text-ink-soft hover:bg-paper-sunk'}`}
+              >
+                {i.label}
+              </Link>
+            </li>
+          );
+        })}
+      </ul>
+    </nav>
+  );
+}

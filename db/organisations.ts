@@ -1,0 +1,26 @@
+import type { Db } from './client';
+import type { OrganisationRow } from './tables';
+import type { OrgKind } from '@/lib/auth/roles';
+
+export interface Organisation {
+  id: string;
+  name: string;
+  kind: OrgKind;
+}
+
+const toDto = (r: OrganisationRow): Organisation => ({ id: r.id, name: r.name, kind: r.kind });
+
+export async function getOrganisation(db: Db, id: string): Promise<Organisation | undefined> {
+  const row = await db<OrganisationRow>('organisations').where({ id }).first();
+  return row && toDto(row);
+}
+
+export async function findOrganisationByName(db: Db, name: string): Promise<Organisation | undefined> {
+  const row = await db<OrganisationRow>('organisations').whereRaw('lower(name) = lower(?)', [name.trim()]).first();
+  return row && toDto(row);
+}
+
+export async function insertOrganisation(db: Db, name: string, kind: OrgKind): Promise<Organisation> {
+  const [row] = await db<OrganisationRow>('organisations').insert({ name: name.trim(), kind }).returning('*');
+  return toDto(row);
+}

@@ -1,0 +1,124 @@
+import type { Db } from './client';
+import type { AccuracyClass, ProjectRow } from './tables';
+
+export interface Project {
+  id: string;
+  name: string;
+  ownerOrgId: string;
+  ownerOrgName: string;
+  contractorOrgId: string;
+  contractorOrgName: string;
+  areaName: string;
+  defaultCrs: string;
+  /** [west, south, east, north] in degrees (RFC 7946 bbox order), or null */
+  extent: [number, number, number, number] | null;
+  timeZone: string;
+  unitSystem: 'metric' | 'imperial';
+  minCoverDepthM: number;
+  lateralToleranceM: number;
+  defaultAccuracyClass: AccuracyClass;
+  createdAt: string;
+  updatedAt: string;
+}
+
+export interface ProjectValues {
+  name: string;
+  ownerOrgId: string;
+  contractorOrgId: string;
+  areaName: string;
+  defaultSrid: number;
+  extent: [number, number, number, number] | null;
+  timeZone: string;
+  unitSystem: 'metric' | 'imperial';
+  minCoverDepthM: number;
+  lateralToleranceM: number;
+  defaultAccuracyClass: AccuracyClass;
+}
+
+type JoinedRow = ProjectRow & {
+  owner_org_name: string;
+  contractor_org_name: string;
+  xmin: number | null;
+  ymin: number | null;
+  xmax: number | null;
+  ymax: number | null;
+};
+
+const toDto = (r: JoinedRow): Project => ({
+  id: r.id,
+  name: r.name,
+  ownerOrgId: r.owner_org_id,
+  ownerOrgName: r.owner_org_name,
+  contractorOrgId: r.contractor_org_id,
+  contractorOrgName: r.contractor_org_name,
+  areaName: r.area_name,
+  defaultCrs: `EPSG:${r.default_srid}`,
+  extent: r.xmin === null ? null : [r.xmin, r.ymin!, r.xmax!, r.ymax!],
+  timeZone: r.time_zone,
+  unitSystem: r.unit_system,
+  minCoverDepthM: r.min_cover_depth_m,
+  lateralToleranceM: r.lateral_tolerance_m,
+  defaultAccuracyClass: r.default_accuracy_class,
+  createdAt: r.created_at.toISOString(),
+  updatedAt: r.updated_at.toISOString(),
+});
+
+function baseQuery(db: Db) {
+  return db('projects as p')
+    .join('organisations as o', 'o.id', 'p.owner_org_id')
+    .join('organisations as c', 'c.id', 'p.contractor_org_id')
+    .select(
+      'p.*',
+      'o.name as owner_org_name',
+      'c.name as contractor_org_name',
+      db.raw('ST_XMin(p.extent) as xmin, ST_YMin(p.extent) as ymin, ST_XMax(p.extent) as xmax, ST_YMax(p.extent) as ymax'),
+    );
+}
+
+export async function getProject(db: Db, id: string): Promise<Project | undefined> {
+  const row = await baseQuery(db).where('p.id', id).first();
+  return row && toDto(row as JoinedRow);
+}
+
+/** Projects whose owner or contractor organisation is the given one, newest first. */
+export async function listProjectsForOrganisation(db: Db, organisationId: string): Promise<Project[]> {
+  const rows = await baseQuery(db)
+    .where((q) => q.where('p.owner_org_id', organisationId).orWhere('p.contractor_org_id', organisationId))
+    .orderBy('p.created_at', 'desc');
+  return (rows as JoinedRow[]).map(toDto);
+}
+
+function toColumns(db: Db, v: Partial<ProjectValues>): Record<string, unknown> {
+  const c: Record<string, unknown> = {};
+  if (v.name !== undefined) c.name = v.name.trim();
+  if (v.ownerOrgId !== undefined) c.owner_org_id = v.ownerOrgId;
+  if (v.contractorOrgId !== undefined) c.contractor_org_id = v.contractorOrgId;
+  if (v.areaName !== undefined) c.area_name = v.areaName.trim();
+  if (v.defaultSrid !== undefined) c.default_srid = v.defaultSrid;
+  if (v.extent !== undefined)
+    c.extent = v.extent === null ? null : db.raw('ST_MakeEnvelope(?, ?, ?, ?, 4326)', v.extent);
+  if (v.timeZone !== undefined) c.time_zone = v.timeZone;
+  if (v.unitSystem !== undefined) c.unit_system = v.unitSystem;
+  if (v.minCoverDepthM !== undefined) c.min_cover_depth_m = v.minCoverDepthM;
+  if (v.lateralToleranceM !== undefined) c.lateral_tolerance_m = v.lateralToleranceM;
+  if (v.defaultAccuracyClass !== undefined) c.default_accuracy_class = v.defaultAccuracyClass;
+  return c;
+}
+
+export async function insertProject(db: Db, v: ProjectValues): Promise<Project> {
+  const [{ id }] = await db('projects').insert(toColumns(db, v)).returning('id');
+  return (await getProject(db, id))!;
+}
+
+export async function updateProject(db: Db, id: string, v: Partial<ProjectValues>): Promise<Project> {
+  await db('projects')
+    .where({ id })
+    .update({ ...toColumns(db, v), updated_at: db.fn.now() });
+  return (await getProject(db, id))!;
+}
+
+/** Whether the EPSG code exists in PostGIS's spatial_ref_sys catalogue. */
+export async function sridExists(db: Db, srid: number): Promise<boolean> {
+  const row = await db('spatial_ref_sys').where({ srid, auth_name: 'EPSG' }).first('srid');
+  return row !== undefined;
+}

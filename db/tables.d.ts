@@ -1,0 +1,101 @@
+// Row shapes of the tables, as PostgreSQL returns them (snake_case). DTOs are made at each module's boundary.
+import type { Role, OrgKind } from '@/lib/auth/roles';
+
+export interface OrganisationRow {
+  id: string;
+  name: string;
+  kind: OrgKind;
+  created_at: Date;
+}
+
+export interface UserRow {
+  id: string;
+  organisation_id: string;
+  email: string;
+  name: string;
+  role: Role;
+  password_hash: string | null;
+  active: boolean;
+  created_at: Date;
+  updated_at: Date;
+}
+
+export interface UserLinkRow {
+  id: string;
+  user_id: string;
+  purpose: 'invitation' | 'reset';
+  token_hash: string;
+  expires_at: Date;
+  used_at: Date | null;
+  created_by: string | null;
+  created_at: Date;
+}
+
+export interface ApiTokenRow {
+  id: string;
+  user_id: string;
+  name: string;
+  prefix: string;
+  token_hash: string;
+  created_at: Date;
+  last_used_at: Date | null;
+  revoked_at: Date | null;
+}
+
+export interface SignInAttemptRow {
+  id: number;
+  email: string;
+  ip: string;
+  succeeded: boolean;
+  at: Date;
+}
+
+export type AccuracyClass = 'handheld_gnss' | 'rtk_gnss' | 'total_station' | 'digitised' | 'unknown';
+
+export interface ProjectRow {
+  id: string;
+  name: string;
+  owner_org_id: string;
+  contractor_org_id: string;
+  area_name: string;
+  default_srid: number;
+  extent: unknown;
+  time_zone: string;
+  unit_system: 'metric' | 'imperial';
+  min_cover_depth_m: number;
+  lateral_tolerance_m: number;
+  default_accuracy_class: AccuracyClass;
+  created_at: Date;
+  updated_at: Date;
+}
+
+export interface AuditRow {
+  id: number;
+  at: Date;
+  actor_user_id: string | null;
+  actor_label: string;
+  organisation_id: string | null;
+  project_id: string | null;
+  object_type: string;
+  object_id: string;
+  action: string;
+  before: unknown;
+  after: unknown;
+}
+
+export type JobStatus = 'queued' | 'running' | 'completed' | 'failed';
+
+export interface JobRow {
+  id: string;
+  project_id: string;
+  kind: string;
+  status: JobStatus;
+  progress: number;
+  message: string;
+  input: Record<string, unknown>;
+  result: Record<string, unknown> | null;
+  created_by: string | null;
+  created_at: Date;
+  started_at: Date | null;
+  finished_at: Date | null;
+}

@@ -1,0 +1,28 @@
+import type { Db } from '@/db/client';
+import { getJob } from '@/db/jobs';
+import { getUserRow } from '@/db/users';
+import { getApiToken } from '@/db/api-tokens';
+import { isUuid, type Scope } from './with-route';
+
+/** A job belongs to its project. */
+export async function byJobParam(params: Record<string, string>, db: Db): Promise<Scope | undefined> {
+  if (!isUuid(params.jobId)) return undefined;
+  const job = await getJob(db, params.jobId);
+  return job && { projectId: job.projectId };
+}
+
+/** A user belongs to their organisation. */
+export async function byUserParam(params: Record<string, string>, db: Db): Promise<Scope | undefined> {
+  if (!isUuid(params.userId)) return undefined;
+  const user = await getUserRow(db, params.userId);
+  return user && { organisationId: user.organisation_id };
+}
+
+/** A token belongs to its user's organisation (the service then insists on its own user). */
+export async function byTokenParam(params: Record<string, string>, db: Db): Promise<Scope | undefined> {
+  if (!isUuid(params.tokenId)) return undefined;
+  const token = await getApiToken(db, params.tokenId);
+  if (!token) return undefined;
+  const user = await getUserRow(db, token.userId);
+  return user && { organisationId: user.organisation_id };
+}

@@ -1,0 +1,16 @@
+import type { Role } from './roles';
+
+export interface NavItem {
+  href: string;
+  label: string;
+}
+
+/** What each role finds in the top navigation. Later capabilities add their entries here. */
+export function navigationFor(role: Role): NavItem[] {
+  const items: NavItem[] = [{ href: '/projects', label: 'Projects' }];
+  if (role === 'admin') {
+    items.push({ href: '/admin/users', label: 'People' }, { href: '/admin/activity', label: 'Activity' });
+  }
+  items.push({ href: '/account', label: 'Account' });
+  return items;
+}

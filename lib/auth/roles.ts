@@ -1,0 +1,46 @@
+/**
+ * Roles and what each may do. Rights come from the role; visibility comes from the organisation
+ * (see `canSeeProject`). `can('engineer', 'project.read') === true`.
+ */
+export const ROLES = ['admin', 'engineer', 'surveyor', 'owner', 'maintenance'] as const;
+export type Role = (typeof ROLES)[number];
+
+export const ROLE_LABELS: Record<Role, string> = {
+  admin: 'Administrator',
+  engineer: 'Engineer',
+  surveyor: 'Surveyor',
+  owner: 'Network owner',
+  maintenance: 'Maintenance',
+};
+
+export const ORG_KINDS = ['owner', 'contractor'] as const;
+export type OrgKind = (typeof ORG_KINDS)[number];
+
+const ALL: readonly Role[] = ROLES;
+
+/** Each action and the roles allowed to do it. */
+export const PERMISSIONS = {
+  'project.read': ALL,
+  'project.manage': ['admin'],
+  'user.manage': ['admin'],
+  'audit.read': ['admin'],
+  'audit.export': ['admin'],
+  'job.read': ALL,
+  'token.manage': ALL,
+} as const satisfies Record<string, readonly Role[]>;
+
+export type Action = keyof typeof PERMISSIONS;
+
+export function can(role: Role, action: Action): boolean {
+  return (PERMISSIONS[action] as readonly Role[]).includes(role);
+}
+
+export interface ProjectOrgs {
+  ownerOrgId: string;
+  contractorOrgId: string;
+}
+
+/** A user sees a project when their organisation is its owner or its contractor. */
+export function canSeeProject(organisationId: string, project: ProjectOrgs): boolean {
+  return project.ownerOrgId === organisationId || project.contractorOrgId === organisationId;
+}
