@@ -1,6 +1,6 @@
 /** @type {import('next').NextConfig} */
 const nextConfig = {
-  serverExternalPackages: ['knex', 'pg', 'pg-boss'],
+  serverExternalPackages: ['knex', 'pg', 'pg-boss', 'pg-query-stream'],
   allowedDevOrigins: ['127.0.0.1'],
   poweredByHeader: false,
 };

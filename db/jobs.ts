@@ -56,3 +56,10 @@ export async function updateJob(
   if (patch.status === 'completed' || patch.status === 'failed') values.finished_at = db.fn.now();
   await db('jobs').where({ id }).update(values);
 }
+
+/** The job as the API shows it: `{id, kind, status, progress, message}` plus where to fetch its result. */
+export function publicJob(job: Job) {
+  const { id, kind, status, progress, message, projectId, createdAt, finishedAt, result } = job;
+  const resultUrl = status === 'completed' && typeof result?.storageKey === 'string' ? `/api/jobs/${id}/result` : null;
+  return { id, kind, status, progress, message, projectId, createdAt, finishedAt, resultUrl };
+}

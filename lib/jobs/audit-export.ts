@@ -1,7 +1,6 @@
 import { stringify } from 'csv-stringify';
-import { PassThrough } from 'node:stream';
+import { PassThrough, Transform } from 'node:stream';
 import { pipeline } from 'node:stream/promises';
-import { Transform } from 'node:stream';
 import type { AuditRow } from '@/db/tables';
 import { streamAuditForProject } from '@/db/audit';
 import { exportsStore } from '@/lib/storage/exports-store';
@@ -32,14 +31,15 @@ export const exportAuditLog: JobHandler = async ({ db, jobId, projectId, progres
   });
   const out = new PassThrough();
   const key = `audit/${projectId}/${jobId}.csv`;
-  const stored = exportsStore().put(key, out);
-  await pipeline(
-    streamAuditForProject(db, projectId),
-    toRecord,
-    stringify({ header: true, columns: ['id', 'at', 'actor', 'object_type', 'object_id', 'action', 'before', 'after'] }),
-    out,
-  );
-  const { size } = await stored;
+  const [{ size }] = await Promise.all([
+    exportsStore().put(key, out),
+    pipeline(
+      streamAuditForProject(db, projectId),
+      toRecord,
+      stringify({ header: true, columns: ['id', 'at', 'actor', 'object_type', 'object_id', 'action', 'before', 'after'] }),
+      out,
+    ),
+  ]);
   return {
     message: `Exported ${rows} audit entries`,
     result: { storageKey: key, rows, bytes: size, fileName: `audit-${projectId}.csv`, contentType: 'text/csv' },
