@@ -54,7 +54,7 @@ export function PeopleManager({ users, selfId }: { users: User[]; selfId: string
     setBusy(false);
     if (!res.ok) {
       setErrors(res.fieldErrors);
-      setMessage(res.message);
+      setMessage(Object.keys(res.fieldErrors).length ? 'Some fields need attention.' : res.message);
       return;
     }
     setErrors({});

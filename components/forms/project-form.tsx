@@ -76,7 +76,7 @@ export function ProjectForm({
     setBusy(false);
     if (!res.ok) {
       setErrors(res.fieldErrors);
-      setMessage({ tone: 'bad', text: res.message });
+      setMessage({ tone: 'bad', text: Object.keys(res.fieldErrors).length ? 'Some fields need attention.' : res.message });
       return;
     }
     setErrors({});

@@ -10,7 +10,7 @@ const credentialsSchema = z.object({ email: z.string().trim().min(1).max(320), p
 
 // authorize() throws 'TooManyAttempts' or returns null ('CredentialsSignin'); the sign-in form words both.
 export const authOptions: NextAuthOptions = {
-  secret: env().NEXTAUTH_SECRET,
+  // next-auth reads NEXTAUTH_SECRET itself; lib/env.ts checks it at boot (instrumentation.ts)
   session: { strategy: 'jwt', maxAge: 12 * 60 * 60 },
   pages: { signIn: '/sign-in' },
   providers: [

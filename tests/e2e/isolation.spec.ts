@@ -1,0 +1,259 @@
+import { readdirSync, readFileSync, statSync } from 'node:fs';
+import path from 'node:path';
+import { expect, test, type APIRequestContext } from '@playwright/test';
+import { addUserWithToken, DEMO, json } from '../helpers/e2e';
+
+/**
+ * The isolation matrix: every method of every app/api/**\/route.ts has a row. Each row asserts 401 without
+ * credentials, 404 for another organisation's object, 403 for a role without the right, and success for the
+ * right role. Where a check cannot apply, the row says why instead.
+ */
+
+type Who = 'admin' | 'owner' | 'maintenance' | 'contractorAdmin' | 'engineer' | 'surveyor';
+interface Ctx {
+  tokens: Record<Who, string>;
+  foreignToken: string;
+  projectId: string;
+  foreignProjectId: string;
+  jobId: string;
+  foreignJobId: string;
+  foreignUserId: string;
+  spareUserId: string;
+  foreignTokenId: string;
+  spareTokenId: (req: APIRequestContext) => Promise<string>;
+}
+
+interface Row {
+  /** URL for the caller's own object */
+  url: (c: Ctx) => string;
+  /** URL of the same kind of object in another organisation, or why not applicable */
+  foreign: ((c: Ctx) => string) | { na: string };
+  /** a role without the right, or why not applicable */
+  denied: Who | { na: string };
+  allowed: Who;
+  body?: (c: Ctx) => unknown;
+  success: number;
+}
+
+type PublicRow = { public: string; check: (req: APIRequestContext) => Promise<void> };
+
+const NO_OBJECT = { na: 'the route has no object of another organisation to ask for: it lists or creates within the caller’s own' };
+const ALL_ROLES = { na: 'every role has this right' };
+
+const MATRIX: Record<string, Row | PublicRow> = {
+  'GET /api/health': {
+    public: 'health check for operators',
+    check: async (req) => {
+      const r = await json(req, 'GET', '/api/health', null);
+      expect(r).toEqual({ status: 200, body: { ok: true, db: 'up' } });
+    },
+  },
+  'POST /api/welcome': {
+    public: 'the one-time link is the credential',
+    check: async (req) => {
+      const r = await json<{ error: { code: string } }>(req, 'POST', '/api/welcome', null, { token: 'tbl_nope', password: 'long-enough-password' });
+      expect(r.status).toBe(404);
+      expect(r.body!.error.code).toBe('not_found');
+    },
+  },
+  'GET /api/auth/[...nextauth]': {
+    public: 'next-auth sign-in endpoints',
+    check: async (req) => expect((await req.get('/api/auth/providers')).status()).toBe(200),
+  },
+  'POST /api/auth/[...nextauth]': {
+    public: 'next-auth sign-in endpoints',
+    check: async (req) => {
+      // without next-auth's CSRF token a credentials post does not sign anyone in
+      const res = await req.post('/api/auth/callback/credentials', { form: { email: DEMO.admin, password: 'quillhaven-demo-2026' }, maxRedirects: 0 });
+      expect(res.headers()['set-cookie'] ?? '').not.toContain('next-auth.session-token');
+    },
+  },
+  'GET /api/me': { url: () => '/api/me', foreign: NO_OBJECT, denied: ALL_ROLES, allowed: 'maintenance', success: 200 },
+  'GET /api/projects': { url: () => '/api/projects', foreign: NO_OBJECT, denied: ALL_ROLES, allowed: 'surveyor', success: 200 },
+  'POST /api/projects': {
+    url: () => '/api/projects',
+    foreign: NO_OBJECT,
+    denied: 'engineer',
+    allowed: 'admin',
+    body: () => ({ name: `Matrix project ${Date.now()}`, partnerOrganisation: 'Tarnwick Slot & Duct Ltd' }),
+    success: 201,
+  },
+  'GET /api/projects/[projectId]': {
+    url: (c) => `/api/projects/${c.projectId}`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}`,
+    denied: ALL_ROLES,
+    allowed: 'engineer',
+    success: 200,
+  },
+  'PATCH /api/projects/[projectId]': {
+    url: (c) => `/api/projects/${c.projectId}`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}`,
+    denied: 'engineer',
+    allowed: 'admin',
+    body: () => ({ areaName: 'Quillhaven North' }),
+    success: 200,
+  },
+  'GET /api/projects/[projectId]/audit': {
+    url: (c) => `/api/projects/${c.projectId}/audit`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/audit`,
+    denied: 'owner',
+    allowed: 'contractorAdmin',
+    success: 200,
+  },
+  'POST /api/projects/[projectId]/audit/exports': {
+    url: (c) => `/api/projects/${c.projectId}/audit/exports`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/audit/exports`,
+    denied: 'surveyor',
+    allowed: 'admin',
+    success: 202,
+  },
+  'GET /api/jobs/[jobId]': {
+    url: (c) => `/api/jobs/${c.jobId}`,
+    foreign: (c) => `/api/jobs/${c.foreignJobId}`,
+    denied: ALL_ROLES,
+    allowed: 'maintenance',
+    success: 200,
+  },
+  'GET /api/jobs/[jobId]/result': {
+    url: (c) => `/api/jobs/${c.jobId}/result`,
+    foreign: (c) => `/api/jobs/${c.foreignJobId}/result`,
+    denied: 'surveyor',
+    allowed: 'admin',
+    success: 200,
+  },
+  'GET /api/users': { url: () => '/api/users', foreign: NO_OBJECT, denied: 'engineer', allowed: 'admin', success: 200 },
+  'POST /api/users': {
+    url: () => '/api/users',
+    foreign: NO_OBJECT,
+    denied: 'owner',
+    allowed: 'admin',
+    body: () => ({ email: `matrix-${Date.now()}@test.example`, name: 'Matrix Person', role: 'owner', onboarding: 'invitation' }),
+    success: 201,
+  },
+  'PATCH /api/users/[userId]': {
+    // the engineer asks about a colleague of their own organisation, so only the role stands in the way
+    url: (c) => `/api/users/${c.spareUserId}`,
+    foreign: (c) => `/api/users/${c.foreignUserId}`,
+    denied: 'maintenance',
+    allowed: 'admin',
+    body: () => ({ name: 'Spare Person (renamed)' }),
+    success: 200,
+  },
+  'GET /api/tokens': { url: () => '/api/tokens', foreign: NO_OBJECT, denied: ALL_ROLES, allowed: 'owner', success: 200 },
+  'POST /api/tokens': { url: () => '/api/tokens', foreign: NO_OBJECT, denied: ALL_ROLES, allowed: 'surveyor', body: () => ({ name: 'matrix' }), success: 201 },
+  'DELETE /api/tokens/[tokenId]': {
+    url: () => '/api/tokens/SPARE',
+    foreign: (c) => `/api/tokens/${c.foreignTokenId}`,
+    denied: ALL_ROLES,
+    allowed: 'engineer',
+    success: 200,
+  },
+  'GET /api/audit': { url: () => '/api/audit', foreign: NO_OBJECT, denied: 'maintenance', allowed: 'admin', success: 200 },
+};
+
+function listRoutes(): string[] {
+  const root = path.resolve(__dirname, '../../app/api');
+  const out: string[] = [];
+  const walk = (dir: string) => {
+    for (const name of readdirSync(dir)) {
+      const full = path.join(dir, name);
+      if (statSync(full).isDirectory()) walk(full);
+      else if (name === 'route.ts') {
+        const src = readFileSync(full, 'utf8');
+        const route = '/api/' + path.relative(root, dir).split(path.sep).join('/');
+        const methods = new Set<string>();
+        for (const m of src.matchAll(/export\s+(?:const|async function)\s+(GET|POST|PUT|PATCH|DELETE)\b/g)) methods.add(m[1]);
+        for (const m of src.matchAll(/handler as (GET|POST|PUT|PATCH|DELETE)/g)) methods.add(m[1]);
+        for (const m of methods) out.push(`${m} ${route}`);
+      }
+    }
+  };
+  walk(root);
+  return out.sort();
+}
+
+let ctx: Ctx;
+
+test.beforeAll(async ({ request }) => {
+  const tokens = {} as Record<Who, string>;
+  const demo: Record<Who, { email: string; role: string; org: string; orgKind: 'owner' | 'contractor' }> = {
+    admin: { email: DEMO.admin, role: 'admin', org: 'Quillhaven Open Fibre', orgKind: 'owner' },
+    owner: { email: DEMO.owner, role: 'owner', org: 'Quillhaven Open Fibre', orgKind: 'owner' },
+    maintenance: { email: DEMO.maintenance, role: 'maintenance', org: 'Quillhaven Open Fibre', orgKind: 'owner' },
+    contractorAdmin: { email: DEMO.contractorAdmin, role: 'admin', org: 'Tarnwick Slot & Duct Ltd', orgKind: 'contractor' },
+    engineer: { email: DEMO.engineer, role: 'engineer', org: 'Tarnwick Slot & Duct Ltd', orgKind: 'contractor' },
+    surveyor: { email: DEMO.surveyor, role: 'surveyor', org: 'Tarnwick Slot & Duct Ltd', orgKind: 'contractor' },
+  };
+  const names: Record<Who, string> = {
+    admin: 'Maren Oakfield', owner: 'Tobiah Wrenlow', maintenance: 'Edda Corrigal',
+    contractorAdmin: 'Ilse Marrowby', engineer: 'Osric Fennimore', surveyor: 'Pia Halloway',
+  };
+  for (const w of Object.keys(demo) as Who[]) tokens[w] = addUserWithToken({ ...demo[w], name: names[w] });
+  const foreignToken = addUserWithToken({ email: 'admin@mossgate-coop.example', name: 'Foreign Admin', role: 'admin', org: 'Mossgate Fibre Cooperative', orgKind: 'owner' });
+
+  const projects = await json<{ projects: { id: string; name: string }[] }>(request, 'GET', '/api/projects', tokens.admin);
+  const projectId = projects.body!.projects.find((p) => p.name === 'Quillhaven North, phase 1')!.id;
+  const fp = await json<{ project: { id: string } }>(request, 'POST', '/api/projects', foreignToken, { name: `Mossgate ${Date.now()}`, partnerOrganisation: 'Larkspur Ground Works' });
+  expect(fp.status).toBe(201);
+  const job = await json<{ job: { id: string } }>(request, 'POST', `/api/projects/${projectId}/audit/exports`, tokens.admin);
+  const fjob = await json<{ job: { id: string } }>(request, 'POST', `/api/projects/${fp.body!.project.id}/audit/exports`, foreignToken);
+  const fme = await json<{ user: { id: string } }>(request, 'GET', '/api/me', foreignToken);
+  const spare = await json<{ user: { id: string } }>(request, 'POST', '/api/users', tokens.admin, { email: `spare-${Date.now()}@test.example`, name: 'Spare Person', role: 'owner' });
+  const ftok = await json<{ token: { id: string } }>(request, 'POST', '/api/tokens', foreignToken, { name: 'foreign' });
+  ctx = {
+    tokens,
+    foreignToken,
+    projectId,
+    foreignProjectId: fp.body!.project.id,
+    jobId: job.body!.job.id,
+    foreignJobId: fjob.body!.job.id,
+    foreignUserId: fme.body!.user.id,
+    spareUserId: spare.body!.user.id,
+    foreignTokenId: ftok.body!.token.id,
+    spareTokenId: async (req) => (await json<{ token: { id: string } }>(req, 'POST', '/api/tokens', tokens.engineer, { name: 'spare' })).body!.token.id,
+  };
+  // the result route needs a finished job
+  await expect
+    .poll(async () => (await json<{ job: { status: string } }>(request, 'GET', `/api/jobs/${ctx.jobId}`, tokens.admin)).body!.job.status, { timeout: 20_000 })
+    .toBe('completed');
+});
+
+test('every API route and method has a row in the matrix', () => {
+  expect(listRoutes()).toEqual(Object.keys(MATRIX).sort());
+});
+
+for (const [key, row] of Object.entries(MATRIX)) {
+  test(`isolation: ${key}`, async ({ request }) => {
+    if ('public' in row) {
+      await row.check(request);
+      return;
+    }
+    const method = key.split(' ')[0];
+    let url = row.url(ctx);
+    if (url.endsWith('/SPARE')) url = url.replace('SPARE', await ctx.spareTokenId(request));
+    const body = row.body?.(ctx);
+
+    const anon = await json<{ error: { code: string } }>(request, method, url, null, body);
+    expect(anon.status, 'without credentials').toBe(401);
+    expect(anon.body!.error.code).toBe('unauthenticated');
+
+    if (typeof row.foreign === 'function') {
+      const r = await json<{ error: { code: string } }>(request, method, row.foreign(ctx), ctx.tokens[row.allowed], body);
+      expect(r.status, 'another organisation’s object').toBe(404);
+      expect(r.body!.error.code).toBe('not_found');
+    } else {
+      expect(row.foreign.na.length).toBeGreaterThan(10);
+    }
+
+    if (typeof row.denied === 'string') {
+      const r = await json<{ error: { code: string } }>(request, method, url, ctx.tokens[row.denied], body);
+      expect(r.status, `role ${row.denied}`).toBe(403);
+      expect(r.body!.error.code).toBe('forbidden');
+    } else {
+      expect(row.denied.na.length).toBeGreaterThan(10);
+    }
+
+    const ok = await json(request, method, url, ctx.tokens[row.allowed], body);
+    expect(ok.status, `role ${row.allowed}`).toBe(row.success);
+  });
+}
