@@ -1,28 +1,23 @@
 #!/usr/bin/env bash
 # npm test: self-sufficient, because CI runs only this.
-# Installs what is missing, starts the database, builds the app, runs vitest on a fresh test database,
-# then Playwright on its own server (port 3100) and its own fresh database.
+# Installs what is missing (npm packages; postgresql-15-postgis-3, chromium, gdal-bin, python3-openpyxl),
+# starts the database, type-checks, runs vitest on a fresh test database, builds the app, then runs
+# Playwright against its own server (port 3100) on its own fresh database (scripts/e2e-server.sh).
 set -euo pipefail
 here="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
 cd "$here"
+export PLAYWRIGHT_SKIP_BROWSER_DOWNLOAD=1
 bash scripts/setup.sh test
 bash scripts/db.sh start
-export NEXTAUTH_SECRET="${NEXTAUTH_SECRET:-$(cat .data/nextauth-secret)}"
-export PLAYWRIGHT_SKIP_BROWSER_DOWNLOAD=1
 
 echo "== typecheck"
 npx tsc --noEmit
 
-echo "== unit and integration tests (vitest, database trenchbook_test)"
-bash scripts/db.sh recreatedb trenchbook_test
-DATABASE_URL="$(bash scripts/db.sh url trenchbook_test)" npx vitest run
+echo "== unit and integration tests (vitest, fresh database trenchbook_test)"
+npx vitest run
 
 echo "== build"
 npx next build
 
-echo "== end-to-end tests (playwright, database trenchbook_e2e, port 3100)"
-bash scripts/db.sh recreatedb trenchbook_e2e
-export DATABASE_URL="$(bash scripts/db.sh url trenchbook_e2e)"
-npm run --silent db:migrate
-npm run --silent db:seed
+echo "== end-to-end tests (playwright + chromium, fresh database trenchbook_e2e, port 3100)"
 npx playwright test
