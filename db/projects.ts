@@ -17,6 +17,8 @@ export interface Project {
   minCoverDepthM: number;
   lateralToleranceM: number;
   defaultAccuracyClass: AccuracyClass;
+  /** σ per axis (m) overriding the defaults of some accuracy classes for this project */
+  accuracySigmas: Partial<Record<AccuracyClass, number>>;
   createdAt: string;
   updatedAt: string;
 }
@@ -59,6 +61,7 @@ const toDto = (r: JoinedRow): Project => ({
   minCoverDepthM: r.min_cover_depth_m,
   lateralToleranceM: r.lateral_tolerance_m,
   defaultAccuracyClass: r.default_accuracy_class,
+  accuracySigmas: r.accuracy_sigmas ?? {},
   createdAt: r.created_at.toISOString(),
   updatedAt: r.updated_at.toISOString(),
 });

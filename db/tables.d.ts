@@ -65,6 +65,7 @@ export interface ProjectRow {
   min_cover_depth_m: number;
   lateral_tolerance_m: number;
   default_accuracy_class: AccuracyClass;
+  accuracy_sigmas: Partial<Record<AccuracyClass, number>>;
   created_at: Date;
   updated_at: Date;
 }

@@ -18,6 +18,13 @@ const schema = z.object({
   /** Run pg-boss workers inside the web server (instrumentation hook). */
   JOBS_IN_PROCESS: z.enum(['true', 'false']).default('true'),
   EXPORTS_DIR: z.string().default('exports'),
+  /** where original uploaded files are kept, byte for byte */
+  STORAGE_DIR: z.string().default('storage'),
+  /** largest accepted upload request, refused while streaming (bytes; default 200 MB) */
+  UPLOAD_MAX_BYTES: intFrom(200 * 1024 * 1024),
+  /** KMZ and zipped shapefiles: bytes allowed out of one zip, counted while inflating, and entries */
+  ZIP_MAX_INFLATED_BYTES: intFrom(1024 * 1024 * 1024),
+  ZIP_MAX_ENTRIES: intFrom(2000),
 });
 
 export type Env = z.infer<typeof schema>;

@@ -4,12 +4,13 @@ import Link from 'next/link';
 import { usePathname } from 'next/navigation';
 import type { NavItem } from '@/lib/auth/navigation';
 
-export function NavLinks({ items }: { items: NavItem[] }) {
+export function NavLinks({ items, label = 'Main' }: { items: NavItem[]; label?: string }) {
   const path = usePathname();
   return (
-    <nav aria-label="Main">
+    <nav aria-label={label}>
       <ul className="flex flex-wrap gap-1 text-sm">
         {items.map((i) => {
+          // '/projects' stays lit inside a project; project tabs light only their own subtree
           const active = path === i.href || path.startsWith(`${i.href}/`);
           return (
             <li key={i.href}>

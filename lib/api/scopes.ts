@@ -2,6 +2,7 @@ import type { Db } from '@/db/client';
 import { getJob } from '@/db/jobs';
 import { getUserRow } from '@/db/users';
 import { getApiToken } from '@/db/api-tokens';
+import { getUpload } from '@/db/uploads';
 import { isUuid, type Scope } from './with-route';
 
 /** A job belongs to its project. */
@@ -25,4 +26,11 @@ export async function byTokenParam(params: Record<string, string>, db: Db): Prom
   if (!token) return undefined;
   const user = await getUserRow(db, token.userId);
   return user && { organisationId: user.organisation_id };
+}
+
+/** An upload belongs to its project; the route's projectId must match it. */
+export async function byUploadParam(params: Record<string, string>, db: Db): Promise<Scope | undefined> {
+  if (!isUuid(params.uploadId) || !isUuid(params.projectId)) return undefined;
+  const upload = await getUpload(db, params.uploadId);
+  return upload && upload.projectId === params.projectId ? { projectId: upload.projectId } : undefined;
 }

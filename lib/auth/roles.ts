@@ -27,6 +27,10 @@ export const PERMISSIONS = {
   'audit.export': ['admin'],
   'job.read': ALL,
   'token.manage': ALL,
+  'upload.read': ALL,
+  'upload.create': ['admin', 'engineer', 'surveyor'],
+  'upload.manage': ['admin', 'engineer', 'surveyor'],
+  'crs.read': ALL,
 } as const satisfies Record<string, readonly Role[]>;
 
 export type Action = keyof typeof PERMISSIONS;

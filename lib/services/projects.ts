@@ -7,7 +7,7 @@ import { AppError } from '@/lib/api/errors';
 import { auditActor, type Principal } from '@/lib/auth/principal';
 import type { OrgKind } from '@/lib/auth/roles';
 
-export const ACCURACY_CLASSES = ['handheld_gnss', 'rtk_gnss', 'total_station', 'digitised', 'unknown'] as const;
+import { ACCURACY_CLASSES } from '@/lib/records/accuracy-classes';
 
 const timeZones = new Set<string>([...Intl.supportedValuesOf('timeZone'), 'UTC']);
 
@@ -80,7 +80,7 @@ async function checkSrid(trx: Knex.Transaction, srid: number | undefined): Promi
 }
 
 function auditView(p: Project) {
-  const { createdAt: _c, updatedAt: _u, ...rest } = p;
+  const { createdAt: _c, updatedAt: _u, accuracySigmas: _s, ...rest } = p;
   return rest;
 }
 

@@ -2,6 +2,7 @@ import { readdirSync, readFileSync, statSync } from 'node:fs';
 import path from 'node:path';
 import { expect, test, type APIRequestContext } from '@playwright/test';
 import { addUserWithToken, DEMO, json } from '../helpers/e2e';
+import { gpxTrack } from '../helpers/upload-form';
 
 /**
  * The isolation matrix: every method of every app/api/**\/route.ts has a row. Each row asserts 401 without
@@ -20,6 +21,10 @@ interface Ctx {
   foreignUserId: string;
   spareUserId: string;
   foreignTokenId: string;
+  uploadId: string;
+  foreignUploadId: string;
+  failedUploadId: string;
+  spareUploadId: string;
   spareTokenId: (req: APIRequestContext) => Promise<string>;
 }
 
@@ -148,8 +153,69 @@ const MATRIX: Record<string, Row | PublicRow> = {
     allowed: 'engineer',
     success: 200,
   },
+  'GET /api/projects/[projectId]/uploads': {
+    url: (c) => `/api/projects/${c.projectId}/uploads`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/uploads`,
+    denied: ALL_ROLES,
+    allowed: 'maintenance',
+    success: 200,
+  },
+  'POST /api/projects/[projectId]/uploads': {
+    url: (c) => `/api/projects/${c.projectId}/uploads`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/uploads`,
+    denied: 'owner',
+    allowed: 'surveyor',
+    body: () => gpxForm(),
+    success: 201,
+  },
+  'POST /api/projects/[projectId]/uploads/preview': {
+    url: (c) => `/api/projects/${c.projectId}/uploads/preview`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/uploads/preview`,
+    denied: 'maintenance',
+    allowed: 'engineer',
+    body: () => gpxForm(),
+    success: 200,
+  },
+  'GET /api/projects/[projectId]/uploads/[uploadId]': {
+    url: (c) => `/api/projects/${c.projectId}/uploads/${c.uploadId}?geometry=geojson`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/uploads/${c.foreignUploadId}`,
+    denied: ALL_ROLES,
+    allowed: 'owner',
+    success: 200,
+  },
+  'GET /api/projects/[projectId]/uploads/[uploadId]/original': {
+    url: (c) => `/api/projects/${c.projectId}/uploads/${c.uploadId}/original`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/uploads/${c.foreignUploadId}/original`,
+    denied: ALL_ROLES,
+    allowed: 'maintenance',
+    success: 200,
+  },
+  'POST /api/projects/[projectId]/uploads/[uploadId]/retry': {
+    url: (c) => `/api/projects/${c.projectId}/uploads/${c.failedUploadId}/retry`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/uploads/${c.foreignUploadId}/retry`,
+    denied: 'owner',
+    allowed: 'surveyor',
+    body: () => ({ crs: 'EPSG:25832' }),
+    success: 200,
+  },
+  'POST /api/projects/[projectId]/uploads/[uploadId]/withdraw': {
+    url: (c) => `/api/projects/${c.projectId}/uploads/${c.spareUploadId}/withdraw`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/uploads/${c.foreignUploadId}/withdraw`,
+    denied: 'maintenance',
+    allowed: 'engineer',
+    body: () => ({ reason: 'isolation matrix' }),
+    success: 200,
+  },
+  'GET /api/crs': { url: () => '/api/crs?q=25832', foreign: NO_OBJECT, denied: ALL_ROLES, allowed: 'surveyor', success: 200 },
   'GET /api/audit': { url: () => '/api/audit', foreign: NO_OBJECT, denied: 'maintenance', allowed: 'admin', success: 200 },
 };
+
+let formSeq = 0;
+/** A small, always-new GPX as a multipart form. */
+function gpxForm() {
+  formSeq += 1;
+  return { multipart: { file: { name: 'matrix.gpx', mimeType: 'application/gpx+xml', buffer: Buffer.from(gpxTrack(5, { seed: Date.now() % 1e6 + formSeq })) } } };
+}
 
 function listRoutes(): string[] {
   const root = path.resolve(__dirname, '../../app/api');
@@ -200,7 +266,18 @@ test.beforeAll(async ({ request }) => {
   const fme = await json<{ user: { id: string } }>(request, 'GET', '/api/me', foreignToken);
   const spare = await json<{ user: { id: string } }>(request, 'POST', '/api/users', tokens.admin, { email: `spare-${Date.now()}@test.example`, name: 'Spare Person', role: 'owner' });
   const ftok = await json<{ token: { id: string } }>(request, 'POST', '/api/tokens', foreignToken, { name: 'foreign' });
+  const up = async (token: string, pid: string, form: unknown) => json<{ upload?: { id: string }; error?: { details: { uploadId: string } } }>(request, 'POST', `/api/projects/${pid}/uploads`, token, form);
+  const upload = await up(tokens.surveyor, projectId, gpxForm());
+  const spareUpload = await up(tokens.surveyor, projectId, gpxForm());
+  const foreignUpload = await up(foreignToken, fp.body!.project.id, gpxForm());
+  const csv = `pt,easting,northing\n1,507200.0,5773400.0\n2,507201.0,5773401.${Date.now() % 1000}\n`;
+  const failed = await up(tokens.surveyor, projectId, { multipart: { file: { name: 'no-crs.csv', mimeType: 'text/csv', buffer: Buffer.from(csv) } } });
+  expect([upload.status, spareUpload.status, foreignUpload.status, failed.status]).toEqual([201, 201, 201, 422]);
   ctx = {
+    uploadId: upload.body!.upload!.id,
+    spareUploadId: spareUpload.body!.upload!.id,
+    foreignUploadId: foreignUpload.body!.upload!.id,
+    failedUploadId: failed.body!.error!.details.uploadId,
     tokens,
     foreignToken,
     projectId,

@@ -37,8 +37,16 @@ export async function signIn(page: Page, email: string, password = DEMO_PASSWORD
 
 export const bearer = (token: string) => ({ Authorization: `Bearer ${token}` });
 
+export interface FilePart {
+  name: string;
+  mimeType: string;
+  buffer: Buffer;
+}
+
+/** Sends JSON (`data`) or, when `data` is `{ multipart: … }`, a multipart form; returns status and parsed body. */
 export async function json<T = Record<string, unknown>>(req: APIRequestContext, method: string, url: string, token: string | null, data?: unknown) {
-  const res = await req.fetch(url, { method, headers: token ? bearer(token) : {}, data });
+  const multipart = data && typeof data === 'object' && 'multipart' in data ? (data as { multipart: Record<string, string | FilePart> }).multipart : undefined;
+  const res = await req.fetch(url, { method, headers: token ? bearer(token) : {}, ...(multipart ? { multipart } : { data }) });
   const text = await res.text();
   let body: T | null = null;
   try {

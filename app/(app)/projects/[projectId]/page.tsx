@@ -1,7 +1,6 @@
 import type { Metadata } from 'next';
 import Link from 'next/link';
 import { requireProjectPage } from '@/lib/auth/page-guards';
-import { can } from '@/lib/auth/roles';
 import { formatLength } from '@/lib/records/units';
 import { ACCURACY_CLASS_LABELS } from '@/lib/records/accuracy-classes';
 import { Card, PageHeader } from '@/components/ui/primitives';
@@ -10,8 +9,7 @@ export const metadata: Metadata = { title: 'Project' };
 
 export default async function ProjectPage({ params }: { params: Promise<{ projectId: string }> }) {
   const { projectId } = await params;
-  const { me, project } = await requireProjectPage(projectId);
-  const admin = can(me.role, 'project.manage');
+  const { project } = await requireProjectPage(projectId);
   const rows: [string, string][] = [
     ['Network owner', project.ownerOrgName],
     ['Contractor', project.contractorOrgName],
@@ -30,16 +28,9 @@ export default async function ProjectPage({ params }: { params: Promise<{ projec
         title={project.name}
         subtitle={project.areaName}
         actions={
-          admin ? (
-            <>
-              <Link href={`/projects/${project.id}/settings`} className="rounded-md border border-ink/15 bg-paper-raised px-3.5 py-2 text-sm no-underline hover:no-underline">
-                Settings
-              </Link>
-              <Link href={`/projects/${project.id}/activity`} className="rounded-md border border-ink/15 bg-paper-raised px-3.5 py-2 text-sm no-underline hover:no-underline">
-                Activity log
-              </Link>
-            </>
-          ) : undefined
+          <Link href={`/projects/${project.id}/uploads`} className="rounded-md bg-brand px-3.5 py-2 text-sm font-medium text-white no-underline hover:bg-brand-dark hover:no-underline">
+            Field uploads
+          </Link>
         }
       />
       <Card title="Project settings">

@@ -1,0 +1,21 @@
+import { requireProjectPage } from '@/lib/auth/page-guards';
+import { can } from '@/lib/auth/roles';
+import { NavLinks } from '@/components/nav/nav-links';
+
+export default async function ProjectLayout({ children, params }: { children: React.ReactNode; params: Promise<{ projectId: string }> }) {
+  const { projectId } = await params;
+  const { me, project } = await requireProjectPage(projectId);
+  const base = `/projects/${project.id}`;
+  const items = [{ href: `${base}/uploads`, label: 'Uploads' }];
+  if (can(me.role, 'project.manage')) items.push({ href: `${base}/settings`, label: 'Settings' });
+  if (can(me.role, 'audit.read')) items.push({ href: `${base}/activity`, label: 'Activity log' });
+  return (
+    <div>
+      <div className="mb-6 flex flex-wrap items-center gap-3 border-b border-ink/10 pb-3">
+        <a href={base} className="text-sm font-semibold text-ink">{project.name}</a>
+        <NavLinks items={items} label="Project" />
+      </div>
+      {children}
+    </div>
+  );
+}

@@ -1,0 +1,65 @@
+import type { Metadata } from 'next';
+import { getDb } from '@/db/client';
+import { listUploads } from '@/db/uploads';
+import { requireProjectPage } from '@/lib/auth/page-guards';
+import { can } from '@/lib/auth/roles';
+import { ACCURACY_CLASS_LABELS } from '@/lib/records/accuracy-classes';
+import { DataTable } from '@/components/ui/data-table';
+import { Card, PageHeader } from '@/components/ui/primitives';
+import { UploadPanel } from '@/components/forms/upload-panel';
+
+export const metadata: Metadata = { title: 'Field uploads' };
+
+const STATUS_TONE = { stored: 'ok', failed: 'bad', withdrawn: 'muted', superseded: 'muted' } as const;
+
+export default async function UploadsPage({ params }: { params: Promise<{ projectId: string }> }) {
+  const { projectId } = await params;
+  const { me, project } = await requireProjectPage(projectId, 'upload.read');
+  const uploads = await listUploads(getDb(), project.id);
+  const fmt = new Intl.DateTimeFormat('en-GB', { dateStyle: 'short', timeStyle: 'short', timeZone: project.timeZone });
+  return (
+    <>
+      <PageHeader title="Field uploads" subtitle="GPS traces, RTK and total-station points, KML, shapefiles and GeoJSON of what was laid. Originals are kept byte for byte." />
+      {can(me.role, 'upload.create') && (
+        <div className="mb-8">
+          <Card title="Add files">
+            <UploadPanel projectId={project.id} defaultAccuracy={project.defaultAccuracyClass} defaultCrs={project.defaultCrs} />
+          </Card>
+        </div>
+      )}
+      <DataTable
+        label="Uploads"
+        empty="Nothing uploaded yet."
+        columns={[
+          { key: 'file', label: 'File' },
+          { key: 'format', label: 'Format' },
+          { key: 'crs', label: 'CRS' },
+          { key: 'features', label: 'Features', align: 'right' },
+          { key: 'points', label: 'Points', align: 'right' },
+          { key: 'accuracy', label: 'Accuracy' },
+          { key: 'surveyed', label: 'Survey date' },
+          { key: 'who', label: 'Who' },
+          { key: 'when', label: 'When' },
+          { key: 'status', label: 'Status' },
+          { key: 'notes', label: 'Warnings / error' },
+        ]}
+        rows={uploads.map((u) => ({
+          id: u.id,
+          cells: {
+            file: { text: u.fileName, href: `/projects/${project.id}/uploads/${u.id}` },
+            format: u.format ?? '—',
+            crs: u.crs ?? '—',
+            features: u.featureCount,
+            points: u.pointCount,
+            accuracy: `${ACCURACY_CLASS_LABELS[u.accuracyClass]} (σ ${u.sigmaM} m)`,
+            surveyed: u.surveyDate ?? '—',
+            who: u.uploadedByName ?? '—',
+            when: { text: fmt.format(new Date(u.createdAt)), sort: u.createdAt },
+            status: { text: u.status, tone: STATUS_TONE[u.status] },
+            notes: u.error ? u.error.message : u.warnings.join(' · '),
+          },
+        }))}
+      />
+    </>
+  );
+}

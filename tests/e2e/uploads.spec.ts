@@ -1,0 +1,82 @@
+import { expect, test } from '@playwright/test';
+import { DEMO, signIn } from '../helpers/e2e';
+import { gpxTrack } from '../helpers/upload-form';
+
+const geojson = JSON.stringify({
+  type: 'FeatureCollection',
+  features: [
+    { type: 'Feature', properties: { name: 'crossing 12' }, geometry: { type: 'LineString', coordinates: [[9.1101, 52.1051], [9.1102, 52.1053]] } },
+    { type: 'Feature', properties: { name: 'test pit 3' }, geometry: { type: 'Point', coordinates: [9.1105, 52.1055] } },
+  ],
+});
+
+async function openUploads(page: import('@playwright/test').Page) {
+  await page.getByRole('link', { name: 'Quillhaven North, phase 1' }).click();
+  await page.getByRole('link', { name: 'Field uploads' }).click();
+  await expect(page.getByRole('heading', { name: 'Field uploads' })).toBeVisible();
+}
+
+async function drop(page: import('@playwright/test').Page, files: { name: string; text: string }[]) {
+  const dt = await page.evaluateHandle((fs) => {
+    const d = new DataTransfer();
+    for (const f of fs) d.items.add(new File([f.text], f.name));
+    return d;
+  }, files);
+  await page.dispatchEvent('[data-testid=dropzone]', 'drop', { dataTransfer: dt });
+}
+
+test('a surveyor drags two files onto the page and sees progress and the result', async ({ page }) => {
+  await signIn(page, DEMO.surveyor);
+  await openUploads(page);
+  // remember every progress bar that appears, however briefly
+  await page.evaluate(() => {
+    (window as unknown as { __bars: string[] }).__bars = [];
+    new MutationObserver(() => {
+      for (const p of document.querySelectorAll('progress')) {
+        const l = p.getAttribute('aria-label') ?? '';
+        const bars = (window as unknown as { __bars: string[] }).__bars;
+        if (!bars.includes(l)) bars.push(l);
+      }
+    }).observe(document.body, { childList: true, subtree: true });
+  });
+  const stamp = Date.now();
+  await drop(page, [
+    { name: `walk-${stamp}.gpx`, text: gpxTrack(3000, { seed: stamp % 100000 }) },
+    { name: `crossings-${stamp}.geojson`, text: geojson.replace('crossing 12', `crossing ${stamp}`) },
+  ]);
+  const items = page.getByTestId('upload-item');
+  await expect(items).toHaveCount(2);
+  await expect(items.filter({ hasText: `walk-${stamp}.gpx` })).toContainText('1 features, 3000 points', { timeout: 20_000 });
+  await expect(items.filter({ hasText: `crossings-${stamp}.geojson` })).toContainText('2 features, 3 points');
+  const bars = await page.evaluate(() => (window as unknown as { __bars: string[] }).__bars);
+  expect(bars).toEqual(expect.arrayContaining([`Progress of walk-${stamp}.gpx`, `Progress of crossings-${stamp}.geojson`]));
+
+  const table = page.getByRole('table', { name: 'Uploads' });
+  await expect(table).toContainText(`walk-${stamp}.gpx`);
+  await table.getByRole('link', { name: `walk-${stamp}.gpx` }).click();
+  await expect(page.getByRole('region', { name: 'Map of the upload' })).toBeVisible();
+  await expect(page.getByText('EPSG:4326')).toBeVisible();
+  await expect(page.getByRole('link', { name: `walk-${stamp}.gpx` })).toBeVisible();
+});
+
+test('a bad file shows its message next to it', async ({ page }) => {
+  await signIn(page, DEMO.surveyor);
+  await openUploads(page);
+  await drop(page, [
+    { name: 'drawing.dxf', text: '  0\r\nSECTION\r\n  2\r\nHEADER\r\n  0\r\nENDSEC\r\n  0\r\nEOF\r\n' },
+    { name: 'evil.gpx', text: '<?xml version="1.0"?><!DOCTYPE gpx [<!ENTITY x SYSTEM "file:///etc/passwd">]><gpx>&x;</gpx>' },
+  ]);
+  const dxf = page.getByTestId('upload-item').filter({ hasText: 'drawing.dxf' });
+  await expect(dxf).toContainText('refused');
+  await expect(dxf).toContainText(/GPX/);
+  const evil = page.getByTestId('upload-item').filter({ hasText: 'evil.gpx' });
+  await expect(evil).toContainText('refused');
+  await expect(evil).toContainText(/DOCTYPE|entit/i);
+});
+
+test('owners and maintenance read uploads but cannot add files', async ({ page }) => {
+  await signIn(page, DEMO.owner);
+  await openUploads(page);
+  await expect(page.getByTestId('dropzone')).toHaveCount(0);
+  await expect(page.getByRole('table', { name: 'Uploads' })).toBeVisible();
+});
