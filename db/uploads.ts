@@ -205,6 +205,11 @@ export async function listUploadFiles(db: Db, uploadId: string): Promise<UploadF
 
 const BATCH = 500;
 
+function heightsOf(f: ParsedFeature): (number | null)[] | null {
+  const coords = f.kind === 'line' ? f.coords : [f.coord];
+  return coords.some((c) => c.length === 3) ? coords.map((c) => (c.length === 3 ? c[2] : null)) : null;
+}
+
 /** Stores parsed features in bulk: one row per line (with per-point times and attributes as arrays) or point. */
 export async function insertUploadFeatures(db: Db, uploadId: string, projectId: string, features: ParsedFeature[]): Promise<void> {
   await db('upload_features').where({ upload_id: uploadId }).delete();
@@ -217,8 +222,9 @@ export async function insertUploadFeatures(db: Db, uploadId: string, projectId: 
         seq: i + j,
         kind: f.kind,
         name: f.name,
-        geom: db.raw('ST_SetSRID(ST_GeomFromGeoJSON(?), 4326)', [JSON.stringify(geometry)]),
+        geom: db.raw('ST_Force2D(ST_SetSRID(ST_GeomFromGeoJSON(?), 4326))', [JSON.stringify(geometry)]),
         point_count: f.kind === 'line' ? f.coords.length : 1,
+        heights: heightsOf(f),
         times: f.kind === 'line' ? (f.times && f.times.some((t) => t !== null) ? f.times : null) : f.time ? [f.time] : null,
         point_attributes: f.kind === 'line' && f.pointAttributes ? JSON.stringify(f.pointAttributes) : null,
         attributes: JSON.stringify(f.attributes ?? {}),

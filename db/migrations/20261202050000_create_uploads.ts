@@ -55,6 +55,8 @@ export async function up(knex: Knex): Promise<void> {
     t.text('name');
     t.specificType('geom', 'geometry(Geometry, 4326)').notNullable();
     t.integer('point_count').notNullable();
+    // heights (m) per position, kept beside the 2D geometry so a missing height stays missing, not zero
+    t.specificType('heights', 'double precision[]');
     t.specificType('times', 'timestamptz[]');
     t.jsonb('point_attributes');
     t.jsonb('attributes').notNullable().defaultTo('{}');

@@ -2,7 +2,7 @@ import { execFileSync } from 'node:child_process';
 import path from 'node:path';
 
 const root = path.resolve(__dirname, '../..');
-const TEST_DB = 'trenchbook_test';
+const TEST_DB = process.env.TEST_DB ?? 'trenchbook_test';
 
 /** Starts the project's database server and gives the run a fresh, migrated test database. */
 export default function setup(): void {

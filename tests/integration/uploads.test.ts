@@ -67,7 +67,11 @@ describe('upload pipeline', () => {
     expect((await buffer(originalsStore().get(file.storageKey))).toString('utf8')).toBe(gpx);
     const fc = await uploadFeatureCollection(db, upload.id);
     expect(fc.features[0].geometry.type).toBe('LineString');
-    expect(fc.features[0].geometry.coordinates[0]).toEqual([9.105, 52.105, 50]);
+    expect(fc.features[0].geometry.coordinates[0]).toEqual([9.105, 52.105]);
+    const [row] = await db('upload_features').where({ upload_id: upload.id }).select('heights', 'times', 'point_count');
+    expect(row.point_count).toBe(120);
+    expect(row.heights[0]).toBe(50);
+    expect(row.times[1].toISOString()).toBe('2026-11-03T08:00:01.000Z');
     const audit = await db('audit_log').where({ object_id: upload.id });
     expect(audit.map((a) => a.action)).toEqual(['create']);
   });
