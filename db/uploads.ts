@@ -205,9 +205,33 @@ export async function listUploadFiles(db: Db, uploadId: string): Promise<UploadF
 
 const BATCH = 500;
 
-function heightsOf(f: ParsedFeature): (number | null)[] | null {
+/** 2D WKB (OGC Simple Features, little-endian) of a line or point: PostGIS reads it far faster than GeoJSON. */
+function toWkb(f: ParsedFeature): Buffer {
   const coords = f.kind === 'line' ? f.coords : [f.coord];
-  return coords.some((c) => c.length === 3) ? coords.map((c) => (c.length === 3 ? c[2] : null)) : null;
+  const head = f.kind === 'line' ? 9 : 5;
+  const buf = Buffer.allocUnsafe(head + 16 * coords.length);
+  buf.writeUInt8(1, 0);
+  buf.writeUInt32LE(f.kind === 'line' ? 2 : 1, 1);
+  if (f.kind === 'line') buf.writeUInt32LE(coords.length, 5);
+  for (let i = 0; i < coords.length; i++) {
+    buf.writeDoubleLE(coords[i][0], head + 16 * i);
+    buf.writeDoubleLE(coords[i][1], head + 16 * i + 8);
+  }
+  return buf;
+}
+
+// PostgreSQL array literals built directly: ISO times and numbers need no quoting, and this is several
+// times faster than the driver's generic array serialisation for 100,000-element arrays
+const arrayLiteral = (xs: (string | number | null)[]) => `{${xs.map((x) => (x === null ? 'NULL' : x)).join(',')}}`;
+
+function heightsOf(f: ParsedFeature): string | null {
+  const coords = f.kind === 'line' ? f.coords : [f.coord];
+  return coords.some((c) => c.length === 3) ? arrayLiteral(coords.map((c) => (c.length === 3 ? c[2] : null))) : null;
+}
+
+function timesOf(f: ParsedFeature): string | null {
+  if (f.kind === 'point') return f.time ? arrayLiteral([f.time]) : null;
+  return f.times && f.times.some((t) => t !== null) ? arrayLiteral(f.times) : null;
 }
 
 /** Stores parsed features in bulk: one row per line (with per-point times and attributes as arrays) or point. */
@@ -215,17 +239,16 @@ export async function insertUploadFeatures(db: Db, uploadId: string, projectId: 
   await db('upload_features').where({ upload_id: uploadId }).delete();
   for (let i = 0; i < features.length; i += BATCH) {
     const rows = features.slice(i, i + BATCH).map((f, j) => {
-      const geometry = f.kind === 'line' ? { type: 'LineString', coordinates: f.coords } : { type: 'Point', coordinates: f.coord };
       return {
         upload_id: uploadId,
         project_id: projectId,
         seq: i + j,
         kind: f.kind,
         name: f.name,
-        geom: db.raw('ST_Force2D(ST_SetSRID(ST_GeomFromGeoJSON(?), 4326))', [JSON.stringify(geometry)]),
+        geom: db.raw('ST_SetSRID(ST_GeomFromWKB(?), 4326)', [toWkb(f)]),
         point_count: f.kind === 'line' ? f.coords.length : 1,
         heights: heightsOf(f),
-        times: f.kind === 'line' ? (f.times && f.times.some((t) => t !== null) ? f.times : null) : f.time ? [f.time] : null,
+        times: timesOf(f),
         point_attributes: f.kind === 'line' && f.pointAttributes ? JSON.stringify(f.pointAttributes) : null,
         attributes: JSON.stringify(f.attributes ?? {}),
       };
