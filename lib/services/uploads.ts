@@ -132,7 +132,6 @@ export async function receiveUpload(db: Knex, actor: Principal, project: Project
   const fields = uploadFieldsSchema.parse(form.fields);
   const parts = form.files.filter((f) => f.field === 'file' || f.field === 'files');
   if (parts.length === 0) throw new AppError('bad_request', 'Attach the file in a multipart part named "file".');
-  if (parts.every((p) => p.size === 0)) throw new AppError('empty_file', `${parts.map((p) => p.fileName).join(', ')}: the file is empty.`);
 
   const settings: Settings = fields;
   const sha256 = combinedSha(parts);
