@@ -35,6 +35,7 @@ export interface ProjectValues {
   minCoverDepthM: number;
   lateralToleranceM: number;
   defaultAccuracyClass: AccuracyClass;
+  accuracySigmas?: Partial<Record<AccuracyClass, number>>;
 }
 
 type JoinedRow = ProjectRow & {
@@ -105,6 +106,7 @@ function toColumns(db: Db, v: Partial<ProjectValues>): Record<string, unknown> {
   if (v.minCoverDepthM !== undefined) c.min_cover_depth_m = v.minCoverDepthM;
   if (v.lateralToleranceM !== undefined) c.lateral_tolerance_m = v.lateralToleranceM;
   if (v.defaultAccuracyClass !== undefined) c.default_accuracy_class = v.defaultAccuracyClass;
+  if (v.accuracySigmas !== undefined) c.accuracy_sigmas = JSON.stringify(v.accuracySigmas);
   return c;
 }
 

@@ -3,7 +3,7 @@
 import { useRouter } from 'next/navigation';
 import { useMemo, useState } from 'react';
 import { Button, Field, Input, Notice, Select } from '@/components/ui/primitives';
-import { ACCURACY_CLASS_LABELS } from '@/lib/records/accuracy-classes';
+import { ACCURACY_CLASS_LABELS, ACCURACY_CLASSES, DEFAULT_SIGMA_M } from '@/lib/records/accuracy-classes';
 import { callApi } from './api-client';
 
 export interface ProjectFormValues {
@@ -17,6 +17,7 @@ export interface ProjectFormValues {
   minCoverDepthM: number;
   lateralToleranceM: number;
   defaultAccuracyClass: keyof typeof ACCURACY_CLASS_LABELS;
+  accuracySigmas: Partial<Record<keyof typeof ACCURACY_CLASS_LABELS, number>>;
 }
 
 export function ProjectForm({
@@ -51,6 +52,13 @@ export function ProjectForm({
     const num = (k: string) => (s(k) === '' ? NaN : Number(s(k)));
     if (!Number.isFinite(num('minCoverDepthM'))) local.minCoverDepthM = 'Give the minimum cover depth in metres.';
     if (!Number.isFinite(num('lateralToleranceM'))) local.lateralToleranceM = 'Give the lateral tolerance in metres.';
+    const accuracySigmas: Record<string, number> = {};
+    for (const c of ACCURACY_CLASSES) {
+      if (s(`sigma-${c}`) === '') continue;
+      const v = Number(s(`sigma-${c}`));
+      if (!Number.isFinite(v) || v <= 0) local.accuracySigmas = `σ for ${ACCURACY_CLASS_LABELS[c]} must be a positive number of metres.`;
+      else accuracySigmas[c] = v;
+    }
     if (Object.keys(local).length) {
       setErrors(local);
       setMessage({ tone: 'bad', text: 'Some fields need attention.' });
@@ -67,6 +75,7 @@ export function ProjectForm({
       minCoverDepthM: num('minCoverDepthM'),
       lateralToleranceM: num('lateralToleranceM'),
       defaultAccuracyClass: s('defaultAccuracyClass'),
+      accuracySigmas,
     };
     setBusy(true);
     const res =
@@ -146,6 +155,17 @@ export function ProjectForm({
           ))}
         </Select>
       </Field>
+      <fieldset className="md:col-span-2">
+        <legend className="text-sm font-medium">Positional σ per accuracy class (metres per axis, 1-sigma; blank keeps the default)</legend>
+        <div className="mt-1 grid grid-cols-2 gap-3 sm:grid-cols-5">
+          {ACCURACY_CLASSES.map((c) => (
+            <Field key={c} label={ACCURACY_CLASS_LABELS[c]} htmlFor={`sigma-${c}`} hint={`default ${DEFAULT_SIGMA_M[c]} m`}>
+              <Input id={`sigma-${c}`} name={`sigma-${c}`} inputMode="decimal" defaultValue={initial.accuracySigmas[c] === undefined ? '' : String(initial.accuracySigmas[c])} />
+            </Field>
+          ))}
+        </div>
+        {err('accuracySigmas') && <p className="mt-1 text-xs font-medium text-status-bad">{err('accuracySigmas')}</p>}
+      </fieldset>
       <div className="md:col-span-2">
         <Button type="submit" disabled={busy}>
           {mode === 'create' ? 'Create project' : 'Save settings'}

@@ -18,6 +18,16 @@ interface Item {
   errorCode?: string;
   uploadId?: string;
   columns?: { headers: string[]; map: Record<string, string>; guessed: boolean };
+  /** the first rows of a CSV, split for display in the mapping step */
+  sample?: string[][];
+}
+
+/** The first rows of a CSV for the preview table (display only; the server does the real parsing). */
+function sampleRows(text: string, rows = 6): string[][] {
+  const lines = text.split(/\r?\n/).filter((l) => l.trim() !== '').slice(0, rows);
+  const head = lines[0] ?? '';
+  const delim = [';', '\t', ','].map((d) => [d, head.split(d).length] as const).sort((a, b) => b[1] - a[1])[0][0];
+  return lines.map((l) => l.split(delim).map((c) => c.trim().replace(/^"|"$/g, '')));
 }
 
 const COLUMN_ROLES: [string, string][] = [
@@ -117,9 +127,10 @@ export function UploadPanel({ projectId, defaultAccuracy, defaultCrs }: { projec
     const res = await fetch(`/api/projects/${projectId}/uploads/preview`, { method: 'POST', body: form });
     const body = await res.json().catch(() => null);
     if (res.ok && body?.preview?.columns) {
-      patch(item.key, { state: 'mapping', columns: body.preview.columns, message: `${body.preview.pointCount} points in the first part of the file${body.preview.columns.guessed ? '; columns guessed from the headers — check them' : ''}.` });
+      patch(item.key, { state: 'mapping', columns: body.preview.columns, sample: sampleRows(cut), message: `${body.preview.pointCount} points in the first part of the file${body.preview.columns.guessed ? '; columns guessed from the headers — check them' : ''}.` });
     } else if (body?.error?.code === 'crs_required') {
-      patch(item.key, { state: 'mapping', columns: body.error.details?.columns ?? { headers: [], map: {}, guessed: true }, message: body.error.message });
+      const sample = sampleRows(cut);
+      patch(item.key, { state: 'mapping', sample, columns: body.error.details?.columns ?? { headers: sample[0] ?? [], map: {}, guessed: true }, message: `${body.error.message}. Choose it in "Coordinate system" above, then upload.` });
     } else {
       // not a survey CSV after all, or unreadable: send it as it is and let the server say what is wrong
       void upload(item);
@@ -217,6 +228,14 @@ function ColumnMapper({ item, onUpload }: { item: Item; onUpload: (map: Record<s
   const headers = item.columns!.headers;
   return (
     <div className="space-y-3 rounded-md bg-paper p-3">
+      {item.sample && item.sample.length > 1 && (
+        <div className="overflow-x-auto">
+          <table className="min-w-full text-xs" aria-label={`Preview of ${item.files[0].name}`}>
+            <thead><tr>{item.sample[0].map((h, i) => <th key={i} className="px-2 py-1 text-left font-semibold">{h}</th>)}</tr></thead>
+            <tbody>{item.sample.slice(1).map((r, i) => <tr key={i}>{r.map((c, j) => <td key={j} className="px-2 py-1 tabular-nums">{c}</td>)}</tr>)}</tbody>
+          </table>
+        </div>
+      )}
       <div className="grid gap-3 sm:grid-cols-3 lg:grid-cols-6">
         {COLUMN_ROLES.map(([role, label]) => (
           <Field key={role} label={label} htmlFor={`map-${item.key}-${role}`}>

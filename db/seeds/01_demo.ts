@@ -39,5 +39,6 @@ export async function seed(knex: Knex): Promise<void> {
     minCoverDepthM: 0.4,
     lateralToleranceM: 0.5,
     defaultAccuracyClass: 'rtk_gnss',
+    accuracySigmas: {},
   });
 }

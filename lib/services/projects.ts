@@ -33,6 +33,7 @@ const settingsShape = {
   minCoverDepthM: z.number().min(0, 'Cover depth cannot be negative.').max(5, 'Cover depth over 5 m is not plausible.').default(0.3),
   lateralToleranceM: z.number().positive('Tolerance must be above zero.').max(50).default(0.5),
   defaultAccuracyClass: z.enum(ACCURACY_CLASSES).default('unknown'),
+  accuracySigmas: z.partialRecord(z.enum(ACCURACY_CLASSES), z.number().positive('σ must be above zero.').max(100, 'σ over 100 m is not a survey.')).default({}),
 };
 
 export const createProjectSchema = z.object(settingsShape);
@@ -48,6 +49,7 @@ export const updateProjectSchema = z
     minCoverDepthM: z.number().min(0).max(5),
     lateralToleranceM: z.number().positive().max(50),
     defaultAccuracyClass: z.enum(ACCURACY_CLASSES),
+    accuracySigmas: settingsShape.accuracySigmas.unwrap(),
   })
   .partial();
 
@@ -80,7 +82,7 @@ async function checkSrid(trx: Knex.Transaction, srid: number | undefined): Promi
 }
 
 function auditView(p: Project) {
-  const { createdAt: _c, updatedAt: _u, accuracySigmas: _s, ...rest } = p;
+  const { createdAt: _c, updatedAt: _u, ...rest } = p;
   return rest;
 }
 
@@ -112,6 +114,7 @@ export async function createProject(db: Knex, actor: Principal, input: CreateInp
         minCoverDepthM: input.minCoverDepthM,
         lateralToleranceM: input.lateralToleranceM,
         defaultAccuracyClass: input.defaultAccuracyClass,
+        accuracySigmas: input.accuracySigmas,
       };
       const project = await insertProject(trx, values);
       await writeAudit(trx, auditActor(actor), {
@@ -141,6 +144,7 @@ export async function changeProject(db: Knex, actor: Principal, projectId: strin
         minCoverDepthM: input.minCoverDepthM,
         lateralToleranceM: input.lateralToleranceM,
         defaultAccuracyClass: input.defaultAccuracyClass,
+        accuracySigmas: input.accuracySigmas,
       };
       if (input.partnerOrganisation !== undefined) {
         const partnerId = await resolvePartner(trx, actor, input.partnerOrganisation);

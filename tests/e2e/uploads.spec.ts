@@ -80,3 +80,20 @@ test('owners and maintenance read uploads but cannot add files', async ({ page }
   await expect(page.getByTestId('dropzone')).toHaveCount(0);
   await expect(page.getByRole('table', { name: 'Uploads' })).toBeVisible();
 });
+
+test('a survey CSV gets a column check with a preview, then lands once the coordinate system is named', async ({ page }) => {
+  await signIn(page, DEMO.surveyor);
+  await openUploads(page);
+  const stamp = Date.now() % 100000;
+  const csv = `Pt;E;N;H;Code\n1;507200.${stamp};5773400.00;51.20;TR\n2;507210.00;5773405.00;51.25;TR\n3;507220.00;5773410.00;51.30;TR\n`;
+  await drop(page, [{ name: `rover-${stamp}.csv`, text: csv }]);
+  const item = page.getByTestId('upload-item').filter({ hasText: `rover-${stamp}.csv` });
+  await expect(item).toContainText('check columns');
+  await expect(item.getByRole('table', { name: `Preview of rover-${stamp}.csv` })).toContainText('5773405.00');
+  await page.getByLabel('Coordinate system').fill('EPSG:25832');
+  await item.getByLabel('Easting').selectOption('E');
+  await item.getByLabel('Northing').selectOption('N');
+  await item.getByRole('button', { name: 'Upload with these columns' }).click();
+  await expect(item).toContainText('stored');
+  await expect(item).toContainText('3 points');
+});

@@ -7,7 +7,7 @@ import { listUploadFiles, uploadFeatureCollection } from '@/db/uploads';
 import { AppError } from '@/lib/api/errors';
 import { receiveMultipart } from '@/lib/api/multipart';
 import type { Principal } from '@/lib/auth/principal';
-import { createProject, createProjectSchema } from '@/lib/services/projects';
+import { changeProject, createProject, createProjectSchema } from '@/lib/services/projects';
 import { receiveUpload, retryUpload, withdrawUpload } from '@/lib/services/uploads';
 import { originalsStore } from '@/lib/storage/originals-store';
 import { count, makePrincipal } from '../helpers/fixtures';
@@ -168,6 +168,19 @@ describe('upload pipeline', () => {
     const audit = await db('audit_log').where({ object_id: second.upload.id }).orderBy('id');
     expect(audit.map((a) => a.action)).toEqual(['create', 'withdraw']);
     expect(audit[1].after.reason).toBe('walked the wrong street');
+  });
+});
+
+describe('accuracy of an upload', () => {
+  it('takes σ from the class default, or from the project when it overrides the class', async () => {
+    const admin = await makePrincipal(db, 'admin', 'contractor');
+    const p = await createProject(db, admin, createProjectSchema.parse({ name: 'Sigma', partnerOrganisation: `Sigma owner ${Date.now()}` }));
+    const rtk = await send([{ name: 'r.gpx', bytes: gpxTrack(5, { seed: 31337 }) }], { accuracy: 'rtk_gnss' }, (await getProject(db, p.id))!);
+    expect(rtk.upload.sigmaM).toBe(0.02);
+    await changeProject(db, admin, p.id, { accuracySigmas: { handheld_gnss: 2.5 } });
+    const hand = await send([{ name: 'h.gpx', bytes: gpxTrack(5, { seed: 31338 }) }], { accuracy: 'handheld_gnss' }, (await getProject(db, p.id))!);
+    expect(hand.upload.sigmaM).toBe(2.5);
+    expect(createProjectSchema.safeParse({ name: 'x', partnerOrganisation: 'yy', accuracySigmas: { rtk_gnss: -1 } }).success).toBe(false);
   });
 });
 

@@ -27,6 +27,7 @@ export default async function NewProjectPage() {
             minCoverDepthM: 0.3,
             lateralToleranceM: 0.5,
             defaultAccuracyClass: 'unknown',
+            accuracySigmas: {},
           }}
         />
       </Card>

@@ -29,6 +29,7 @@ export default async function ProjectSettingsPage({ params }: { params: Promise<
             minCoverDepthM: project.minCoverDepthM,
             lateralToleranceM: project.lateralToleranceM,
             defaultAccuracyClass: project.defaultAccuracyClass,
+            accuracySigmas: project.accuracySigmas,
           }}
         />
       </Card>

@@ -9,10 +9,19 @@ import { ACCURACY_CLASS_LABELS, R95_FACTOR } from '@/lib/records/accuracy-classe
 import { formatLength } from '@/lib/records/units';
 import { DataTable } from '@/components/ui/data-table';
 import { Badge, Card, Notice, PageHeader } from '@/components/ui/primitives';
-import { GeoMap } from '@/components/map/geo-map';
+import { GeoMap, type MapLayer } from '@/components/map/geo-map';
 import { WithdrawUpload } from '@/components/forms/withdraw-upload';
+import { SupersedeUpload } from '@/components/forms/supersede-upload';
 
 export const metadata: Metadata = { title: 'Upload' };
+
+/** The project's extent as a dashed outline, so a file in the wrong place shows at once. */
+function extentLayer(extent: [number, number, number, number] | null): MapLayer[] {
+  if (!extent) return [];
+  const [w, s, e, n] = extent;
+  const ring = [[w, s], [e, s], [e, n], [w, n], [w, s]];
+  return [{ id: 'extent', colour: '#7b8a92', dashed: true, width: 1.5, data: { type: 'FeatureCollection', features: [{ type: 'Feature', properties: {}, geometry: { type: 'LineString', coordinates: ring } }] } }];
+}
 
 export default async function UploadPage({ params }: { params: Promise<{ projectId: string; uploadId: string }> }) {
   const { projectId, uploadId } = await params;
@@ -38,13 +47,20 @@ export default async function UploadPage({ params }: { params: Promise<{ project
       <PageHeader
         title={upload.fileName}
         subtitle={<Badge tone={upload.status === 'stored' ? 'ok' : upload.status === 'failed' ? 'bad' : 'muted'}>{upload.status}</Badge>}
-        actions={upload.status === 'stored' && can(me.role, 'upload.manage') ? <WithdrawUpload projectId={project.id} uploadId={upload.id} /> : undefined}
+        actions={
+          upload.status === 'stored' && can(me.role, 'upload.manage') ? (
+            <>
+              <SupersedeUpload projectId={project.id} uploadId={upload.id} />
+              <WithdrawUpload projectId={project.id} uploadId={upload.id} />
+            </>
+          ) : undefined
+        }
       />
       <div className="space-y-6">
         {upload.error && <Notice tone="bad"><span className="font-medium">{upload.error.code}:</span> {upload.error.message}</Notice>}
         {upload.warnings.length > 0 && <Notice tone="warn">{upload.warnings.join(' · ')}</Notice>}
         {upload.supersededBy && <Notice tone="info">Superseded by <a href={`/projects/${project.id}/uploads/${upload.supersededBy}`}>a corrected upload</a>.</Notice>}
-        {geometry.features.length > 0 && <GeoMap label="Map of the upload" layers={[{ id: 'upload', data: geometry, colour: '#0072b2' }]} />}
+        {geometry.features.length > 0 && <GeoMap label="Map of the upload" layers={[...extentLayer(project.extent), { id: 'upload', data: geometry, colour: '#0072b2' }]} />}
         <div className="grid gap-6 lg:grid-cols-2">
           <Card title="About this upload">
             <dl className="space-y-2 text-sm">
