@@ -6,14 +6,11 @@ import { decodeText } from './decode-text';
 import { readZip } from './read-zip';
 import { toUtcIso } from './utc-time';
 import { outOfRange, positionProblem, type RangeProblem } from './validate-coords';
+import { KML_NOT_DATA as NOT_DATA, parseKmlStream } from './parse-kml-stream';
 import { IngestError, type IngestLimits, type ParsedFeature, type ParsedUpload, type Position } from './types';
 
-/** togeojson properties that describe styling or togeojson's own bookkeeping, not the placemark's data. */
-const NOT_DATA = new Set([
-  'name', 'coordinateProperties', 'styleUrl', 'styleHash', 'styleMapHash', 'stroke', 'stroke-opacity', 'stroke-width',
-  'fill', 'fill-opacity', 'icon', 'icon-color', 'icon-opacity', 'icon-scale', 'icon-heading', 'icon-offset',
-  'icon-offset-units', 'label-color', 'label-opacity', 'label-scale', 'visibility', 'open',
-]);
+// above ~2M chars the xmldom tree (up to ~100x the text for gx:Track files) costs seconds and hundreds of MB; saxes keeps only the features
+export const KML_STREAM_THRESHOLD = 2 * 1024 * 1024;
 
 function parseXml(text: string): Document {
   let reason = '';
@@ -45,7 +42,8 @@ function toPosition(c: number[]): Position {
 }
 
 /**
- * Parse a KML 2.2 document (text) with @tmcw/togeojson over @xmldom/xmldom.
+ * Parse a KML 2.2 document (text) with @tmcw/togeojson over @xmldom/xmldom, or, above
+ * KML_STREAM_THRESHOLD characters, with the streaming parser (parseKmlStream), which reads the same.
  *
  * Each part of a MultiGeometry becomes its own feature (attribute `part`); gx:Track times are kept;
  * Placemark name and ExtendedData go into attributes; polygons are skipped with a warning.
@@ -55,6 +53,17 @@ function toPosition(c: number[]): Position {
  * // { format: 'kml', features: [{ kind: 'point', name: 'A', coord: [13.4, 52.5], … }], … }
  */
 export function parseKml(text: string, format: 'kml' | 'kmz' = 'kml'): ParsedUpload {
+  return text.length > KML_STREAM_THRESHOLD ? parseKmlStream(text, format) : parseKmlDom(text, format);
+}
+
+/**
+ * The togeojson path of parseKml, used for files up to KML_STREAM_THRESHOLD characters (and as the
+ * oracle the streaming parser is tested against).
+ *
+ * @example
+ * parseKmlDom(text).features.length === parseKmlStream(text).features.length; // true
+ */
+export function parseKmlDom(text: string, format: 'kml' | 'kmz' = 'kml'): ParsedUpload {
   assertSafeXml(text);
   const doc = parseXml(text);
   const root = doc.documentElement;
