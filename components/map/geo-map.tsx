@@ -59,5 +59,12 @@ export function GeoMap({ layers, label, height = 420 }: { layers: MapLayer[]; la
     });
     return () => map.remove();
   }, [layers]);
-  return <div ref={ref} role="region" aria-label={label} className="w-full overflow-hidden rounded-lg border border-ink/10" style={{ height }} />;
+  return (
+    <figure>
+      <div ref={ref} role="region" aria-label={label} className="w-full overflow-hidden rounded-lg border border-ink/10" style={{ height }} />
+      <figcaption className="mt-1 text-xs text-ink-soft">
+        Positions shown are records, not a locate. Before any digging, verify utilities on site (detection, hand-dug trial holes) and follow local codes and licensed practice.
+      </figcaption>
+    </figure>
+  );
 }

@@ -31,6 +31,8 @@ export const PERMISSIONS = {
   'upload.create': ['admin', 'engineer', 'surveyor'],
   'upload.manage': ['admin', 'engineer', 'surveyor'],
   'crs.read': ALL,
+  'plan.read': ALL,
+  'plan.import': ['admin', 'engineer'],
 } as const satisfies Record<string, readonly Role[]>;
 
 export type Action = keyof typeof PERMISSIONS;

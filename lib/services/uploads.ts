@@ -81,7 +81,8 @@ function combinedSha(parts: { sha256: string }[]): string {
   return createHash('sha256').update(parts.map((p) => p.sha256).sort().join('\n')).digest('hex');
 }
 
-async function parse(db: Knex, project: Project, files: { name: string; bytes: Buffer }[], s: Settings): Promise<ParsedUpload | IngestError> {
+/** Parses files with the project's catalogue and limits; an IngestError is returned, not thrown. */
+export async function parse(db: Knex, project: Project, files: { name: string; bytes: Buffer }[], s: { crs?: string; columns?: unknown }): Promise<ParsedUpload | IngestError> {
   const e = env();
   try {
     return await parseUpload(files, {

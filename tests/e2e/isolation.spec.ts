@@ -206,6 +206,29 @@ const MATRIX: Record<string, Row | PublicRow> = {
     body: () => ({ reason: 'isolation matrix' }),
     success: 200,
   },
+  'GET /api/projects/[projectId]/planned': {
+    url: (c) => `/api/projects/${c.projectId}/planned?format=geojson`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/planned`,
+    denied: ALL_ROLES,
+    allowed: 'maintenance',
+    success: 200,
+  },
+  'POST /api/projects/[projectId]/planned': {
+    url: (c) => `/api/projects/${c.projectId}/planned`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/planned`,
+    denied: 'surveyor',
+    allowed: 'engineer',
+    body: () => ({
+      multipart: {
+        file: {
+          name: 'design.geojson',
+          mimeType: 'application/geo+json',
+          buffer: Buffer.from(JSON.stringify({ type: 'Feature', properties: { ref: `M-${Date.now()}` }, geometry: { type: 'LineString', coordinates: [[9.11, 52.105], [9.1105, 52.1052]] } })),
+        },
+      },
+    }),
+    success: 201,
+  },
   'GET /api/crs': { url: () => '/api/crs?q=25832', foreign: NO_OBJECT, denied: ALL_ROLES, allowed: 'surveyor', success: 200 },
   'GET /api/audit': { url: () => '/api/audit', foreign: NO_OBJECT, denied: 'maintenance', allowed: 'admin', success: 200 },
 };

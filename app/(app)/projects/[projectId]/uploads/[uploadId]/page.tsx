@@ -11,6 +11,7 @@ import { DataTable } from '@/components/ui/data-table';
 import { Badge, Card, Notice, PageHeader } from '@/components/ui/primitives';
 import { GeoMap, type MapLayer } from '@/components/map/geo-map';
 import { WithdrawUpload } from '@/components/forms/withdraw-upload';
+import { plannedFeatureCollection } from '@/lib/services/planned';
 import { SupersedeUpload } from '@/components/forms/supersede-upload';
 
 export const metadata: Metadata = { title: 'Upload' };
@@ -29,7 +30,7 @@ export default async function UploadPage({ params }: { params: Promise<{ project
   const db = getDb();
   const upload = isUuid(uploadId) ? await getUpload(db, uploadId) : undefined;
   if (!upload || upload.projectId !== project.id) notFound();
-  const [files, geometry] = await Promise.all([listUploadFiles(db, upload.id), uploadFeatureCollection(db, upload.id)]);
+  const [files, geometry, planned] = await Promise.all([listUploadFiles(db, upload.id), uploadFeatureCollection(db, upload.id), plannedFeatureCollection(db, project.id, false)]);
   const facts: [string, string][] = [
     ['Format', upload.format ?? '—'],
     ['Coordinate system of the file', upload.crs ?? '—'],
@@ -60,7 +61,7 @@ export default async function UploadPage({ params }: { params: Promise<{ project
         {upload.error && <Notice tone="bad"><span className="font-medium">{upload.error.code}:</span> {upload.error.message}</Notice>}
         {upload.warnings.length > 0 && <Notice tone="warn">{upload.warnings.join(' · ')}</Notice>}
         {upload.supersededBy && <Notice tone="info">Superseded by <a href={`/projects/${project.id}/uploads/${upload.supersededBy}`}>a corrected upload</a>.</Notice>}
-        {geometry.features.length > 0 && <GeoMap label="Map of the upload" layers={[...extentLayer(project.extent), { id: 'upload', data: geometry, colour: '#0072b2' }]} />}
+        {geometry.features.length > 0 && <GeoMap label="Map of the upload" layers={[...extentLayer(project.extent), { id: 'planned', data: planned, colour: '#999999', dashed: true, width: 2 }, { id: 'upload', data: geometry, colour: '#0072b2' }]} />}
         <div className="grid gap-6 lg:grid-cols-2">
           <Card title="About this upload">
             <dl className="space-y-2 text-sm">

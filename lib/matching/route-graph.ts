@@ -1,0 +1,208 @@
+import Flatbush from 'flatbush';
+import { lineLengthM, localFrame, pointAtChainage, projectOntoLine, type XY } from './chainage';
+import { coverage } from './coverage';
+import type { Diagnostic, GraphEdge, GraphNode, LonLat, PlannedRouteInput, RouteGraph } from './types';
+
+// at the default 0.5 m snap a right-angle crossing is within snapM for exactly 1 m: the millimetre keeps it out
+const OVERLAP_M = 1.001;
+
+interface Route {
+  input: PlannedRouteInput;
+  xy: XY[];
+  lengthM: number;
+  nodeAt: [number, number];
+}
+
+/** Union–find over endpoint indices; a join keeps the smaller index as root, which keeps ids stable. */
+function unionFind(n: number) {
+  const parent = Array.from({ length: n }, (_, i) => i);
+  const find = (i: number): number => (parent[i] === i ? i : (parent[i] = find(parent[i])));
+  const union = (a: number, b: number) => {
+    const [ra, rb] = [find(a), find(b)];
+    if (ra !== rb) parent[Math.max(ra, rb)] = Math.min(ra, rb);
+  };
+  return { find, union };
+}
+
+/** Nearest point of a planar polyline to p: its distance, and how far along (of how long) it lies. */
+function nearestPlanar(xy: XY[], [px, py]: XY): { distance: number; along: number; length: number } {
+  let best = { distance: Infinity, along: 0, length: 0 };
+  let base = 0;
+  for (let i = 0; i + 1 < xy.length; i++) {
+    const [[ax, ay], [bx, by]] = [xy[i], xy[i + 1]];
+    const [dx, dy] = [bx - ax, by - ay];
+    const l2 = dx * dx + dy * dy;
+    const t = l2 > 0 ? Math.min(Math.max(((px - ax) * dx + (py - ay) * dy) / l2, 0), 1) : 0;
+    const d = Math.hypot(ax + t * dx - px, ay + t * dy - py);
+    if (d < best.distance) best = { distance: d, along: base + t * Math.sqrt(l2), length: 0 };
+    base += Math.sqrt(l2);
+  }
+  return { ...best, length: base };
+}
+
+/** duplicate: each line within snapM of the other everywhere; overlap: both run within snapM of each other for > 1 m. */
+function pairDiagnostics(rs: Route[], index: Flatbush, segRoute: number[], snapM: number): Diagnostic[] {
+  const out: Diagnostic[] = [];
+  rs.forEach((a, i) => {
+    const partners = new Set<number>();
+    for (let s = 0; s + 1 < a.xy.length; s++) {
+      const [p, q] = [a.xy[s], a.xy[s + 1]];
+      for (const hit of index.search(Math.min(p[0], q[0]) - snapM, Math.min(p[1], q[1]) - snapM, Math.max(p[0], q[0]) + snapM, Math.max(p[1], q[1]) + snapM)) {
+        if (segRoute[hit] > i) partners.add(segRoute[hit]);
+      }
+    }
+    for (const j of [...partners].sort((x, y) => x - y)) {
+      const b = rs[j];
+      const [ab, ba] = [coverage(a.xy, b.xy, snapM), coverage(b.xy, a.xy, snapM)];
+      const refs = [a.input.ref, b.input.ref];
+      // planar chainage stands in for the geodesic one: a pointer for the eye, off by far less than snapM
+      const where = pointAtChainage(a.input.coords, (ab.firstM + ab.lastM) / 2);
+      if (ab.full && ba.full) {
+        out.push({ kind: 'duplicate', refs, position: where, message: `${refs[0]} and ${refs[1]} have the same geometry (within ${snapM} m)` });
+      } else if (Math.min(ab.coveredM, ba.coveredM) > OVERLAP_M) {
+        const m = Math.min(ab.coveredM, ba.coveredM).toFixed(1);
+        out.push({ kind: 'overlap', refs, position: where, message: `${refs[0]} and ${refs[1]} run within ${snapM} m of each other for ${m} m` });
+      }
+    }
+  });
+  return out;
+}
+
+const distinctPositions = (coords: LonLat[]) => new Set(coords.map(([x, y]) => `${x},${y}`)).size;
+
+/**
+ * Joins the planned routes into a graph. Endpoints within `snapM` of each other become one node; an
+ * endpoint within `snapM` of another route's interior splits that route there (a T-junction). Every
+ * problem is a diagnostic, never an exception.
+ *
+ * Snap and overlap decisions are planar, in one equirectangular frame about the network's centre: at
+ * city scale (10 km across) its scale error stays under 0.1 %, i.e. < 0.5 mm on a 0.5 m snap. Chainages
+ * and lengths are geodesic. Route crossings without an endpoint are not junctions (a road crossing is
+ * drawn as its own route ending on both streets).
+ * `buildRouteGraph([{ ref: 'A', coords: [[0, 0], [0.001, 0]], … }]).edges` → `[{ ref: 'A', fromNode: 0, toNode: 1, … }]`
+ */
+export function buildRouteGraph(routes: PlannedRouteInput[], opts: { snapM?: number } = {}): RouteGraph {
+  const snapM = opts.snapM ?? 0.5;
+  const diagnostics: Diagnostic[] = [];
+  const count = new Map<string, number>();
+  for (const r of routes) count.set(r.ref, (count.get(r.ref) ?? 0) + 1);
+  const kept = new Map<string, PlannedRouteInput>();
+  for (const r of routes) {
+    if (!kept.has(r.ref)) kept.set(r.ref, r);
+    else if (count.get(r.ref)! > 1) {
+      const message = `${r.ref} appears ${count.get(r.ref)} times in the plan; only the first is in the graph`;
+      diagnostics.push({ kind: 'duplicate_ref', refs: [r.ref], position: r.coords[0] ?? [0, 0], message });
+      count.set(r.ref, 0); // once per ref
+    }
+  }
+  const valid: { input: PlannedRouteInput; lengthM: number }[] = [];
+  for (const r of kept.values()) {
+    const [lengthM, distinct] = [lineLengthM(r.coords), distinctPositions(r.coords)];
+    if (distinct >= 2 && lengthM >= 0.01) valid.push({ input: r, lengthM });
+    else {
+      const why = distinct < 2 ? 'has fewer than 2 distinct positions' : `is ${lengthM.toFixed(3)} m long`;
+      diagnostics.push({ kind: 'zero_length', refs: [r.ref], position: r.coords[0] ?? [0, 0], message: `${r.ref} ${why}; it is left out of the graph` });
+    }
+  }
+  if (valid.length === 0) return { nodes: [], edges: [], diagnostics };
+
+  let [minLon, minLat, maxLon, maxLat] = [Infinity, Infinity, -Infinity, -Infinity];
+  for (const r of valid) for (const [x, y] of r.input.coords) [minLon, minLat, maxLon, maxLat] = [Math.min(minLon, x), Math.min(minLat, y), Math.max(maxLon, x), Math.max(maxLat, y)];
+  const frame = localFrame([(minLon + maxLon) / 2, (minLat + maxLat) / 2]);
+  const rs: Route[] = valid.map(({ input, lengthM }) => ({ input, xy: input.coords.map(frame.toXY), lengthM, nodeAt: [-1, -1] }));
+
+  // one index over every segment; ids map back through segRoute/segStart
+  const segRoute: number[] = [];
+  const segStart: number[] = [];
+  rs.forEach((r, k) => r.xy.slice(1).forEach((_, i) => (segRoute.push(k), segStart.push(i))));
+  const index = new Flatbush(segRoute.length);
+  for (let s = 0; s < segRoute.length; s++) {
+    const [p, q] = [rs[segRoute[s]].xy[segStart[s]], rs[segRoute[s]].xy[segStart[s] + 1]];
+    index.add(Math.min(p[0], q[0]), Math.min(p[1], q[1]), Math.max(p[0], q[0]), Math.max(p[1], q[1]));
+  }
+  index.finish();
+  const near = (x: number, y: number, pad: number) => index.search(x - pad, y - pad, x + pad, y + pad);
+
+  // endpoint e = 2k (start of route k) or 2k + 1 (its end)
+  const endXY = (e: number) => (e % 2 === 0 ? rs[e >> 1].xy[0] : rs[e >> 1].xy[rs[e >> 1].xy.length - 1]);
+  const endLonLat = (e: number) => (e % 2 === 0 ? rs[e >> 1].input.coords[0] : rs[e >> 1].input.coords[rs[e >> 1].input.coords.length - 1]);
+  const uf = unionFind(rs.length * 2);
+  const hits: { e: number; route: number; chainageM: number; distanceM: number }[] = [];
+  for (let e = 0; e < rs.length * 2; e++) {
+    const [x, y] = endXY(e);
+    const candidates = new Set(near(x, y, snapM).map((s) => segRoute[s]));
+    for (const k of candidates) {
+      const other = rs[k];
+      for (const f of [2 * k, 2 * k + 1]) {
+        const [fx, fy] = endXY(f);
+        if (f !== e && Math.hypot(fx - x, fy - y) <= snapM) uf.union(e, f);
+      }
+      if (k === e >> 1) continue;
+      const foot = nearestPlanar(other.xy, [x, y]);
+      if (foot.distance > snapM) continue;
+      // a foot within snapM of the other route's end joins that end: no sliver edges shorter than snapM
+      if (foot.along <= snapM || foot.along >= foot.length - snapM) {
+        uf.union(e, 2 * foot.along < foot.length ? 2 * k : 2 * k + 1);
+        continue;
+      }
+      const p = projectOntoLine(other.input.coords, endLonLat(e));
+      hits.push({ e, route: k, chainageM: p.chainageM, distanceM: foot.distance });
+    }
+  }
+  // several endpoints snapping onto one route at (nearly) one place are one junction
+  const splits = rs.map(() => [] as { chainageM: number; e: number; distanceM: number }[]);
+  for (const h of hits) splits[h.route].push(h);
+  for (const list of splits) {
+    list.sort((a, b) => a.chainageM - b.chainageM || a.distanceM - b.distanceM);
+    for (let i = 1; i < list.length; i++) if (list[i].chainageM - list[i - 1].chainageM <= snapM) uf.union(list[i - 1].e, list[i].e);
+  }
+
+  const nodeOf = new Map<number, number>();
+  const nodes: GraphNode[] = [];
+  const members: number[][] = [];
+  for (let e = 0; e < rs.length * 2; e++) {
+    const root = uf.find(e);
+    if (!nodeOf.has(root)) {
+      nodeOf.set(root, nodes.length);
+      nodes.push({ id: nodes.length, position: [0, 0], routes: [] });
+      members.push([]);
+    }
+    const id = nodeOf.get(root)!;
+    members[id].push(e);
+    rs[e >> 1].nodeAt[e % 2] = id;
+    nodes[id].routes.push({ ref: rs[e >> 1].input.ref, chainageM: e % 2 === 0 ? 0 : rs[e >> 1].lengthM });
+  }
+  nodes.forEach((n, id) => {
+    const ps = members[id].map(endLonLat);
+    n.position = [ps.reduce((s, p) => s + p[0], 0) / ps.length, ps.reduce((s, p) => s + p[1], 0) / ps.length];
+  });
+
+  const edges: GraphEdge[] = [];
+  rs.forEach((r, k) => {
+    const cuts = [{ chainageM: 0, node: r.nodeAt[0] }];
+    const byNode = new Map<number, { chainageM: number; distanceM: number }>();
+    for (const h of splits[k]) {
+      const id = nodeOf.get(uf.find(h.e))!;
+      const prev = byNode.get(id);
+      if (!prev || h.distanceM < prev.distanceM) byNode.set(id, h);
+    }
+    for (const [node, h] of [...byNode].sort((a, b) => a[1].chainageM - b[1].chainageM)) {
+      cuts.push({ chainageM: h.chainageM, node });
+      nodes[node].routes.push({ ref: r.input.ref, chainageM: h.chainageM });
+    }
+    cuts.push({ chainageM: r.lengthM, node: r.nodeAt[1] });
+    for (let i = 1; i < cuts.length; i++) {
+      const [a, b] = [cuts[i - 1], cuts[i]];
+      edges.push({ ref: r.input.ref, fromNode: a.node, toNode: b.node, fromChainageM: a.chainageM, toChainageM: b.chainageM, lengthM: b.chainageM - a.chainageM });
+    }
+  });
+
+  diagnostics.push(...pairDiagnostics(rs, index, segRoute, snapM));
+  for (let e = 0; e < rs.length * 2; e++) {
+    const node = nodes[rs[e >> 1].nodeAt[e % 2]];
+    if (node.routes.length > 1) continue;
+    const ref = rs[e >> 1].input.ref;
+    diagnostics.push({ kind: 'dangling_end', refs: [ref], position: node.position, message: `${ref} ends without joining another route (at its ${e % 2 === 0 ? 'start' : 'end'})` });
+  }
+  return { nodes, edges, diagnostics };
+}
