@@ -1,4 +1,4 @@
-import { createHash, randomUUID } from 'node:crypto';
+import { randomUUID } from 'node:crypto';
 import { readFile } from 'node:fs/promises';
 import type { Knex } from 'knex';
 import { z } from 'zod';
@@ -19,34 +19,22 @@ import {
 import type { Project } from '@/db/projects';
 import { AppError, type ErrorCode } from '@/lib/api/errors';
 import type { ReceivedForm } from '@/lib/api/multipart';
+import { epsgField, jsonField } from '@/lib/api/form-fields';
 import { auditActor, type Principal } from '@/lib/auth/principal';
 import { IngestError } from '@/lib/ingest/types';
 import { lineLengthM } from '@/lib/matching/chainage';
 import { diffPlans } from '@/lib/matching/plan-diff';
 import { attributeKeys, guessPlanMapping, toPlannedRoutes, type PlanMapping } from '@/lib/matching/plan-mapping';
 import { buildRouteGraph } from '@/lib/matching/route-graph';
-import { originalsStore } from '@/lib/storage/originals-store';
+import { combinedSha, removeOriginals, storeOriginals } from './originals';
 import { parse } from './uploads';
 
 const mappingSchema = z.object({ ref: z.string(), street: z.string(), ducts: z.string(), kind: z.string() }).partial().strict();
 
 export const planFieldsSchema = z.object({
-  crs: z.string().trim().regex(/^EPSG:\d{4,6}$/i, 'Give the coordinate system as EPSG:<code>, e.g. EPSG:25833.').transform((s) => s.toUpperCase()).optional(),
-  mapping: z
-    .string()
-    .transform((s, ctx) => {
-      try {
-        return JSON.parse(s) as unknown;
-      } catch {
-        ctx.addIssue({ code: 'custom', message: 'must be JSON, e.g. {"ref":"route_id","street":"street","ducts":"bundle","kind":"type"}' });
-        return z.NEVER;
-      }
-    })
-    .pipe(mappingSchema)
-    .optional(),
+  crs: epsgField.optional(),
+  mapping: jsonField(mappingSchema, '{"ref":"route_id","street":"street","ducts":"bundle","kind":"type"}').optional(),
 });
-
-const safeName = (n: string) => n.replace(/[^A-Za-z0-9._-]/g, '_').slice(-120) || 'file';
 
 /**
  * Imports the design (GeoJSON, KML/KMZ, zipped shapefile) as the project's next plan version: routes are
@@ -58,7 +46,7 @@ export async function importPlan(db: Knex, actor: Principal, project: Project, f
   const fields = planFieldsSchema.parse(form.fields);
   const parts = form.files.filter((f) => f.field === 'file' || f.field === 'files');
   if (parts.length === 0) throw new AppError('bad_request', 'Attach the design in a multipart part named "file".');
-  const sha256 = parts.length === 1 ? parts[0].sha256 : createHash('sha256').update(parts.map((p) => p.sha256).sort().join('\n')).digest('hex');
+  const sha256 = combinedSha(parts);
   const existing = await findPlanVersionBySha(db, project.id, sha256);
   if (existing) return { version: existing, created: false };
 
@@ -82,13 +70,8 @@ export async function importPlan(db: Knex, actor: Principal, project: Project, f
   const lengths = new Map(routes.map((r) => [r.ref, lineLengthM(r.coords)]));
 
   const versionId = randomUUID();
-  const stored: { fileName: string; storageKey: string; sha256: string; sizeBytes: number }[] = [];
+  const stored = await storeOriginals(`plans/${project.id}/${versionId}`, parts, files.map((f) => f.bytes));
   try {
-    for (const [i, p] of parts.entries()) {
-      const storageKey = `plans/${project.id}/${versionId}/${i}-${safeName(p.fileName)}`;
-      await originalsStore().put(storageKey, files[i].bytes);
-      stored.push({ fileName: p.fileName, storageKey, sha256: p.sha256, sizeBytes: p.size });
-    }
     await db.transaction(async (trx) => {
       const version = await lockProjectPlan(trx, project.id);
       const all = await listPlannedRoutes(trx, project.id, true);
@@ -140,7 +123,7 @@ export async function importPlan(db: Knex, actor: Principal, project: Project, f
       await writeAudit(trx, auditActor(actor), { projectId: project.id, objectType: 'project', objectId: project.id, action: 'extent_from_plan', before: { extent: before }, after: { extent: [after.w, after.s, after.e, after.n] } });
     });
   } catch (err) {
-    await Promise.all(stored.map((f) => originalsStore().remove(f.storageKey)));
+    await removeOriginals(stored);
     throw err;
   }
   return { version: (await listPlanVersions(db, project.id)).find((v) => v.id === versionId)!, created: true };

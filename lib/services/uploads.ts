@@ -1,4 +1,4 @@
-import { createHash, randomUUID } from 'node:crypto';
+import { randomUUID } from 'node:crypto';
 import { readFile } from 'node:fs/promises';
 import { buffer as readStream } from 'node:stream/consumers';
 import type { Knex } from 'knex';
@@ -16,14 +16,15 @@ import {
   setUploadStatus,
   updateUploadOutcome,
   type Upload,
-  type UploadFile,
   type UploadOutcome,
 } from '@/db/uploads';
 import { AppError, type ErrorCode } from '@/lib/api/errors';
 import type { ReceivedForm } from '@/lib/api/multipart';
+import { epsgField, jsonField } from '@/lib/api/form-fields';
 import { auditActor, type Principal } from '@/lib/auth/principal';
 import { env } from '@/lib/env';
 import { parseUpload } from '@/lib/ingest/parse-upload';
+import { combinedSha, removeOriginals, storeOriginals } from './originals';
 import { IngestError, type ColumnMap, type ParsedUpload } from '@/lib/ingest/types';
 import { ACCURACY_CLASSES, DEFAULT_SIGMA_M, type AccuracyClass } from '@/lib/records/accuracy-classes';
 import { originalsStore } from '@/lib/storage/originals-store';
@@ -38,18 +39,8 @@ const columnMapSchema = z
   .partial()
   .strict();
 
-const jsonField = <T extends z.ZodType>(schema: T, example: string) =>
-  z.string().transform((s, ctx) => {
-    try {
-      return JSON.parse(s) as unknown;
-    } catch {
-      ctx.addIssue({ code: 'custom', message: `must be JSON, e.g. ${example}` });
-      return z.NEVER;
-    }
-  }).pipe(schema);
-
 const settingsShape = {
-  crs: z.string().trim().regex(/^EPSG:\d{4,6}$/i, 'Give the coordinate system as EPSG:<code>, e.g. EPSG:25833.').transform((s) => s.toUpperCase()).optional(),
+  crs: epsgField.optional(),
   accuracy: z.enum(ACCURACY_CLASSES).optional(),
   surveyDate: z.iso.date('Give the survey date as YYYY-MM-DD.').optional(),
   crew: z.string().trim().max(200).optional(),
@@ -73,12 +64,6 @@ const REFUSED_UNSTORED = new Set(['empty_file', 'unknown_format', 'unsupported_f
 
 export function sigmaFor(project: Project, cls: AccuracyClass): number {
   return project.accuracySigmas[cls] ?? DEFAULT_SIGMA_M[cls];
-}
-
-function combinedSha(parts: { sha256: string }[]): string {
-  if (parts.length === 1) return parts[0].sha256;
-  // a set of files (loose shapefile parts) is identified by its parts' hashes, in any order
-  return createHash('sha256').update(parts.map((p) => p.sha256).sort().join('\n')).digest('hex');
 }
 
 /** Parses files with the project's catalogue and limits; an IngestError is returned, not thrown. */
@@ -121,8 +106,6 @@ function failure(upload: Upload): AppError {
   return new AppError(err.code as ErrorCode, err.message, details);
 }
 
-const safeName = (n: string) => n.replace(/[^A-Za-z0-9._-]/g, '_').slice(-120) || 'file';
-
 /**
  * Takes a received multipart upload: refuses empty and unknown files without a trace, returns the existing
  * upload for bytes the project already has, else stores the originals, parses them and writes the upload
@@ -155,13 +138,8 @@ export async function receiveUpload(db: Knex, actor: Principal, project: Project
 
   const id = randomUUID();
   const accuracyClass = settings.accuracy ?? project.defaultAccuracyClass;
-  const stored: UploadFile[] = [];
+  const stored = await storeOriginals(`uploads/${project.id}/${id}`, parts, files.map((f) => f.bytes));
   try {
-    for (const [i, p] of parts.entries()) {
-      const storageKey = `uploads/${project.id}/${id}/${i}-${safeName(p.fileName)}`;
-      await originalsStore().put(storageKey, files[i].bytes);
-      stored.push({ fileName: p.fileName, storageKey, sha256: p.sha256, sizeBytes: p.size });
-    }
     const outcome = outcomeOf(result);
     const inserted = await db.transaction(async (trx) => {
       const won = await insertUploadOnce(
@@ -184,11 +162,11 @@ export async function receiveUpload(db: Knex, actor: Principal, project: Project
       return true;
     });
     if (!inserted) {
-      await Promise.all(stored.map((f) => originalsStore().remove(f.storageKey)));
+      await removeOriginals(stored);
       return { upload: (await findUploadBySha(db, project.id, sha256))!, created: false };
     }
   } catch (err) {
-    await Promise.all(stored.map((f) => originalsStore().remove(f.storageKey)));
+    await removeOriginals(stored);
     throw err;
   }
   const upload = (await getUpload(db, id))!;

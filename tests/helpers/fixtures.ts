@@ -23,3 +23,18 @@ export async function count(db: Knex, table: string): Promise<number> {
   const [{ n }] = await db(table).count<{ n: number }[]>('* as n');
   return Number(n);
 }
+
+/** How many files lie below a folder (0 when it does not exist): "nothing half-stored" is asserted on it. */
+export async function countFiles(dir: string): Promise<number> {
+  const { readdir } = await import('node:fs/promises');
+  const path = await import('node:path');
+  let n = 0;
+  const walk = async (d: string) => {
+    for (const e of await readdir(d, { withFileTypes: true }).catch(() => [])) {
+      if (e.isDirectory()) await walk(path.join(d, e.name));
+      else n++;
+    }
+  };
+  await walk(dir);
+  return n;
+}

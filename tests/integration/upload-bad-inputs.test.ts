@@ -1,4 +1,3 @@
-import { readdir } from 'node:fs/promises';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb, getDb } from '@/db/client';
@@ -8,7 +7,7 @@ import type { Principal } from '@/lib/auth/principal';
 import { createProject, createProjectSchema } from '@/lib/services/projects';
 import { receiveUpload } from '@/lib/services/uploads';
 import { BAD, loadFixture } from '../fixtures/ingest/bad-inputs';
-import { count, makePrincipal } from '../helpers/fixtures';
+import { count, countFiles, makePrincipal } from '../helpers/fixtures';
 import { formOf } from '../helpers/upload-form';
 
 // the limits the fixtures were made against (zip-big-honest inflates past 1 MB; zip-many-entries has 1001)
@@ -20,18 +19,7 @@ const db = getDb();
 let surveyor: Principal;
 let project: Project;
 
-async function storedFiles(): Promise<number> {
-  let n = 0;
-  const walk = async (d: string) => {
-    for (const e of await readdir(d, { withFileTypes: true }).catch(() => [])) {
-      if (e.isDirectory()) await walk(path.join(d, e.name));
-      else n++;
-    }
-  };
-  await walk(process.env.STORAGE_DIR!);
-  return n;
-}
-const snapshot = async () => ({ uploads: await count(db, 'uploads'), files: await count(db, 'upload_files'), features: await count(db, 'upload_features'), stored: await storedFiles() });
+const snapshot = async () => ({ uploads: await count(db, 'uploads'), files: await count(db, 'upload_files'), features: await count(db, 'upload_features'), stored: await countFiles(process.env.STORAGE_DIR!) });
 
 // refused before anything is kept: the request leaves no trace
 const UNSTORED = new Set(['empty_file', 'unknown_format', 'unsupported_format']);

@@ -1,4 +1,3 @@
-import { readdir } from 'node:fs/promises';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb, getDb } from '@/db/client';
@@ -10,7 +9,7 @@ import type { Principal } from '@/lib/auth/principal';
 import { changeProject, createProject, createProjectSchema } from '@/lib/services/projects';
 import { receiveUpload, retryUpload, withdrawUpload } from '@/lib/services/uploads';
 import { originalsStore } from '@/lib/storage/originals-store';
-import { count, makePrincipal } from '../helpers/fixtures';
+import { count, countFiles, makePrincipal } from '../helpers/fixtures';
 import { formOf, gpxTrack } from '../helpers/upload-form';
 
 process.env.STORAGE_DIR ??= path.resolve(__dirname, '../../.data/test-storage');
@@ -19,21 +18,9 @@ let surveyor: Principal;
 let project: Project;
 let other: Project;
 
-async function storedFileCount(): Promise<number> {
-  const root = process.env.STORAGE_DIR!;
-  let n = 0;
-  const walk = async (d: string) => {
-    for (const e of await readdir(d, { withFileTypes: true }).catch(() => [])) {
-      if (e.isDirectory()) await walk(path.join(d, e.name));
-      else n++;
-    }
-  };
-  await walk(root);
-  return n;
-}
 
 async function snapshot() {
-  return { uploads: await count(db, 'uploads'), features: await count(db, 'upload_features'), files: await count(db, 'upload_files'), stored: await storedFileCount() };
+  return { uploads: await count(db, 'uploads'), features: await count(db, 'upload_features'), files: await count(db, 'upload_files'), stored: await countFiles(process.env.STORAGE_DIR!) };
 }
 
 async function send(files: { name: string; bytes: Buffer | string }[], fields: Record<string, string> = {}, p = project) {

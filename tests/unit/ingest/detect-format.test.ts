@@ -1,20 +1,12 @@
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { assertSafeXml, decodeText, detectFormat, IngestError, SUPPORTED_FORMATS } from '@/lib/ingest';
+import { assertSafeXml, decodeText, detectFormat, SUPPORTED_FORMATS } from '@/lib/ingest';
+import { ingestError } from '../../helpers/ingest-errors';
 
 const IN = path.join(__dirname, '../../fixtures/ingest/in');
 const file = (name: string, as = name) => ({ name: as, bytes: readFileSync(path.join(IN, name)) });
 
-function ingestError(fn: () => unknown): IngestError {
-  try {
-    fn();
-  } catch (e) {
-    if (e instanceof IngestError) return e;
-    throw e;
-  }
-  throw new Error('expected an IngestError');
-}
 
 describe('detectFormat looks at content, not names', () => {
   it.each([

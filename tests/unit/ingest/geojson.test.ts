@@ -2,23 +2,15 @@ import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { closeDb } from '@/db/client';
-import { IngestError, parseGeoJson, type ParsedLine } from '@/lib/ingest';
+import { parseGeoJson, type ParsedLine } from '@/lib/ingest';
 import { ingestOptions } from '../../helpers/crs-from-db';
+import { ingestErrorAsync as ingestError } from '../../helpers/ingest-errors';
 
 const IN = path.join(__dirname, '../../fixtures/ingest/in');
 const text = (name: string) => readFileSync(path.join(IN, name), 'utf8');
 
 afterAll(() => closeDb());
 
-async function ingestError(fn: () => Promise<unknown>): Promise<IngestError> {
-  try {
-    await fn();
-  } catch (e) {
-    if (e instanceof IngestError) return e;
-    throw e;
-  }
-  throw new Error('expected an IngestError');
-}
 
 describe('parseGeoJson', () => {
   it('reads a FeatureCollection: multi-geometries split into parts, polygons and null geometries skipped', async () => {

@@ -4,20 +4,12 @@ import { gpx as togeojsonGpx } from '@tmcw/togeojson';
 import { DOMParser } from '@xmldom/xmldom';
 import type { Feature, LineString, MultiLineString } from 'geojson';
 import { describe, expect, it } from 'vitest';
-import { decodeText, IngestError, parseGpx, type ParsedLine, type ParsedPoint } from '@/lib/ingest';
+import { decodeText, parseGpx, type ParsedLine, type ParsedPoint } from '@/lib/ingest';
+import { ingestError } from '../../helpers/ingest-errors';
 
 const IN = path.join(__dirname, '../../fixtures/ingest/in');
 const text = (name: string) => decodeText(readFileSync(path.join(IN, name)));
 
-function ingestError(fn: () => unknown): IngestError {
-  try {
-    fn();
-  } catch (e) {
-    if (e instanceof IngestError) return e;
-    throw e;
-  }
-  throw new Error('expected an IngestError');
-}
 
 /** A GPX with `tracks` tracks of `segments` segments of `n` points each, with ele and time. */
 function generatedGpx(tracks: number, segments: number, n: number): string {

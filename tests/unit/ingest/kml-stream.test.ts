@@ -4,6 +4,7 @@ import { beforeEach, describe, expect, it, vi } from 'vitest';
 import { decodeText, IngestError, readZip, type ParsedLine, type ParsedUpload } from '@/lib/ingest';
 import { KML_STREAM_THRESHOLD, parseKml, parseKmlDom } from '@/lib/ingest/parse-kml';
 import { parseKmlStream } from '@/lib/ingest/parse-kml-stream';
+import { ingestError } from '../../helpers/ingest-errors';
 
 // the real streaming parser, wrapped so that the tests can see which path parseKml took
 vi.mock('@/lib/ingest/parse-kml-stream', async (importOriginal) => {
@@ -15,15 +16,6 @@ const IN = path.join(__dirname, '../../fixtures/ingest/in');
 const fixture = (name: string) => decodeText(readFileSync(path.join(IN, name)));
 const limits = { maxInflatedBytes: 20 * 1024 * 1024, maxZipEntries: 1000 };
 
-function ingestError(fn: () => unknown): IngestError {
-  try {
-    fn();
-  } catch (e) {
-    if (e instanceof IngestError) return e;
-    throw e;
-  }
-  throw new Error('expected an IngestError');
-}
 
 /** Every place where two values differ; numbers may differ by less than 1e-12. */
 function differences(a: unknown, b: unknown, at = '$', out: string[] = []): string[] {

@@ -1,21 +1,13 @@
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { decodeText, IngestError, parseKml, parseKmz, type ParsedLine, type ParsedPoint } from '@/lib/ingest';
+import { decodeText, parseKml, parseKmz, type ParsedLine, type ParsedPoint } from '@/lib/ingest';
+import { ingestErrorAsync as ingestError } from '../../helpers/ingest-errors';
 
 const IN = path.join(__dirname, '../../fixtures/ingest/in');
 const bytes = (name: string) => readFileSync(path.join(IN, name));
 const limits = { maxInflatedBytes: 20 * 1024 * 1024, maxZipEntries: 1000 };
 
-async function ingestError(fn: () => unknown): Promise<IngestError> {
-  try {
-    await fn();
-  } catch (e) {
-    if (e instanceof IngestError) return e;
-    throw e;
-  }
-  throw new Error('expected an IngestError');
-}
 
 describe('parseKml', () => {
   const upload = parseKml(decodeText(bytes('kml-mixed.kml')));

@@ -2,23 +2,15 @@ import { readFileSync, readdirSync } from 'node:fs';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { closeDb } from '@/db/client';
-import { IngestError, parseShapefile, parseZippedShapefile, prjMismatch, prjToEpsg, type ParsedLine, type ParsedPoint } from '@/lib/ingest';
+import { parseShapefile, parseZippedShapefile, prjMismatch, prjToEpsg, type ParsedLine, type ParsedPoint } from '@/lib/ingest';
 import { crsFromDb, ingestOptions } from '../../helpers/crs-from-db';
+import { ingestErrorAsync as ingestError } from '../../helpers/ingest-errors';
 
 const IN = path.join(__dirname, '../../fixtures/ingest/in');
 const dir = (d: string) => readdirSync(path.join(IN, d)).map((name) => ({ name, bytes: readFileSync(path.join(IN, d, name)) }));
 
 afterAll(() => closeDb());
 
-async function ingestError(fn: () => Promise<unknown>): Promise<IngestError> {
-  try {
-    await fn();
-  } catch (e) {
-    if (e instanceof IngestError) return e;
-    throw e;
-  }
-  throw new Error('expected an IngestError');
-}
 
 // the WGS 84 coordinates make-fixtures.ts gave ogr2ogr, which wrote them in EPSG:32633
 const LINE_A = [[15.0012345, 52.1012345, 40.25], [15.0023456, 52.1023456, 40.5], [15.0034567, 52.1029999, 40.75], [15.0045678, 52.1041111, 41.0]];

@@ -2,23 +2,15 @@ import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { closeDb } from '@/db/client';
-import { decodeText, guessColumns, IngestError, parseSurveyCsv, type ParsedLine, type ParsedPoint } from '@/lib/ingest';
+import { decodeText, guessColumns, parseSurveyCsv, type ParsedLine, type ParsedPoint } from '@/lib/ingest';
 import { ingestOptions } from '../../helpers/crs-from-db';
+import { ingestErrorAsync as ingestError } from '../../helpers/ingest-errors';
 
 const IN = path.join(__dirname, '../../fixtures/ingest/in');
 const text = (name: string) => decodeText(readFileSync(path.join(IN, name)));
 
 afterAll(() => closeDb());
 
-async function ingestError(fn: () => Promise<unknown>): Promise<IngestError> {
-  try {
-    await fn();
-  } catch (e) {
-    if (e instanceof IngestError) return e;
-    throw e;
-  }
-  throw new Error('expected an IngestError');
-}
 
 describe('parseSurveyCsv: EPSG:25832 with line ids', () => {
   it('joins rows by line id in file order, with per-point id/code/fix/rms and times', async () => {

@@ -2,21 +2,13 @@ import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import zlib from 'node:zlib';
 import { describe, expect, it } from 'vitest';
-import { IngestError, listZipNames, readZip } from '@/lib/ingest';
+import { listZipNames, readZip } from '@/lib/ingest';
+import { ingestErrorAsync as ingestError } from '../../helpers/ingest-errors';
 
 const IN = path.join(__dirname, '../../fixtures/ingest/in');
 const bytes = (name: string) => readFileSync(path.join(IN, name));
 const limits = { maxInflatedBytes: 20 * 1024 * 1024, maxZipEntries: 1000 };
 
-async function ingestError(fn: () => Promise<unknown>): Promise<IngestError> {
-  try {
-    await fn();
-  } catch (e) {
-    if (e instanceof IngestError) return e;
-    throw e;
-  }
-  throw new Error('expected an IngestError');
-}
 
 describe('readZip', () => {
   it('returns file entries, skipping directories', async () => {
