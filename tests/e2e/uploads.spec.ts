@@ -97,3 +97,29 @@ test('a survey CSV gets a column check with a preview, then lands once the coord
   await expect(item).toContainText('stored');
   await expect(item).toContainText('3 points');
 });
+
+test('a surveyor replaces an upload with a corrected file, then withdraws the correction', async ({ page }) => {
+  await signIn(page, DEMO.surveyor);
+  await openUploads(page);
+  const stamp = Date.now();
+  await drop(page, [{ name: `first-try-${stamp}.gpx`, text: gpxTrack(40, { seed: stamp % 99991 }) }]);
+  const item = page.getByTestId('upload-item').filter({ hasText: `first-try-${stamp}.gpx` });
+  await expect(item).toContainText('stored');
+  await item.getByRole('link', { name: 'details' }).click();
+  await expect(page.getByRole('heading', { name: `first-try-${stamp}.gpx` })).toBeVisible();
+  const firstUrl = page.url();
+
+  await page.getByLabel('Corrected file').setInputFiles({ name: `corrected-${stamp}.gpx`, mimeType: 'application/gpx+xml', buffer: Buffer.from(gpxTrack(41, { seed: stamp % 99991 })) });
+  await expect(page.getByRole('heading', { name: `corrected-${stamp}.gpx` })).toBeVisible();
+  await page.goto(firstUrl);
+  await expect(page.getByText('superseded', { exact: true })).toBeVisible();
+  await expect(page.getByText('Superseded by')).toBeVisible();
+
+  await page.getByRole('link', { name: 'a corrected upload' }).click();
+  await page.getByRole('button', { name: 'Withdraw' }).click();
+  await page.getByRole('button', { name: 'Withdraw upload' }).click();
+  await expect(page.getByText('Say why the upload is withdrawn.')).toBeVisible();
+  await page.getByLabel('Why is it withdrawn?').fill('walked the wrong side of the street');
+  await page.getByRole('button', { name: 'Withdraw upload' }).click();
+  await expect(page.getByText('withdrawn', { exact: true })).toBeVisible();
+});
