@@ -1,0 +1,221 @@
+import { cumulativeChainage, lineLengthM, localFrame, pointAtChainage } from './chainage';
+import type { RouteObservations, SectionDraft, SectionOptions, SectionStatus } from './section-types';
+import type { LonLat } from './types';
+
+/** 95 % radius of a circular normal error with σ per axis [computed: sqrt(−2 ln 0.05)]. */
+const R95 = 2.4477;
+/** two-sided 95 % normal quantile */
+const Z95 = 1.96;
+/** a 10 % trimmed mean's standard error is about 1.03 times the mean's, for normal noise */
+const TRIM_EFFICIENCY = 1.03;
+/** the standard error of a sample median is about √(π/2) ≈ 1.2533 times the mean's, for normal noise */
+const MEDIAN_EFFICIENCY = 1.2533;
+/** the stricter level a whole deviating run must pass (99.7 %) */
+const Z_RUN = 3;
+
+interface Bin {
+  source: number; // index into sources, -1 when nothing observed
+  anomaly: number; // bias-corrected smoothed lateral offset (m, + left)
+  baseline: number; // the neighbourhood's offset the anomaly is measured from (m)
+  se: number; // its standard error (m)
+  residualBias: number; // the part of se that more fixes cannot shrink (m)
+  deviates: boolean;
+}
+
+/** Mean without the extreme tenth at either end: nearly the mean's power, and one wild fix cannot move it. */
+function trimmedMean(xs: number[]): number {
+  const s = [...xs].sort((a, b) => a - b);
+  const k = Math.floor(s.length * 0.1);
+  const kept = s.slice(k, s.length - k);
+  return kept.reduce((n, x) => n + x, 0) / kept.length;
+}
+
+const quantile = (xs: number[], q: number) => {
+  if (xs.length === 0) return 0;
+  const s = [...xs].sort((a, b) => a - b);
+  return s[Math.min(s.length - 1, Math.max(0, Math.ceil(q * s.length) - 1))];
+};
+const median = (xs: number[]) => quantile(xs, 0.5);
+
+/**
+ * Where the source saw a built trench: consecutive observations no further apart along the route than
+ * `bridgeM`. Each end is widened by `endMarginM`, because the last fix of a noisy walk falls short of the
+ * real end as often as it overshoots it.
+ */
+export function observedIntervals(fixes: RouteObservations['fixes'], bridgeM: number, endMarginM = 0): [number, number][] {
+  const raw: [number, number][] = [];
+  for (let i = 1; i < fixes.length; i++) {
+    const a = fixes[i - 1].chainageM;
+    const b = fixes[i].chainageM;
+    if (Math.abs(b - a) <= bridgeM) raw.push([Math.min(a, b) - endMarginM, Math.max(a, b) + endMarginM]);
+  }
+  raw.sort((x, y) => x[0] - y[0]);
+  const out: [number, number][] = [];
+  for (const r of raw) {
+    const last = out[out.length - 1];
+    if (last && r[0] <= last[1]) last[1] = Math.max(last[1], r[1]);
+    else out.push([r[0], r[1]]);
+  }
+  return out;
+}
+
+/** A point `offsetM` to the left (+) or right (−) of the route at `chainageM`, e.g. the as-built line beside the plan. */
+export function offsetPoint(coords: LonLat[], chainageM: number, offsetM: number): LonLat {
+  const length = lineLengthM(coords);
+  const p = pointAtChainage(coords, chainageM);
+  const a = pointAtChainage(coords, Math.max(0, chainageM - 0.5));
+  const b = pointAtChainage(coords, Math.min(length, chainageM + 0.5));
+  const f = localFrame(p);
+  const [ax, ay] = f.toXY(a);
+  const [bx, by] = f.toXY(b);
+  const n = Math.hypot(bx - ax, by - ay) || 1;
+  // metres per degree at p, from the frame itself, to step back from metres to degrees
+  const kx = f.toXY([p[0] + 1e-4, p[1]])[0] / 1e-4;
+  const ky = f.toXY([p[0], p[1] + 1e-4])[1] / 1e-4;
+  const [nx, ny] = [-(by - ay) / n, (bx - ax) / n];
+  return [p[0] + (nx * offsetM) / kx, p[1] + (ny * offsetM) / ky];
+}
+
+/** The planned line between two chainages, with its vertices. */
+export function subLine(coords: LonLat[], from: number, to: number): LonLat[] {
+  const chain = cumulativeChainage(coords);
+  const out: LonLat[] = [pointAtChainage(coords, from)];
+  for (let i = 0; i < coords.length; i++) if (chain[i] > from && chain[i] < to) out.push(coords[i]);
+  out.push(pointAtChainage(coords, to));
+  return out;
+}
+
+const margin = (s: RouteObservations, o: Required<SectionOptions>) => (s.surveyGrade ? 0 : Math.min(s.sigmaM, o.bridgeM / 2));
+
+function smoothBins(route: LonLat[], length: number, sources: RouteObservations[], o: Required<SectionOptions>): Bin[] {
+  const nb = Math.max(1, Math.ceil(length));
+  const covered = sources.map((s) => observedIntervals(s.fixes, o.bridgeM, margin(s, o)));
+  const sorted = sources.map((s) => [...s.fixes].sort((a, b) => a.chainageM - b.chainageM));
+  const bins: Bin[] = [];
+  for (let i = 0; i < nb; i++) {
+    const c = Math.min(length, i + 0.5);
+    // the most accurate source that saw this metre wins; the others are not counted again
+    let best = -1;
+    for (let k = 0; k < sources.length; k++) {
+      if (!covered[k].some(([a, b]) => c >= a - 0.5 && c <= b + 0.5)) continue;
+      if (best < 0 || sources[k].sigmaM < sources[best].sigmaM) best = k;
+    }
+    if (best < 0) {
+      bins.push({ source: -1, anomaly: 0, baseline: 0, se: 0, residualBias: 0, deviates: false });
+      continue;
+    }
+    const s = sources[best];
+    const fx = sorted[best];
+    const w = s.surveyGrade ? Math.max(1, o.windowM / 10) : o.windowM;
+    const near = fx.filter((f) => Math.abs(f.chainageM - c) <= w);
+    const local = near.length ? near : [fx.reduce((p, f) => (Math.abs(f.chainageM - c) < Math.abs(p.chainageM - c) ? f : p))];
+    const centre = trimmedMean(local.map((f) => f.offsetM));
+    let anomaly = centre;
+    let baseline = 0;
+    let residualBias = 0;
+    let se = (TRIM_EFFICIENCY * s.sigmaM) / Math.sqrt(local.length);
+    if (!s.surveyGrade) {
+      // the GNSS bias drifts over a minute or so: measure the offset against its wider neighbourhood,
+      // and allow for how far the bias can wander within that neighbourhood's time span
+      // the ring around the window, not the window itself, so that a detour does not pull its own baseline
+      const wideFixes = fx.filter((f) => Math.abs(f.chainageM - c) <= 4 * o.windowM);
+      const ring = wideFixes.filter((f) => Math.abs(f.chainageM - c) > 2 * o.windowM);
+      const basis = ring.length >= 5 ? ring : wideFixes;
+      baseline = median(basis.map((f) => f.offsetM));
+      anomaly = centre - baseline;
+      const times = wideFixes.map((f) => f.t).filter((t): t is number => t !== null);
+      const span = times.length > 1 ? Math.max(...times) - Math.min(...times) : 8 * w;
+      // over a span T much shorter than τ the bias moves like a random walk with diffusion 2σ²/τ, so its
+      // distance from its own average over the span has variance σ²·T/(3τ); beyond that it is plain σ²
+      const drift = o.biasSigmaM * Math.sqrt(Math.min(1, span / (3 * o.biasTauS)));
+      // the baseline is itself a median of noisy fixes: its error does not shrink with the window's fixes
+      const baselineSe = (MEDIAN_EFFICIENCY * s.sigmaM) / Math.sqrt(basis.length);
+      residualBias = Math.hypot(drift, baselineSe);
+      se = Math.sqrt(se * se + residualBias * residualBias);
+    }
+    const deviates = Math.abs(anomaly) > o.toleranceM && Math.abs(anomaly) - o.toleranceM > Z95 * se;
+    bins.push({ source: best, anomaly, baseline, se, residualBias, deviates });
+  }
+  // Each candidate run is tested once more as a whole, at a stricter level: a route has many metres, and
+  // a per-metre test alone would flag chance runs of noise. A real detour has many fixes and passes.
+  for (let i = 0; i < bins.length; ) {
+    let j = i;
+    while (j < bins.length && bins[j].deviates === bins[i].deviates && bins[j].source === bins[i].source) j++;
+    if (bins[i].deviates) {
+      const s = sources[bins[i].source];
+      const run = sorted[bins[i].source].filter((f) => f.chainageM >= i && f.chainageM <= j);
+      const anomalies = run.map((f) => f.offsetM - bins[Math.min(bins.length - 1, Math.max(0, Math.floor(f.chainageM)))].baseline);
+      const m = anomalies.length ? trimmedMean(anomalies) : 0;
+      const rb = Math.max(...bins.slice(i, j).map((b) => b.residualBias));
+      const seRun = Math.sqrt(((TRIM_EFFICIENCY * s.sigmaM) ** 2) / Math.max(1, anomalies.length) + rb * rb);
+      const real = j - i >= o.minRunM && Math.abs(m) - o.toleranceM > Z_RUN * seRun;
+      if (!real) for (let k = i; k < j; k++) bins[k].deviates = false;
+    }
+    i = j;
+  }
+  return bins;
+}
+
+/**
+ * The as-built sections of one planned route from every upload matched onto it: built intervals by
+ * chainage; `as_planned` where the observations agree with the plan within their noise (the line is the
+ * planned line), `deviates` where they depart consistently beyond the tolerance (the line follows the
+ * smoothed observations), survey-grade sources' measured line where they are the best source, and
+ * `not_built` where nothing was observed.
+ *
+ * buildRouteSections({ ref: 'R-1', coords }, [{ uploadId, sigmaM: 4, surveyGrade: false, laidOn, fixes }], { toleranceM: 0.5 })
+ */
+export function buildRouteSections(route: { ref: string; coords: LonLat[] }, sources: RouteObservations[], opts: SectionOptions): SectionDraft[] {
+  const o: Required<SectionOptions> = { biasSigmaM: 1, biasTauS: 60, bridgeM: 60, windowM: 8, minRunM: 6, ...opts };
+  const length = lineLengthM(route.coords);
+  const bins = smoothBins(route.coords, length, sources, o);
+  const drafts: SectionDraft[] = [];
+  for (let i = 0; i < bins.length; ) {
+    let j = i;
+    while (j < bins.length && bins[j].source === bins[i].source && bins[j].deviates === bins[i].deviates) j++;
+    const from = i;
+    const to = Math.min(length, j);
+    const run = bins.slice(i, j);
+    const src = run[0].source >= 0 ? sources[run[0].source] : null;
+    const status: SectionStatus = !src ? 'not_built' : run[0].deviates ? 'deviates' : 'as_planned';
+    let coords: LonLat[];
+    let offsets: number[];
+    let accuracyM: number;
+    if (!src) {
+      coords = subLine(route.coords, from, to);
+      offsets = [];
+      accuracyM = 0;
+    } else if (src.surveyGrade) {
+      const pts = src.fixes.filter((f) => f.chainageM >= from && f.chainageM <= to).sort((a, b) => a.chainageM - b.chainageM);
+      coords = pts.length >= 2 ? pts.map((f) => offsetPoint(route.coords, f.chainageM, f.offsetM)) : subLine(route.coords, from, to);
+      offsets = pts.map((f) => Math.abs(f.offsetM));
+      accuracyM = R95 * src.sigmaM;
+    } else if (status === 'deviates') {
+      coords = run.map((b, k) => offsetPoint(route.coords, Math.min(length, from + k + 0.5), b.anomaly));
+      coords.unshift(offsetPoint(route.coords, from, run[0].anomaly));
+      coords.push(offsetPoint(route.coords, to, run[run.length - 1].anomaly));
+      offsets = run.map((b) => Math.abs(b.anomaly));
+      accuracyM = R95 * median(run.map((b) => b.se));
+    } else {
+      coords = subLine(route.coords, from, to);
+      offsets = run.map((b) => Math.abs(b.anomaly));
+      accuracyM = R95 * median(run.map((b) => b.se));
+    }
+    const contributing = src ? sources.filter((s) => observedIntervals(s.fixes, o.bridgeM, margin(s, o)).some(([a, b]) => a < to && b > from)) : [];
+    drafts.push({
+      ref: route.ref,
+      fromChainageM: from,
+      toChainageM: to,
+      status,
+      coords,
+      lengthM: lineLengthM(coords),
+      maxOffsetM: offsets.length ? Math.max(...offsets) : 0,
+      p95OffsetM: quantile(offsets, 0.95),
+      accuracyM,
+      sourceUploadIds: [...new Set(contributing.map((s) => s.uploadId))].sort(),
+      laidOn: src?.laidOn ?? null,
+    });
+    i = j;
+  }
+  return drafts;
+}

@@ -1,0 +1,45 @@
+import type { LonLat } from './types';
+
+export type SectionStatus = 'as_planned' | 'deviates' | 'unplanned' | 'not_built';
+
+/** Observations of one upload matched onto one planned route, in time (or survey line) order. */
+export interface RouteObservations {
+  uploadId: string;
+  /** per-axis horizontal σ of the source (m, 1-sigma) */
+  sigmaM: number;
+  /** RTK or total station: the measured line is authoritative */
+  surveyGrade: boolean;
+  laidOn: string | null;
+  fixes: { chainageM: number; offsetM: number; t: number | null }[];
+}
+
+/** A stretch of the as-built record before it is given a lasting id. */
+export interface SectionDraft {
+  ref: string | null;
+  fromChainageM: number;
+  toChainageM: number;
+  status: SectionStatus;
+  coords: LonLat[];
+  lengthM: number;
+  maxOffsetM: number;
+  p95OffsetM: number;
+  /** 95 % horizontal radius of the as-built line's position (m) */
+  accuracyM: number;
+  sourceUploadIds: string[];
+  laidOn: string | null;
+}
+
+export interface SectionOptions {
+  /** the project's lateral tolerance (m) */
+  toleranceM: number;
+  /** slowly varying GNSS bias per axis (m, 1-sigma) of non-survey sources */
+  biasSigmaM?: number;
+  /** its correlation time (s) */
+  biasTauS?: number;
+  /** observations this far apart along a route (m) still count as one built stretch: a signal gap, not a gap in the trench */
+  bridgeM?: number;
+  /** half-width of the smoothing window along the route (m) */
+  windowM?: number;
+  /** shortest run that can be its own deviating stretch (m) */
+  minRunM?: number;
+}
