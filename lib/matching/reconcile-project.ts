@@ -1,0 +1,97 @@
+import { buildRouteSections } from './build-sections';
+import { lineLengthM } from './chainage';
+import { matchTrace } from './match-trace';
+import type { Fix } from './match-types';
+import { buildRouteGraph } from './route-graph';
+import type { RouteObservations, SectionDraft } from './section-types';
+import type { LonLat, PlannedRouteInput } from './types';
+
+const R95 = 2.4477;
+
+/** One upload as the matcher takes it: its lines and point runs as traces, with its accuracy. */
+export interface UploadTraces {
+  uploadId: string;
+  sigmaM: number;
+  surveyGrade: boolean;
+  laidOn: string | null;
+  traces: Fix[][];
+}
+
+export interface ReconcileStats {
+  fixes: number;
+  matched: number;
+  outliers: number;
+  unplannedRuns: number;
+  pieces: number;
+}
+
+/** Moving average over ±k positions: the unplanned stretch's line from its noisy fixes. */
+function smooth(points: LonLat[], k: number): LonLat[] {
+  if (k === 0) return points;
+  return points.map((_, i) => {
+    const w = points.slice(Math.max(0, i - k), i + k + 1);
+    return [w.reduce((n, p) => n + p[0], 0) / w.length, w.reduce((n, p) => n + p[1], 0) / w.length] as LonLat;
+  });
+}
+
+/**
+ * The whole reconciliation of a project, as plain data: every upload's traces matched onto the planned
+ * network (hidden Markov model), then the sections of each route from all uploads together, plus the
+ * stretches that fit no route as unplanned sections. Deterministic: the same input gives the same drafts.
+ *
+ * const { drafts } = reconcileProject(routes, uploads, { toleranceM: 0.5 })
+ */
+export function reconcileProject(
+  routes: PlannedRouteInput[],
+  uploads: UploadTraces[],
+  opts: { toleranceM: number; onProgress?: (fraction: number) => void },
+): { drafts: SectionDraft[]; stats: ReconcileStats } {
+  const graph = buildRouteGraph(routes);
+  const byRoute = new Map<string, RouteObservations[]>();
+  const drafts: SectionDraft[] = [];
+  const stats: ReconcileStats = { fixes: 0, matched: 0, outliers: 0, unplannedRuns: 0, pieces: 0 };
+  const sorted = [...uploads].sort((a, b) => a.uploadId.localeCompare(b.uploadId));
+  for (const [u, up] of sorted.entries()) {
+    for (const trace of up.traces) {
+      if (trace.length < 2) continue;
+      // the matcher compares fixes with the PLAN, which the trench may leave by up to a few metres:
+      // its noise term covers the source's own error and that expected departure
+      const sigmaM = Math.hypot(up.sigmaM, Math.max(opts.toleranceM, 1));
+      const result = matchTrace(trace, routes, graph, { sigmaM });
+      stats.fixes += trace.length;
+      stats.matched += result.matched.length;
+      stats.outliers += result.outliers.length;
+      stats.pieces += result.pieces;
+      const time = new Map(trace.map((f) => [f.seq, f.t]));
+      const perRef = new Map<string, RouteObservations['fixes']>();
+      for (const m of result.matched) {
+        const list = perRef.get(m.ref) ?? [];
+        list.push({ chainageM: m.chainageM, offsetM: m.offsetM, t: time.get(m.seq) ?? null });
+        perRef.set(m.ref, list);
+      }
+      for (const [ref, fixes] of perRef) {
+        const list = byRoute.get(ref) ?? [];
+        list.push({ uploadId: up.uploadId, sigmaM: up.sigmaM, surveyGrade: up.surveyGrade, laidOn: up.laidOn, fixes });
+        byRoute.set(ref, list);
+      }
+      for (const run of result.unmatched) {
+        const k = up.surveyGrade ? 0 : 3;
+        const coords = smooth(run.map((f) => [f.lon, f.lat] as LonLat), k);
+        const lengthM = lineLengthM(coords);
+        if (lengthM < 2) continue;
+        stats.unplannedRuns++;
+        const bias = up.surveyGrade ? 0 : 1;
+        drafts.push({
+          ref: null, fromChainageM: 0, toChainageM: lengthM, status: 'unplanned', coords, lengthM,
+          maxOffsetM: 0, p95OffsetM: 0, accuracyM: R95 * Math.sqrt((up.sigmaM * up.sigmaM) / (2 * k + 1) + bias * bias),
+          sourceUploadIds: [up.uploadId], laidOn: up.laidOn,
+        });
+      }
+    }
+    opts.onProgress?.((u + 1) / Math.max(1, sorted.length));
+  }
+  for (const r of [...routes].sort((a, b) => a.ref.localeCompare(b.ref))) {
+    drafts.push(...buildRouteSections(r, byRoute.get(r.ref) ?? [], { toleranceM: opts.toleranceM }));
+  }
+  return { drafts, stats };
+}

@@ -1,0 +1,92 @@
+/** The most likely state sequence of a layered hidden Markov model, in log space (Viterbi 1967). */
+
+export interface ViterbiResult {
+  /** the chosen state (candidate index) in each layer */
+  path: Int32Array;
+  /** layers where a chain starts: 0, and every layer no state of the previous one could reach */
+  chainStarts: number[];
+  /** sum over chains of the best chain's log probability */
+  logProb: number;
+}
+
+/**
+ * Best path through `counts.length` layers of `counts[k]` states each. `emission(k, j)` is the log probability of
+ * state j of layer k, `transition(k, i, j)` that of moving from state i of layer k − 1 to state j of layer k.
+ * A layer that no state can reach (every transition −Infinity, or every emission −Infinity) starts a new chain,
+ * as Newson & Krumm (2009) restart the HMM after a break: the chain before it ends at its own best state.
+ * Every layer needs at least one state.
+ * `viterbi([2, 2], (k, j) => (j === k ? 0 : -5), () => 0).path` → `Int32Array [0, 1]`
+ */
+export function viterbi(
+  counts: ArrayLike<number>,
+  emission: (layer: number, state: number) => number,
+  transition: (layer: number, from: number, to: number) => number,
+): ViterbiResult {
+  const n = counts.length;
+  const offset = new Int32Array(n + 1);
+  let widest = 0;
+  for (let k = 0; k < n; k++) {
+    if (!(counts[k] >= 1)) throw new RangeError(`viterbi: layer ${k} has no states`);
+    offset[k + 1] = offset[k] + counts[k];
+    widest = Math.max(widest, counts[k]);
+  }
+  // back[offset[k] + j]: best predecessor of state j in layer k; −1 where layer k starts a chain
+  const back = new Int32Array(offset[n]);
+  let prev = new Float64Array(widest);
+  let cur = new Float64Array(widest);
+  const chainStarts: number[] = [];
+  /** the best final state of the chain ending just before each chain start */
+  const chainEnds: number[] = [];
+  let logProb = 0;
+  const argmax = (a: Float64Array, m: number) => {
+    let b = 0;
+    for (let j = 1; j < m; j++) if (a[j] > a[b]) b = j;
+    return b;
+  };
+  for (let k = 0; k < n; k++) {
+    const m = counts[k];
+    let reachable = false;
+    if (k > 0) {
+      const pm = counts[k - 1];
+      for (let j = 0; j < m; j++) {
+        const e = emission(k, j);
+        let best = -Infinity;
+        let from = -1;
+        if (e !== -Infinity) {
+          for (let i = 0; i < pm; i++) {
+            if (prev[i] === -Infinity) continue;
+            const s = prev[i] + transition(k, i, j);
+            if (s > best) (best = s), (from = i);
+          }
+        }
+        cur[j] = best + e;
+        back[offset[k] + j] = from;
+        if (from >= 0 && cur[j] !== -Infinity) reachable = true;
+      }
+    }
+    if (!reachable) {
+      if (k > 0) {
+        const end = argmax(prev, counts[k - 1]);
+        chainEnds.push(end);
+        if (prev[end] !== -Infinity) logProb += prev[end];
+      }
+      chainStarts.push(k);
+      for (let j = 0; j < m; j++) (cur[j] = emission(k, j)), (back[offset[k] + j] = -1);
+    }
+    [prev, cur] = [cur, prev];
+  }
+  const path = new Int32Array(n);
+  if (n === 0) return { path, chainStarts, logProb: 0 };
+  let state = argmax(prev, counts[n - 1]);
+  if (prev[state] !== -Infinity) logProb += prev[state];
+  let chain = chainStarts.length - 1;
+  for (let k = n - 1; k >= 0; k--) {
+    path[k] = state;
+    if (k === chainStarts[chain]) {
+      // crossing into the previous chain: continue from its own best end
+      if (chain > 0) state = chainEnds[chain - 1];
+      chain--;
+    } else state = back[offset[k] + state];
+  }
+  return { path, chainStarts, logProb };
+}
