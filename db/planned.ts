@@ -136,3 +136,7 @@ export async function deriveExtentFromPlan(db: Db, projectId: string): Promise<v
     [projectId, projectId],
   );
 }
+
+export async function hasCurrentPlan(db: Db, projectId: string): Promise<boolean> {
+  return (await db('planned_routes').where({ project_id: projectId }).whereNull('removed_in_version').first('id')) !== undefined;
+}

@@ -3,6 +3,7 @@ import { getJob } from '@/db/jobs';
 import { getUserRow } from '@/db/users';
 import { getApiToken } from '@/db/api-tokens';
 import { getUpload } from '@/db/uploads';
+import { getSection } from '@/db/sections';
 import { isUuid, type Scope } from './with-route';
 
 /** A job belongs to its project. */
@@ -33,4 +34,11 @@ export async function byUploadParam(params: Record<string, string>, db: Db): Pro
   if (!isUuid(params.uploadId) || !isUuid(params.projectId)) return undefined;
   const upload = await getUpload(db, params.uploadId);
   return upload && upload.projectId === params.projectId ? { projectId: upload.projectId } : undefined;
+}
+
+/** A section belongs to its project. */
+export async function bySectionParam(params: Record<string, string>, db: Db): Promise<Scope | undefined> {
+  if (!isUuid(params.sectionId)) return undefined;
+  const section = await getSection(db, params.sectionId);
+  return section && { projectId: section.projectId };
 }

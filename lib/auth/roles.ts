@@ -33,6 +33,9 @@ export const PERMISSIONS = {
   'crs.read': ALL,
   'plan.read': ALL,
   'plan.import': ['admin', 'engineer'],
+  'reconcile.run': ['admin', 'engineer'],
+  'section.read': ALL,
+  'section.review': ['admin', 'engineer'],
 } as const satisfies Record<string, readonly Role[]>;
 
 export type Action = keyof typeof PERMISSIONS;

@@ -1,6 +1,7 @@
 import type { Knex } from 'knex';
 import type { Action } from '@/lib/auth/roles';
 import { exportAuditLog } from './audit-export';
+import { reconcileJob } from './reconcile-job';
 
 export interface JobContext {
   db: Knex;
@@ -22,6 +23,7 @@ export interface JobKindSpec {
 /** Every kind of background job; a pg-boss queue of the same name exists for each. */
 export const JOB_KINDS = {
   'audit-export': { run: exportAuditLog, action: 'audit.export' },
+  reconcile: { run: reconcileJob, action: 'reconcile.run' },
 } satisfies Record<string, JobKindSpec>;
 
 export type JobKind = keyof typeof JOB_KINDS;

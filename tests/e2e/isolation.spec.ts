@@ -25,6 +25,8 @@ interface Ctx {
   foreignUploadId: string;
   failedUploadId: string;
   spareUploadId: string;
+  sectionId: string;
+  foreignSectionId: string;
   spareTokenId: (req: APIRequestContext) => Promise<string>;
 }
 
@@ -229,6 +231,28 @@ const MATRIX: Record<string, Row | PublicRow> = {
     }),
     success: 201,
   },
+  'POST /api/projects/[projectId]/reconcile': {
+    url: (c) => `/api/projects/${c.projectId}/reconcile`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/reconcile`,
+    denied: 'surveyor',
+    allowed: 'engineer',
+    success: 202,
+  },
+  'GET /api/projects/[projectId]/sections': {
+    url: (c) => `/api/projects/${c.projectId}/sections?format=geojson`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/sections`,
+    denied: ALL_ROLES,
+    allowed: 'owner',
+    success: 200,
+  },
+  'POST /api/sections/[sectionId]/review': {
+    url: (c) => `/api/sections/${c.sectionId}/review`,
+    foreign: (c) => `/api/sections/${c.foreignSectionId}/review`,
+    denied: 'surveyor',
+    allowed: 'engineer',
+    body: () => ({ decision: 'approve', comment: 'isolation matrix' }),
+    success: 200,
+  },
   'GET /api/crs': { url: () => '/api/crs?q=25832', foreign: NO_OBJECT, denied: ALL_ROLES, allowed: 'surveyor', success: 200 },
   'GET /api/audit': { url: () => '/api/audit', foreign: NO_OBJECT, denied: 'maintenance', allowed: 'admin', success: 200 },
 };
@@ -296,7 +320,20 @@ test.beforeAll(async ({ request }) => {
   const csv = `pt,easting,northing\n1,507200.0,5773400.0\n2,507201.0,5773401.${Date.now() % 1000}\n`;
   const failed = await up(tokens.surveyor, projectId, { multipart: { file: { name: 'no-crs.csv', mimeType: 'text/csv', buffer: Buffer.from(csv) } } });
   expect([upload.status, spareUpload.status, foreignUpload.status, failed.status]).toEqual([201, 201, 201, 422]);
+  // a plan and a reconciliation run on both sides, so that there are sections to ask about
+  const designForm = (ref: string) => ({ multipart: { file: { name: 'd.geojson', mimeType: 'application/geo+json', buffer: Buffer.from(JSON.stringify({ type: 'Feature', properties: { ref }, geometry: { type: 'LineString', coordinates: [[9.105, 52.105], [9.1055, 52.1052]] } })) } } });
+  expect((await json(request, 'POST', `/api/projects/${projectId}/planned`, tokens.engineer, designForm('ISO-1'))).status).toBe(201);
+  expect((await json(request, 'POST', `/api/projects/${fp.body!.project.id}/planned`, foreignToken, designForm('ISO-F'))).status).toBe(201);
+  const sectionsOf = async (pid: string, token: string) => {
+    const job = await json<{ job: { id: string } }>(request, 'POST', `/api/projects/${pid}/reconcile`, token);
+    await expect.poll(async () => (await json<{ job: { status: string } }>(request, 'GET', `/api/jobs/${job.body!.job.id}`, token)).body!.job.status, { timeout: 30_000 }).toBe('completed');
+    return (await json<{ sections: { id: string }[] }>(request, 'GET', `/api/projects/${pid}/sections`, token)).body!.sections;
+  };
+  const ownSections = await sectionsOf(projectId, tokens.engineer);
+  const foreignSections = await sectionsOf(fp.body!.project.id, foreignToken);
   ctx = {
+    sectionId: ownSections[0].id,
+    foreignSectionId: foreignSections[0].id,
     uploadId: upload.body!.upload!.id,
     spareUploadId: spareUpload.body!.upload!.id,
     foreignUploadId: foreignUpload.body!.upload!.id,

@@ -6,7 +6,11 @@ export default async function ProjectLayout({ children, params }: { children: Re
   const { projectId } = await params;
   const { me, project } = await requireProjectPage(projectId);
   const base = `/projects/${project.id}`;
-  const items = [{ href: `${base}/plan`, label: 'Planned network' }, { href: `${base}/uploads`, label: 'Uploads' }];
+  const items = [
+    { href: `${base}/plan`, label: 'Planned network' },
+    { href: `${base}/uploads`, label: 'Uploads' },
+    { href: `${base}/reconciliation`, label: 'Planned against built' },
+  ];
   if (can(me.role, 'project.manage')) items.push({ href: `${base}/settings`, label: 'Settings' });
   if (can(me.role, 'audit.read')) items.push({ href: `${base}/activity`, label: 'Activity log' });
   return (

@@ -1,0 +1,107 @@
+import type { Metadata } from 'next';
+import { getDb } from '@/db/client';
+import { listCurrentSections } from '@/db/sections';
+import { requireProjectPage } from '@/lib/auth/page-guards';
+import { can } from '@/lib/auth/roles';
+import { formatLength } from '@/lib/records/units';
+import { plannedFeatureCollection } from '@/lib/services/planned';
+import { sectionFeature, sectionTotals } from '@/lib/services/reconcile';
+import { DataTable } from '@/components/ui/data-table';
+import { Card, PageHeader } from '@/components/ui/primitives';
+import { GeoMap, type MapLayer } from '@/components/map/geo-map';
+import { JobButton } from '@/components/forms/job-button';
+import { SectionReview } from '@/components/forms/section-review';
+
+export const metadata: Metadata = { title: 'Planned against built' };
+
+// Okabe–Ito colours: distinguishable under the common colour-vision deficiencies
+export const STATUS_STYLE = {
+  as_planned: { colour: '#009e73', label: 'as planned', tone: 'ok' },
+  deviates: { colour: '#e69f00', label: 'deviates', tone: 'warn' },
+  unplanned: { colour: '#cc79a7', label: 'unplanned', tone: 'info' },
+  not_built: { colour: '#999999', label: 'not built', tone: 'muted' },
+} as const;
+
+export default async function ReconciliationPage({ params }: { params: Promise<{ projectId: string }> }) {
+  const { projectId } = await params;
+  const { me, project } = await requireProjectPage(projectId, 'section.read');
+  const db = getDb();
+  const [sections, planned] = await Promise.all([listCurrentSections(db, project.id), plannedFeatureCollection(db, project.id, false)]);
+  const totals = sectionTotals(sections);
+  const features = sections.map(sectionFeature);
+  const layers: MapLayer[] = [
+    { id: 'planned', data: planned, colour: '#0072b2', dashed: true, width: 2 },
+    ...(Object.keys(STATUS_STYLE) as (keyof typeof STATUS_STYLE)[]).map((st) => ({
+      id: st,
+      data: { type: 'FeatureCollection' as const, features: features.filter((f) => f.properties.status === st) },
+      colour: STATUS_STYLE[st].colour,
+      width: st === 'not_built' ? 2 : 4,
+      dashed: st === 'not_built',
+    })),
+  ];
+  const unit = project.unitSystem;
+  const reviewer = can(me.role, 'section.review');
+  return (
+    <>
+      <PageHeader
+        title="Planned against built"
+        subtitle={`${formatLength(totals.builtM, unit)} built of ${formatLength(totals.plannedM, unit)} planned (${(totals.coverage * 100).toFixed(1)} %); ${formatLength(totals.laidM, unit)} laid including unplanned stretches.`}
+        actions={can(me.role, 'reconcile.run') ? <JobButton startUrl={`/api/projects/${project.id}/reconcile`} label="Reconcile now" resultLabel="" /> : undefined}
+      />
+      <div className="space-y-6">
+        <GeoMap label="Map of planned routes and built sections" layers={layers} height={480} />
+        <ul className="flex flex-wrap gap-4 text-xs" aria-label="Legend">
+          <li className="flex items-center gap-1"><span className="inline-block h-0.5 w-6 border-t-2 border-dashed border-[#0072b2]" /> planned route</li>
+          {Object.values(STATUS_STYLE).map((s) => (
+            <li key={s.label} className="flex items-center gap-1"><span className="inline-block h-1 w-6" style={{ background: s.colour }} /> {s.label}</li>
+          ))}
+        </ul>
+        <Card title="Sections" actions={<a href={`/api/projects/${project.id}/sections?format=csv`}>Download CSV</a>}>
+          <DataTable
+            label="Sections"
+            empty="No sections yet: import the plan, upload what was laid, then reconcile."
+            columns={[
+              { key: 'route', label: 'Route' },
+              { key: 'street', label: 'Street' },
+              { key: 'from', label: 'From', align: 'right' },
+              { key: 'to', label: 'To', align: 'right' },
+              { key: 'length', label: 'Length', align: 'right' },
+              { key: 'status', label: 'Status' },
+              { key: 'max', label: 'Max offset', align: 'right' },
+              { key: 'p95', label: 'P95 offset', align: 'right' },
+              { key: 'acc', label: 'Accuracy (95 %)', align: 'right' },
+              { key: 'sources', label: 'Sources', align: 'right' },
+              { key: 'laid', label: 'Laid on' },
+              { key: 'review', label: 'Review' },
+            ]}
+            rows={sections.map((s) => {
+              const street = planned.features.find((f) => f.properties.ref === s.plannedRouteRef)?.properties.street ?? '';
+              return {
+                id: s.id,
+                cells: {
+                  route: s.plannedRouteRef ?? '—',
+                  street,
+                  from: { text: formatLength(s.fromChainageM, unit), sort: s.fromChainageM },
+                  to: { text: formatLength(s.toChainageM, unit), sort: s.toChainageM },
+                  length: { text: formatLength(s.lengthM, unit), sort: s.lengthM },
+                  status: { text: STATUS_STYLE[s.status].label, tone: STATUS_STYLE[s.status].tone },
+                  max: { text: formatLength(s.maxOffsetM, unit), sort: s.maxOffsetM },
+                  p95: { text: formatLength(s.p95OffsetM, unit), sort: s.p95OffsetM },
+                  acc: { text: s.status === 'not_built' ? '—' : formatLength(s.accuracyM, unit), sort: s.accuracyM },
+                  sources: s.sourceUploadIds.length,
+                  laid: s.laidOn ?? '—',
+                  review: { text: s.review, tone: s.review === 'approved' ? 'ok' : s.review === 'rejected' ? 'bad' : 'muted' },
+                },
+              };
+            })}
+          />
+        </Card>
+        {reviewer && sections.some((s) => s.status !== 'not_built') && (
+          <Card title="Review">
+            <SectionReview sections={sections.filter((s) => s.status !== 'not_built').map((s) => ({ id: s.id, label: `${s.plannedRouteRef ?? 'unplanned'} ${s.fromChainageM.toFixed(0)}–${s.toChainageM.toFixed(0)} m (${STATUS_STYLE[s.status].label})`, review: s.review }))} />
+          </Card>
+        )}
+      </div>
+    </>
+  );
+}
