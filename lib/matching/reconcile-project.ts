@@ -8,6 +8,9 @@ import type { LonLat, PlannedRouteInput } from './types';
 
 const R95 = 2.4477;
 
+/** Matching is CPU work; between traces it lets the process serve other requests (the web server runs jobs too). */
+const breathe = () => new Promise<void>((resolve) => setImmediate(resolve));
+
 /** One upload as the matcher takes it: its lines and point runs as traces, with its accuracy. */
 export interface UploadTraces {
   uploadId: string;
@@ -39,13 +42,13 @@ function smooth(points: LonLat[], k: number): LonLat[] {
  * network (hidden Markov model), then the sections of each route from all uploads together, plus the
  * stretches that fit no route as unplanned sections. Deterministic: the same input gives the same drafts.
  *
- * const { drafts } = reconcileProject(routes, uploads, { toleranceM: 0.5 })
+ * const { drafts } = await reconcileProject(routes, uploads, { toleranceM: 0.5 })
  */
-export function reconcileProject(
+export async function reconcileProject(
   routes: PlannedRouteInput[],
   uploads: UploadTraces[],
   opts: { toleranceM: number; onProgress?: (fraction: number) => void },
-): { drafts: SectionDraft[]; stats: ReconcileStats } {
+): Promise<{ drafts: SectionDraft[]; stats: ReconcileStats }> {
   const graph = buildRouteGraph(routes);
   const byRoute = new Map<string, RouteObservations[]>();
   const drafts: SectionDraft[] = [];
@@ -54,6 +57,7 @@ export function reconcileProject(
   for (const [u, up] of sorted.entries()) {
     for (const trace of up.traces) {
       if (trace.length < 2) continue;
+      await breathe();
       // the matcher compares fixes with the PLAN, which the trench may leave by up to a few metres:
       // its noise term covers the source's own error and that expected departure
       const sigmaM = Math.hypot(up.sigmaM, Math.max(opts.toleranceM, 1));
@@ -90,7 +94,8 @@ export function reconcileProject(
     }
     opts.onProgress?.((u + 1) / Math.max(1, sorted.length));
   }
-  for (const r of [...routes].sort((a, b) => a.ref.localeCompare(b.ref))) {
+  for (const [i, r] of [...routes].sort((a, b) => a.ref.localeCompare(b.ref)).entries()) {
+    if (i % 50 === 0) await breathe();
     drafts.push(...buildRouteSections(r, byRoute.get(r.ref) ?? [], { toleranceM: opts.toleranceM }));
   }
   return { drafts, stats };

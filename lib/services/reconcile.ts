@@ -51,7 +51,7 @@ export async function runReconciliation(db: Knex, projectId: string, jobId: stri
   const routes = await listPlannedRoutes(db, projectId);
   const uploads = await loadTraces(db, projectId);
   await progress(0.1, `Matching ${uploads.length} uploads onto ${routes.length} routes`);
-  const { drafts, stats } = reconcileProject(routes, uploads, { toleranceM: project.lateralToleranceM });
+  const { drafts, stats } = await reconcileProject(routes, uploads, { toleranceM: project.lateralToleranceM });
   await progress(0.8, `Writing ${drafts.length} sections`);
   return db.transaction(async (trx) => {
     const run = await nextReconcileRun(trx, projectId);

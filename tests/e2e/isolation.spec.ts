@@ -25,7 +25,7 @@ interface Ctx {
   foreignUploadId: string;
   failedUploadId: string;
   spareUploadId: string;
-  sectionId: string;
+  currentSectionId: (req: APIRequestContext) => Promise<string>;
   foreignSectionId: string;
   spareTokenId: (req: APIRequestContext) => Promise<string>;
 }
@@ -246,7 +246,8 @@ const MATRIX: Record<string, Row | PublicRow> = {
     success: 200,
   },
   'POST /api/sections/[sectionId]/review': {
-    url: (c) => `/api/sections/${c.sectionId}/review`,
+    // resolved when the test runs: a later plan revision in this file may retire the sections seen at the start
+    url: () => '/api/sections/CURRENT/review',
     foreign: (c) => `/api/sections/${c.foreignSectionId}/review`,
     denied: 'surveyor',
     allowed: 'engineer',
@@ -321,18 +322,19 @@ test.beforeAll(async ({ request }) => {
   const failed = await up(tokens.surveyor, projectId, { multipart: { file: { name: 'no-crs.csv', mimeType: 'text/csv', buffer: Buffer.from(csv) } } });
   expect([upload.status, spareUpload.status, foreignUpload.status, failed.status]).toEqual([201, 201, 201, 422]);
   // a plan and a reconciliation run on both sides, so that there are sections to ask about
+  // unique bytes each time: Playwright runs this hook again in a fresh worker after a failure
   const designForm = (ref: string) => ({ multipart: { file: { name: 'd.geojson', mimeType: 'application/geo+json', buffer: Buffer.from(JSON.stringify({ type: 'Feature', properties: { ref }, geometry: { type: 'LineString', coordinates: [[9.105, 52.105], [9.1055, 52.1052]] } })) } } });
-  expect((await json(request, 'POST', `/api/projects/${projectId}/planned`, tokens.engineer, designForm('ISO-1'))).status).toBe(201);
-  expect((await json(request, 'POST', `/api/projects/${fp.body!.project.id}/planned`, foreignToken, designForm('ISO-F'))).status).toBe(201);
+  expect((await json(request, 'POST', `/api/projects/${projectId}/planned`, tokens.engineer, designForm(`ISO-${Date.now()}`))).status).toBe(201);
+  expect((await json(request, 'POST', `/api/projects/${fp.body!.project.id}/planned`, foreignToken, designForm(`ISO-F-${Date.now()}`))).status).toBe(201);
   const sectionsOf = async (pid: string, token: string) => {
     const job = await json<{ job: { id: string } }>(request, 'POST', `/api/projects/${pid}/reconcile`, token);
     await expect.poll(async () => (await json<{ job: { status: string } }>(request, 'GET', `/api/jobs/${job.body!.job.id}`, token)).body!.job.status, { timeout: 30_000 }).toBe('completed');
     return (await json<{ sections: { id: string }[] }>(request, 'GET', `/api/projects/${pid}/sections`, token)).body!.sections;
   };
-  const ownSections = await sectionsOf(projectId, tokens.engineer);
+  expect((await sectionsOf(projectId, tokens.engineer)).length).toBeGreaterThan(0);
   const foreignSections = await sectionsOf(fp.body!.project.id, foreignToken);
   ctx = {
-    sectionId: ownSections[0].id,
+    currentSectionId: async (req) => (await json<{ sections: { id: string }[] }>(req, 'GET', `/api/projects/${projectId}/sections`, tokens.engineer)).body!.sections[0].id,
     foreignSectionId: foreignSections[0].id,
     uploadId: upload.body!.upload!.id,
     spareUploadId: spareUpload.body!.upload!.id,
@@ -368,6 +370,7 @@ for (const [key, row] of Object.entries(MATRIX)) {
     const method = key.split(' ')[0];
     let url = row.url(ctx);
     if (url.endsWith('/SPARE')) url = url.replace('SPARE', await ctx.spareTokenId(request));
+    if (url.includes('/CURRENT/')) url = url.replace('CURRENT', await ctx.currentSectionId(request));
     const body = row.body?.(ctx);
 
     const anon = await json<{ error: { code: string } }>(request, method, url, null, body);

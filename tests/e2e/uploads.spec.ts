@@ -110,7 +110,8 @@ test('a surveyor replaces an upload with a corrected file, then withdraws the co
   const firstUrl = page.url();
 
   await page.getByLabel('Corrected file').setInputFiles({ name: `corrected-${stamp}.gpx`, mimeType: 'application/gpx+xml', buffer: Buffer.from(gpxTrack(41, { seed: stamp % 99991 })) });
-  await expect(page.getByRole('heading', { name: `corrected-${stamp}.gpx` })).toBeVisible();
+  // the server may be reconciling the project at the same moment; allow it a few seconds
+  await expect(page.getByRole('heading', { name: `corrected-${stamp}.gpx` })).toBeVisible({ timeout: 20_000 });
   await page.goto(firstUrl);
   await expect(page.getByText('superseded', { exact: true })).toBeVisible();
   await expect(page.getByText('Superseded by')).toBeVisible();
