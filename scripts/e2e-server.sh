@@ -10,7 +10,7 @@ bash scripts/db.sh recreatedb trenchbook_e2e
 export DATABASE_URL="$(bash scripts/db.sh url trenchbook_e2e)"
 export NEXTAUTH_URL="http://127.0.0.1:$E2E_PORT"
 export NEXTAUTH_SECRET="${NEXTAUTH_SECRET:-e2e-secret-not-for-production}"
-export EXPORTS_DIR="$here/.data/e2e-exports"
+export EXPORTS_DIR="$here/.data/e2e-exports" STORAGE_DIR="$here/.data/e2e-storage"
 # small limits so the sign-in limit can be seen to trip and recover within a test
 export SIGNIN_MAX_PER_EMAIL=3 SIGNIN_WINDOW_SECONDS=8 SIGNIN_MAX_PER_IP=1000
 npm run --silent db:migrate

@@ -88,7 +88,7 @@ export function DataTable({ columns, rows, label, empty = 'Nothing here yet.' }:
                 {columns.map((c) => {
                   const cell = r.cells[c.key] ?? null;
                   return (
-                    <td key={c.key} className={`px-3 py-2 align-top ${c.align === 'right' ? 'text-right tabular-nums' : ''}`}>
+                    <td key={c.key} className={`px-3 py-2 align-top ${c.align === 'right' ? 'whitespace-nowrap text-right tabular-nums' : ''}`}>
                       {cell !== null && typeof cell === 'object' ? (
                         cell.href ? (
                           <Link href={cell.href}>{cell.text}</Link>
