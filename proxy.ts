@@ -5,5 +5,5 @@ import { withAuth } from 'next-auth/middleware';
 export default withAuth({ pages: { signIn: '/sign-in' } });
 
 export const config = {
-  matcher: ['/((?!api|_next/static|_next/image|favicon.ico|sign-in|welcome|brand).*)'],
+  matcher: ['/((?!api|_next/static|_next/image|favicon.svg|sign-in|welcome).*)'],
 };

@@ -5,6 +5,7 @@ import './globals.css';
 export const metadata: Metadata = {
   title: { default: 'Trenchbook', template: '%s · Trenchbook' },
   description: 'The as-laid record of micro-trenched fibre duct networks.',
+  icons: { icon: '/favicon.svg' },
 };
 
 export const viewport: Viewport = { width: 'device-width', initialScale: 1 };
