@@ -10,6 +10,11 @@ import { createProject, createProjectSchema } from '@/lib/services/projects';
 import { reviewSection, runReconciliation, sectionFeature } from '@/lib/services/reconcile';
 import { receiveUpload } from '@/lib/services/uploads';
 import { makePrincipal } from '../helpers/fixtures';
+import { writeSectionsWorkbook } from '@/lib/services/sections-workbook';
+import { execFileSync } from 'node:child_process';
+import { createWriteStream } from 'node:fs';
+import { finished } from 'node:stream/promises';
+import os from 'node:os';
 import { formOf } from '../helpers/upload-form';
 
 process.env.STORAGE_DIR = path.resolve(__dirname, '../../.data/test-storage-reconcile');
@@ -159,5 +164,28 @@ describe('reconciliation', () => {
     const audit = await db('audit_log').where({ project_id: project.id, object_id: s.id, action: 'review_reset' });
     expect(audit).toHaveLength(1);
     expect(audit[0].after.reason).toMatch(/changed the section's geometry/);
+  });
+
+  it('exports the sections as an Excel workbook that an independent reader opens', async () => {
+    const sections = await listCurrentSections(db, project.id);
+    const file = path.join(os.tmpdir(), `sections-${Date.now()}.xlsx`);
+    const out = createWriteStream(file);
+    await writeSectionsWorkbook(sections, new Map([['E-1', 'Ferrous Street'], ['N-1', 'Kilnfield Way']]), out);
+    await finished(out);
+    // Debian's python3-openpyxl, under Debian's /usr/bin/python3, reads the file: the independent side of this check
+    const script = [
+      'import json, sys, openpyxl',
+      'ws = openpyxl.load_workbook(sys.argv[1]).active',
+      'rows = list(ws.iter_rows(values_only=True))',
+      'print(json.dumps({"title": ws.title, "header": rows[0], "n": len(rows) - 1, "first": [str(type(v).__name__) for v in rows[1]], "laid": [str(r[11]) for r in rows[1:]]}))',
+    ].join('\n');
+    const got = JSON.parse(execFileSync('/usr/bin/python3', ['-c', script, file], { encoding: 'utf8' }));
+    expect(got.title).toBe('Sections');
+    expect(got.n).toBe(sections.length);
+    expect(got.header.slice(0, 7)).toEqual(['Section id', 'Route', 'Street', 'From (m)', 'To (m)', 'Length (m)', 'Status']);
+    // numbers stay numbers; the laid date is a date cell (OOXML serial dates, ECMA-376)
+    expect(got.first[3]).toMatch(/^(int|float)$/);
+    const dated = sections.findIndex((x) => x.laidOn !== null);
+    expect(got.laid[dated]).toBe(`${sections[dated].laidOn} 00:00:00`);
   });
 });

@@ -56,7 +56,15 @@ export default async function ReconciliationPage({ params }: { params: Promise<{
             <li key={s.label} className="flex items-center gap-1"><span className="inline-block h-1 w-6" style={{ background: s.colour }} /> {s.label}</li>
           ))}
         </ul>
-        <Card title="Sections" actions={<a href={`/api/projects/${project.id}/sections?format=csv`}>Download CSV</a>}>
+        <Card
+          title="Sections"
+          actions={
+            <span className="flex gap-3 text-sm">
+              <a href={`/api/projects/${project.id}/sections?format=csv`}>Download CSV</a>
+              <a href={`/api/projects/${project.id}/sections?format=xlsx`}>Download Excel</a>
+            </span>
+          }
+        >
           <DataTable
             label="Sections"
             empty="No sections yet: import the plan, upload what was laid, then reconcile."
