@@ -15,6 +15,13 @@ test('an engineer reconciles the project and reads planned against built', async
   await expect(page.getByText(/built of .* planned/)).toBeVisible();
   await page.waitForFunction(() => (window as unknown as { __map?: { loaded: boolean } }).__map?.loaded === true);
 
+  for (const [name, type, magic] of [['Download CSV', 'text/csv', 'id,plannedRouteRef'], ['Download Excel', 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet', 'PK']] as const) {
+    const res = await page.request.get((await page.getByRole('link', { name }).getAttribute('href'))!);
+    expect(res.status()).toBe(200);
+    expect(res.headers()['content-type']).toContain(type);
+    expect((await res.body()).subarray(0, magic.length).toString('latin1')).toBe(magic);
+  }
+
   // review: a rejection needs a reason
   await page.getByRole('button', { name: 'Reject' }).click();
   await expect(page.getByText('Say why the section is rejected.')).toBeVisible();
