@@ -334,7 +334,12 @@ test.beforeAll(async ({ request }) => {
   expect((await sectionsOf(projectId, tokens.engineer)).length).toBeGreaterThan(0);
   const foreignSections = await sectionsOf(fp.body!.project.id, foreignToken);
   ctx = {
-    currentSectionId: async (req) => (await json<{ sections: { id: string }[] }>(req, 'GET', `/api/projects/${projectId}/sections`, tokens.engineer)).body!.sections[0].id,
+    // earlier rows' uploads queue reconciliations that may retire sections: run one to its end first
+    currentSectionId: async (req) => {
+      const job = await json<{ job: { id: string } }>(req, 'POST', `/api/projects/${projectId}/reconcile`, tokens.engineer);
+      await expect.poll(async () => (await json<{ job: { status: string } }>(req, 'GET', `/api/jobs/${job.body!.job.id}`, tokens.engineer)).body!.job.status, { timeout: 30_000 }).toBe('completed');
+      return (await json<{ sections: { id: string }[] }>(req, 'GET', `/api/projects/${projectId}/sections`, tokens.engineer)).body!.sections[0].id;
+    },
     foreignSectionId: foreignSections[0].id,
     uploadId: upload.body!.upload!.id,
     spareUploadId: spareUpload.body!.upload!.id,
