@@ -10,6 +10,7 @@ import { importPlan } from '../../lib/services/planned';
 import { runReconciliation } from '../../lib/services/reconcile';
 import { receiveUpload } from '../../lib/services/uploads';
 import { DEMO_PROJECT, DEMO_USERS } from './01_demo';
+import { mulberry32 } from '../../lib/records/seeded-random';
 
 // The demo's field work in Quillhaven North: a design of four streets and their road crossings, one crew's
 // handheld walk (with a detour around a tree pit on Lanternfield Road), an RTK survey of Cobbler Walk laid
@@ -39,14 +40,7 @@ function design(): string {
 }
 
 function prng(seed: number) {
-  let s = seed >>> 0;
-  const u = () => {
-    s = (s + 0x6d2b79f5) >>> 0;
-    let t = s;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
+  const u = mulberry32(seed);
   return () => Math.sqrt(-2 * Math.log(u() + 1e-12)) * Math.cos(2 * Math.PI * u());
 }
 

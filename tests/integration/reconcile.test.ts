@@ -16,6 +16,7 @@ import { createWriteStream } from 'node:fs';
 import { finished } from 'node:stream/promises';
 import os from 'node:os';
 import { formOf } from '../helpers/upload-form';
+import { mulberry32 } from '@/lib/records/seeded-random';
 
 process.env.STORAGE_DIR = path.resolve(__dirname, '../../.data/test-storage-reconcile');
 const G = geodesic.Geodesic.WGS84;
@@ -42,14 +43,7 @@ const design = (street: string) =>
   });
 
 function rng(seed: number) {
-  let s = seed >>> 0;
-  const u = () => {
-    s = (s + 0x6d2b79f5) >>> 0;
-    let t = s;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
+  const u = mulberry32(seed);
   return () => Math.sqrt(-2 * Math.log(u() + 1e-12)) * Math.cos(2 * Math.PI * u());
 }
 

@@ -3,6 +3,7 @@ import { describe, expect, it } from 'vitest';
 import { buildRouteSections } from '@/lib/matching/build-sections';
 import type { RouteObservations } from '@/lib/matching/section-types';
 import type { LonLat } from '@/lib/matching/types';
+import { mulberry32 } from '@/lib/records/seeded-random';
 
 // Truth is placed and measured with GeographicLib directly (geodesic Direct/Inverse on WGS 84), never with
 // lib/matching: a straight planned route heading due east from a point in the fictional town.
@@ -23,14 +24,7 @@ const dist = (a: LonLat, b: LonLat) => G.Inverse(a[1], a[0], b[1], b[0]).s12!;
 const plan = { ref: 'R-1', coords: [east(0), east(100), east(LENGTH)] };
 
 function rng(seed: number) {
-  let s = seed >>> 0;
-  const u = () => {
-    s = (s + 0x6d2b79f5) >>> 0;
-    let t = s;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
+  const u = mulberry32(seed);
   const normal = () => Math.sqrt(-2 * Math.log(u() + 1e-12)) * Math.cos(2 * Math.PI * u());
   return { u, normal };
 }

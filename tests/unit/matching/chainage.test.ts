@@ -3,22 +3,14 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { closeDb, getDb } from '@/db/client';
 import { cumulativeChainage, lineLengthM, pointAtChainage, projectOntoLine } from '@/lib/matching/chainage';
 import type { LonLat } from '@/lib/matching/types';
+import { mulberry32 } from '@/lib/records/seeded-random';
 
 afterAll(() => closeDb());
 
 const WGS84 = geodesic.Geodesic.WGS84;
 
-/** Deterministic generator (mulberry32), so a failure names the same polyline every run. */
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+// a deterministic generator, so a failure names the same polyline every run
+const rng = mulberry32;
 
 /** A street-like polyline near `origin`: n vertices, 20–200 m apart, turning by up to ±60°. */
 function streetLine(origin: LonLat, n: number, seed: number): LonLat[] {

@@ -10,17 +10,9 @@ export const WGS84 = geodesic.Geodesic.WGS84;
 export const ORIGIN: LonLat = [13.405, 52.52];
 export type XY = [number, number];
 
-/** mulberry32: a small seeded PRNG, uniform in [0, 1). */
-export function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+import { mulberry32 } from '@/lib/records/seeded-random';
+
+export { mulberry32 };
 
 /** Standard normal deviate (Box–Muller). */
 export const gaussian = (rng: () => number) => Math.sqrt(-2 * Math.log(1 - rng())) * Math.cos(2 * Math.PI * rng());
