@@ -277,3 +277,31 @@ export async function uploadFeatureCollection(db: Db, uploadId: string) {
     })),
   };
 }
+
+export interface UploadExclusion {
+  id: number;
+  kind: 'time' | 'distance';
+  /** ISO times for a time range, metres along each trace from its start for a distance range */
+  from: string | number;
+  to: string | number;
+  reason: string;
+}
+
+export async function insertUploadExclusion(db: Db, uploadId: string, e: Omit<UploadExclusion, 'id'>, userId: string): Promise<number> {
+  const [{ id }] = await db('upload_exclusions')
+    .insert({
+      upload_id: uploadId, kind: e.kind, reason: e.reason, created_by: userId,
+      ...(e.kind === 'time' ? { from_time: e.from, to_time: e.to } : { from_m: e.from, to_m: e.to }),
+    })
+    .returning('id');
+  return Number(id);
+}
+
+export async function listUploadExclusions(db: Db, uploadId: string): Promise<UploadExclusion[]> {
+  const rows = await db('upload_exclusions').where({ upload_id: uploadId }).orderBy('id');
+  return rows.map((r) => ({
+    id: Number(r.id), kind: r.kind, reason: r.reason,
+    from: r.kind === 'time' ? r.from_time.toISOString() : r.from_m,
+    to: r.kind === 'time' ? r.to_time.toISOString() : r.to_m,
+  }));
+}

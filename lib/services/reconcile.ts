@@ -9,6 +9,8 @@ import { auditActor, type Principal } from '@/lib/auth/principal';
 import type { Fix } from '@/lib/matching/match-types';
 import { matchSections } from '@/lib/matching/match-sections';
 import { reconcileProject, type UploadTraces } from '@/lib/matching/reconcile-project';
+import { applyExclusions, type Exclusion } from '@/lib/matching/apply-exclusions';
+import { listUploadExclusions } from '@/db/uploads';
 
 const SURVEY_GRADE = new Set(['rtk_gnss', 'total_station']);
 // what is matched onto the plan: the trench line and road crossings; test pits and depth shots are records
@@ -35,7 +37,10 @@ async function loadTraces(db: Knex, projectId: string): Promise<UploadTraces[]> 
     }
     if (points.length >= 2) traces.push(points);
     points = [];
-    out.push({ uploadId: u.id, sigmaM: u.sigma_m, surveyGrade: SURVEY_GRADE.has(u.accuracy_class), laidOn: u.survey_date, traces });
+    const exclusions: Exclusion[] = (await listUploadExclusions(db, u.id)).map((e) =>
+      e.kind === 'time' ? { kind: 'time', fromT: Date.parse(String(e.from)) / 1000, toT: Date.parse(String(e.to)) / 1000 } : { kind: 'distance', fromM: Number(e.from), toM: Number(e.to) },
+    );
+    out.push({ uploadId: u.id, sigmaM: u.sigma_m, surveyGrade: SURVEY_GRADE.has(u.accuracy_class), laidOn: u.survey_date, traces: traces.flatMap((t) => applyExclusions(t, exclusions)) });
   }
   return out;
 }
@@ -148,4 +153,21 @@ export function sectionTotals(sections: import('@/db/sections').Section[]) {
   const builtPlanned = sections.filter((s) => s.status === 'as_planned' || s.status === 'deviates').reduce((n, s) => n + (s.toChainageM - s.fromChainageM), 0);
   const laid = sections.filter((s) => s.status !== 'not_built').reduce((n, s) => n + s.lengthM, 0);
   return { plannedM: round(planned), builtM: round(builtPlanned), laidM: round(laid), coverage: planned > 0 ? round(builtPlanned / planned) : 0 };
+}
+
+export const exclusionSchema = z.discriminatedUnion('kind', [
+  z.object({ kind: z.literal('time'), from: z.iso.datetime({ offset: true, message: 'Give the start as an ISO time, e.g. 2026-11-03T09:40:00Z.' }), to: z.iso.datetime({ offset: true, message: 'Give the end as an ISO time.' }), reason: z.string().trim().min(3, 'Say why this stretch is left out.').max(500) }),
+  z.object({ kind: z.literal('distance'), from: z.number().min(0, 'Metres from the start of each trace, 0 or more.'), to: z.number().min(0), reason: z.string().trim().min(3, 'Say why this stretch is left out.').max(500) }),
+]).refine((e) => (e.kind === 'time' ? Date.parse(e.from) < Date.parse(e.to) : e.from < e.to), { message: 'The range must end after it starts.', path: ['to'] });
+
+/** Keeps a time or distance range of an upload out of matching (the original keeps it), audited, then reconciles. */
+export async function excludeFromMatching(db: Knex, actor: Principal, projectId: string, uploadId: string, input: z.infer<typeof exclusionSchema>) {
+  const { insertUploadExclusion } = await import('@/db/uploads');
+  const id = await db.transaction(async (trx) => {
+    const id = await insertUploadExclusion(trx, uploadId, input, actor.id);
+    await writeAudit(trx, auditActor(actor), { projectId, objectType: 'upload', objectId: uploadId, action: 'exclude_range', after: input });
+    return id;
+  });
+  const job = await requestReconciliation(db, projectId, actor.id);
+  return { exclusion: { id, ...input }, job };
 }

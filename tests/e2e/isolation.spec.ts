@@ -231,6 +231,14 @@ const MATRIX: Record<string, Row | PublicRow> = {
     }),
     success: 201,
   },
+  'POST /api/projects/[projectId]/uploads/[uploadId]/exclusions': {
+    url: (c) => `/api/projects/${c.projectId}/uploads/${c.uploadId}/exclusions`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/uploads/${c.foreignUploadId}/exclusions`,
+    denied: 'surveyor',
+    allowed: 'engineer',
+    body: () => ({ kind: 'distance', from: 0, to: 1, reason: 'isolation matrix' }),
+    success: 201,
+  },
   'POST /api/projects/[projectId]/reconcile': {
     url: (c) => `/api/projects/${c.projectId}/reconcile`,
     foreign: (c) => `/api/projects/${c.foreignProjectId}/reconcile`,

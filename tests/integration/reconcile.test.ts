@@ -7,7 +7,7 @@ import { listCurrentSections } from '@/db/sections';
 import type { Principal } from '@/lib/auth/principal';
 import { importPlan } from '@/lib/services/planned';
 import { createProject, createProjectSchema } from '@/lib/services/projects';
-import { reviewSection, runReconciliation, sectionFeature } from '@/lib/services/reconcile';
+import { excludeFromMatching, exclusionSchema, reviewSection, runReconciliation, sectionFeature } from '@/lib/services/reconcile';
 import { receiveUpload } from '@/lib/services/uploads';
 import { makePrincipal } from '../helpers/fixtures';
 import { writeSectionsWorkbook } from '@/lib/services/sections-workbook';
@@ -181,5 +181,24 @@ describe('reconciliation', () => {
     expect(got.first[3]).toMatch(/^(int|float)$/);
     const dated = sections.findIndex((x) => x.laidOn !== null);
     expect(got.laid[dated]).toBe(`${sections[dated].laidOn} 00:00:00`);
+  });
+
+  it('leaves an excluded stretch of the walks out of matching, keeping the originals', async () => {
+    const builtEast = async () => (await listCurrentSections(db, project.id)).filter((x) => x.plannedRouteRef === 'E-1' && x.status !== 'not_built').reduce((n, x) => n + x.toChainageM - x.fromChainageM, 0);
+    expect(await builtEast()).toBeGreaterThan(140);
+    const walks = await db('uploads').where({ project_id: project.id }).whereIn('file_name', ['walk.gpx', 'walk-again.gpx']).select('id');
+    const files = Number((await db('upload_files').count('* as n'))[0].n);
+    for (const w of walks) {
+      // fix i of each walk is at 09:00:00 + i s and 1.3·i m along E-1: 38–85 s is about 50–110 m of the route
+      await excludeFromMatching(db, engineer, project.id, w.id, exclusionSchema.parse({ kind: 'time', from: '2026-11-05T09:00:38Z', to: '2026-11-05T09:01:25Z', reason: 'walked back to the van' }));
+    }
+    await run();
+    const built = await builtEast();
+    expect(built).toBeLessThan(150 - 45);
+    expect(built).toBeGreaterThan(150 - 75);
+    expect(Number((await db('upload_files').count('* as n'))[0].n)).toBe(files);
+    expect(await db('audit_log').where({ project_id: project.id, action: 'exclude_range' })).toHaveLength(walks.length);
+    expect(exclusionSchema.safeParse({ kind: 'distance', from: 20, to: 10, reason: 'backwards' }).success).toBe(false);
+    expect(exclusionSchema.safeParse({ kind: 'time', from: 'yesterday', to: '2026-11-03T09:00:00Z', reason: 'bad time' }).success).toBe(false);
   });
 });

@@ -1,7 +1,7 @@
 import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
 import { getDb } from '@/db/client';
-import { getUpload, listUploadFiles, uploadFeatureCollection } from '@/db/uploads';
+import { getUpload, listUploadExclusions, listUploadFiles, uploadFeatureCollection } from '@/db/uploads';
 import { isUuid } from '@/lib/api/with-route';
 import { requireProjectPage } from '@/lib/auth/page-guards';
 import { can } from '@/lib/auth/roles';
@@ -13,6 +13,7 @@ import { GeoMap, type MapLayer } from '@/components/map/geo-map';
 import { WithdrawUpload } from '@/components/forms/withdraw-upload';
 import { plannedFeatureCollection } from '@/lib/services/planned';
 import { SupersedeUpload } from '@/components/forms/supersede-upload';
+import { ExcludeRange } from '@/components/forms/exclude-range';
 
 export const metadata: Metadata = { title: 'Upload' };
 
@@ -30,7 +31,7 @@ export default async function UploadPage({ params }: { params: Promise<{ project
   const db = getDb();
   const upload = isUuid(uploadId) ? await getUpload(db, uploadId) : undefined;
   if (!upload || upload.projectId !== project.id) notFound();
-  const [files, geometry, planned] = await Promise.all([listUploadFiles(db, upload.id), uploadFeatureCollection(db, upload.id), plannedFeatureCollection(db, project.id, false)]);
+  const [files, geometry, planned, exclusions] = await Promise.all([listUploadFiles(db, upload.id), uploadFeatureCollection(db, upload.id), plannedFeatureCollection(db, project.id, false), listUploadExclusions(db, upload.id)]);
   const facts: [string, string][] = [
     ['Format', upload.format ?? '—'],
     ['Coordinate system of the file', upload.crs ?? '—'],
@@ -84,6 +85,20 @@ export default async function UploadPage({ params }: { params: Promise<{ project
             </ul>
           </Card>
         </div>
+        {(exclusions.length > 0 || (upload.status === 'stored' && can(me.role, 'reconcile.run'))) && (
+          <Card title="Left out of matching">
+            {exclusions.length > 0 && (
+              <ul className="mb-4 space-y-1 text-sm">
+                {exclusions.map((e) => (
+                  <li key={e.id}>
+                    {e.kind === 'time' ? `${new Date(String(e.from)).toLocaleString('en-GB', { timeZone: project.timeZone })} – ${new Date(String(e.to)).toLocaleString('en-GB', { timeZone: project.timeZone })}` : `${e.from} – ${e.to} m along the trace`}: {e.reason}
+                  </li>
+                ))}
+              </ul>
+            )}
+            {upload.status === 'stored' && can(me.role, 'reconcile.run') && <ExcludeRange projectId={project.id} uploadId={upload.id} />}
+          </Card>
+        )}
         <DataTable
           label="Features"
           columns={[{ key: 'seq', label: '#', align: 'right' }, { key: 'kind', label: 'Kind' }, { key: 'name', label: 'Name' }, { key: 'points', label: 'Points', align: 'right' }, ...attributeKeys.map((k) => ({ key: `a:${k}`, label: k }))]}

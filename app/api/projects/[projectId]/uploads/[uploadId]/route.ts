@@ -1,7 +1,7 @@
 import { z } from 'zod';
 import { withRoute } from '@/lib/api/with-route';
 import { byUploadParam } from '@/lib/api/scopes';
-import { getUpload, listUploadFiles, uploadFeatureCollection } from '@/db/uploads';
+import { getUpload, listUploadExclusions, listUploadFiles, uploadFeatureCollection } from '@/db/uploads';
 import { publicUpload } from '@/lib/services/uploads';
 
 export const GET = withRoute(
@@ -9,7 +9,7 @@ export const GET = withRoute(
   async ({ db, params, query }) => {
     const upload = (await getUpload(db, params.uploadId))!;
     const files = (await listUploadFiles(db, upload.id)).map((f) => ({ fileName: f.fileName, sha256: f.sha256, sizeBytes: f.sizeBytes }));
-    const body: Record<string, unknown> = { upload: { ...publicUpload(upload), files } };
+    const body: Record<string, unknown> = { upload: { ...publicUpload(upload), files, exclusions: await listUploadExclusions(db, upload.id) } };
     if (query.geometry === 'geojson') body.geometry = await uploadFeatureCollection(db, upload.id);
     return body;
   },
