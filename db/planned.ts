@@ -94,7 +94,8 @@ export async function insertRouteHistory(db: Db, routeId: string, version: numbe
 
 /** Takes the project's plan lock for the caller's transaction: versions are numbered one import at a time. */
 export async function lockProjectPlan(db: Db, projectId: string): Promise<number> {
-  await db('projects').where({ id: projectId }).forUpdate().first('id');
+  // NO KEY UPDATE: serialises runs without blocking uploads, whose foreign-key checks take KEY SHARE on the project
+  await db('projects').where({ id: projectId }).forNoKeyUpdate().first('id');
   const row = await db('plan_versions').where({ project_id: projectId }).max<{ max: number | null }[]>('version as max');
   return (row[0]?.max ?? 0) + 1;
 }

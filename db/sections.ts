@@ -79,7 +79,8 @@ export async function setSectionReview(db: Db, id: string, review: 'approved' | 
 
 /** The next run number of the project, under a lock on the project row: one reconciliation at a time. */
 export async function nextReconcileRun(db: Db, projectId: string): Promise<number> {
-  await db('projects').where({ id: projectId }).forUpdate().first('id');
+  // NO KEY UPDATE: serialises runs without blocking uploads, whose foreign-key checks take KEY SHARE on the project
+  await db('projects').where({ id: projectId }).forNoKeyUpdate().first('id');
   const [row] = await db('reconcile_runs').where({ project_id: projectId }).max<{ max: number | null }[]>('run as max');
   return (row?.max ?? 0) + 1;
 }

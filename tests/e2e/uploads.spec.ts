@@ -105,8 +105,11 @@ test('a surveyor replaces an upload with a corrected file, then withdraws the co
   await drop(page, [{ name: `first-try-${stamp}.gpx`, text: gpxTrack(40, { seed: stamp % 99991 }) }]);
   const item = page.getByTestId('upload-item').filter({ hasText: `first-try-${stamp}.gpx` });
   await expect(item).toContainText('stored');
+  await page.evaluate(() => ((window as unknown as { __map?: unknown }).__map = undefined));
   await item.getByRole('link', { name: 'details' }).click();
   await expect(page.getByRole('heading', { name: `first-try-${stamp}.gpx` })).toBeVisible();
+  // the map's first idle proves the page's client components are mounted, so the file input has its handler
+  await page.waitForFunction(() => (window as unknown as { __map?: { loaded: boolean } }).__map?.loaded === true);
   const firstUrl = page.url();
 
   await page.getByLabel('Corrected file').setInputFiles({ name: `corrected-${stamp}.gpx`, mimeType: 'application/gpx+xml', buffer: Buffer.from(gpxTrack(41, { seed: stamp % 99991 })) });
