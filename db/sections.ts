@@ -1,21 +1,12 @@
 import type { Db } from './client';
-import type { SectionDraft, SectionStatus } from '@/lib/matching/section-types';
+import type { SectionDraft } from '@/lib/matching/section-types';
 import type { LonLat } from '@/lib/matching/types';
 
-export interface Section {
+/** A stored section: the draft's measures under a lasting id, with its review and run history. */
+export interface Section extends Omit<SectionDraft, 'ref'> {
   id: string;
   projectId: string;
   plannedRouteRef: string | null;
-  status: SectionStatus;
-  fromChainageM: number;
-  toChainageM: number;
-  coords: LonLat[];
-  lengthM: number;
-  maxOffsetM: number;
-  p95OffsetM: number;
-  accuracyM: number;
-  sourceUploadIds: string[];
-  laidOn: string | null;
   review: 'pending' | 'approved' | 'rejected';
   reviewComment: string;
   derivedFrom: string | null;

@@ -3,14 +3,15 @@ import { z } from 'zod';
 import { writeAudit, type AuditActor } from '@/db/audit';
 import { hasCurrentPlan, listPlannedRoutes } from '@/db/planned';
 import { getProject } from '@/db/projects';
-import { getSection, insertReconcileRun, insertSection, listCurrentSections, nextReconcileRun, retireSections, setSectionReview, updateSectionFromDraft } from '@/db/sections';
+import { getSection, insertReconcileRun, type Section, insertSection, listCurrentSections, nextReconcileRun, retireSections, setSectionReview, updateSectionFromDraft } from '@/db/sections';
 import { AppError } from '@/lib/api/errors';
 import { auditActor, type Principal } from '@/lib/auth/principal';
 import type { Fix } from '@/lib/matching/match-types';
 import { matchSections } from '@/lib/matching/match-sections';
 import { reconcileProject, type UploadTraces } from '@/lib/matching/reconcile-project';
 import { applyExclusions, type Exclusion } from '@/lib/matching/apply-exclusions';
-import { listUploadExclusions } from '@/db/uploads';
+import { insertUploadExclusion, listUploadExclusions } from '@/db/uploads';
+import { getJob } from '@/db/jobs';
 
 const SURVEY_GRADE = new Set(['rtk_gnss', 'total_station']);
 // what is matched onto the plan: the trench line and road crossings; test pits and depth shots are records
@@ -111,8 +112,8 @@ export async function reviewSection(db: Knex, actor: Principal, sectionId: strin
 
 /** Queues a reconciliation unless one is already waiting: uploads in quick succession share one run. */
 export async function requestReconciliation(db: Knex, projectId: string, requestedBy: string | null) {
+  // loaded here, not at the top: the job kinds import this module, and the queue imports the kinds
   const { enqueueJob } = await import('@/lib/jobs/queue');
-  const { getJob } = await import('@/db/jobs');
   const waiting = await db('jobs').where({ project_id: projectId, kind: 'reconcile', status: 'queued' }).orderBy('created_at').first('id');
   if (waiting) return (await getJob(db, waiting.id))!;
   return enqueueJob(db, { projectId, kind: 'reconcile', input: { requestedBy }, createdBy: requestedBy });
@@ -124,7 +125,7 @@ export async function reconcileAfterUpload(db: Knex, projectId: string, userId: 
 }
 
 /** The current sections as an RFC 7946 FeatureCollection; each feature's id is the section id. */
-export function sectionFeature(s: import('@/db/sections').Section) {
+export function sectionFeature(s: Section) {
   return {
     type: 'Feature' as const,
     id: s.id,
@@ -148,7 +149,7 @@ export function sectionFeature(s: import('@/db/sections').Section) {
 const round = (x: number) => Math.round(x * 1000) / 1000;
 
 /** Planned, built and covered metres: built counts as-planned and deviating stretches of planned routes. */
-export function sectionTotals(sections: import('@/db/sections').Section[]) {
+export function sectionTotals(sections: Section[]) {
   const planned = sections.filter((s) => s.plannedRouteRef !== null).reduce((n, s) => n + (s.toChainageM - s.fromChainageM), 0);
   const builtPlanned = sections.filter((s) => s.status === 'as_planned' || s.status === 'deviates').reduce((n, s) => n + (s.toChainageM - s.fromChainageM), 0);
   const laid = sections.filter((s) => s.status !== 'not_built').reduce((n, s) => n + s.lengthM, 0);
@@ -162,7 +163,6 @@ export const exclusionSchema = z.discriminatedUnion('kind', [
 
 /** Keeps a time or distance range of an upload out of matching (the original keeps it), audited, then reconciles. */
 export async function excludeFromMatching(db: Knex, actor: Principal, projectId: string, uploadId: string, input: z.infer<typeof exclusionSchema>) {
-  const { insertUploadExclusion } = await import('@/db/uploads');
   const id = await db.transaction(async (trx) => {
     const id = await insertUploadExclusion(trx, uploadId, input, actor.id);
     await writeAudit(trx, auditActor(actor), { projectId, objectType: 'upload', objectId: uploadId, action: 'exclude_range', after: input });
