@@ -3,7 +3,9 @@ import type { SectionDraft } from '@/lib/matching/section-types';
 import type { LonLat } from '@/lib/matching/types';
 
 /** A stored section: the draft's measures under a lasting id, with its review and run history. */
-export interface Section extends Omit<SectionDraft, 'ref'> {
+export interface Section extends Omit<SectionDraft, 'ref' | 'note' | 'correctionIds'> {
+  note: string | null;
+  correctionIds: number[];
   id: string;
   projectId: string;
   plannedRouteRef: string | null;
@@ -18,6 +20,7 @@ export interface Section extends Omit<SectionDraft, 'ref'> {
 const COLUMNS = (db: Db) => [
   'id', 'project_id', 'planned_route_ref', 'status', 'from_chainage_m', 'to_chainage_m', 'length_m', 'max_offset_m', 'p95_offset_m', 'accuracy_m',
   'source_upload_ids', db.raw("to_char(laid_on, 'YYYY-MM-DD') as laid_on"), 'review', 'review_comment', 'derived_from', 'first_run', 'last_run', 'retired_in_run',
+  'note', 'correction_ids',
   db.raw('ST_AsGeoJSON(geom, 9)::json as geometry'),
 ];
 
@@ -26,7 +29,7 @@ const toDto = (r: Record<string, any>): Section => ({
   id: r.id, projectId: r.project_id, plannedRouteRef: r.planned_route_ref, status: r.status, fromChainageM: r.from_chainage_m, toChainageM: r.to_chainage_m,
   coords: r.geometry.coordinates, lengthM: r.length_m, maxOffsetM: r.max_offset_m, p95OffsetM: r.p95_offset_m, accuracyM: r.accuracy_m,
   sourceUploadIds: r.source_upload_ids, laidOn: r.laid_on, review: r.review, reviewComment: r.review_comment, derivedFrom: r.derived_from,
-  firstRun: r.first_run, lastRun: r.last_run, retiredInRun: r.retired_in_run,
+  firstRun: r.first_run, lastRun: r.last_run, retiredInRun: r.retired_in_run, note: r.note, correctionIds: (r.correction_ids ?? []).map(Number),
 });
 
 export async function listCurrentSections(db: Db, projectId: string): Promise<Section[]> {
@@ -45,7 +48,7 @@ function values(db: Db, d: SectionDraft) {
   return {
     planned_route_ref: d.ref, status: d.status, from_chainage_m: d.fromChainageM, to_chainage_m: d.toChainageM,
     geom: db.raw('ST_GeomFromText(?, 4326)', [lineWkt(d.coords)]), length_m: d.lengthM, max_offset_m: d.maxOffsetM, p95_offset_m: d.p95OffsetM,
-    accuracy_m: d.accuracyM, source_upload_ids: d.sourceUploadIds, laid_on: d.laidOn,
+    accuracy_m: d.accuracyM, source_upload_ids: d.sourceUploadIds, laid_on: d.laidOn, note: d.note ?? null, correction_ids: d.correctionIds ?? [],
   };
 }
 
@@ -78,4 +81,29 @@ export async function nextReconcileRun(db: Db, projectId: string): Promise<numbe
 
 export async function insertReconcileRun(db: Db, projectId: string, run: number, jobId: string | null, stats: object): Promise<void> {
   await db('reconcile_runs').insert({ project_id: projectId, run, job_id: jobId, stats: JSON.stringify(stats) });
+}
+
+/** The sections on either side of a section along its route (current ones), for merging and the detail page. */
+export async function neighbourSections(db: Db, s: Section): Promise<{ before: Section | undefined; after: Section | undefined }> {
+  if (s.plannedRouteRef === null) return { before: undefined, after: undefined };
+  const same = (await listCurrentSections(db, s.projectId)).filter((x) => x.plannedRouteRef === s.plannedRouteRef);
+  const i = same.findIndex((x) => x.id === s.id);
+  return { before: i > 0 ? same[i - 1] : undefined, after: i >= 0 ? same[i + 1] : undefined };
+}
+
+/** The latest run's matched observations replace the previous run's. */
+export async function replaceRouteObservations(db: Db, projectId: string, run: number, series: { ref: string; uploadId: string; chainageM: number[]; offsetM: number[] }[]): Promise<void> {
+  await db('route_observations').where({ project_id: projectId }).delete();
+  const rows = series.map((o) => ({ project_id: projectId, run, planned_route_ref: o.ref, upload_id: o.uploadId, chainage_m: o.chainageM, offset_m: o.offsetM }));
+  // a few routes at a time: a long trace's arrays make large rows
+  for (let i = 0; i < rows.length; i += 20) await db('route_observations').insert(rows.slice(i, i + 20));
+}
+
+/** Matched observations on a route between two chainages, per upload, from the latest run. */
+export async function listRouteObservations(db: Db, projectId: string, ref: string, fromM: number, toM: number): Promise<{ uploadId: string; chainageM: number[]; offsetM: number[] }[]> {
+  const rows = await db('route_observations').where({ project_id: projectId, planned_route_ref: ref }).select('upload_id', 'chainage_m', 'offset_m').orderBy('upload_id');
+  return rows.map((r) => {
+    const keep = (r.chainage_m as number[]).map((c, i) => i).filter((i) => r.chainage_m[i] >= fromM && r.chainage_m[i] <= toM);
+    return { uploadId: r.upload_id, chainageM: keep.map((i) => r.chainage_m[i]), offsetM: keep.map((i) => r.offset_m[i]) };
+  }).filter((o) => o.chainageM.length > 0);
 }

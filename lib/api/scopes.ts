@@ -1,3 +1,4 @@
+import { getCorrection } from '@/db/corrections';
 import type { Db } from '@/db/client';
 import { getJob } from '@/db/jobs';
 import { getUserRow } from '@/db/users';
@@ -41,4 +42,10 @@ export async function bySectionParam(params: Record<string, string>, db: Db): Pr
   if (!isUuid(params.sectionId)) return undefined;
   const section = await getSection(db, params.sectionId);
   return section && { projectId: section.projectId };
+}
+
+export async function byCorrectionParam(params: Record<string, string>, db: Db): Promise<Scope | undefined> {
+  if (!/^\d{1,15}$/.test(params.correctionId ?? '')) return undefined;
+  const c = await getCorrection(db, Number(params.correctionId));
+  return c && { projectId: c.projectId };
 }

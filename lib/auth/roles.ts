@@ -36,6 +36,7 @@ export const PERMISSIONS = {
   'reconcile.run': ['admin', 'engineer'],
   'section.read': ALL,
   'section.review': ['admin', 'engineer'],
+  'section.correct': ['admin', 'engineer'],
 } as const satisfies Record<string, readonly Role[]>;
 
 export type Action = keyof typeof PERMISSIONS;

@@ -166,13 +166,15 @@ function smoothBins(route: LonLat[], length: number, sources: RouteObservations[
  * buildRouteSections({ ref: 'R-1', coords }, [{ uploadId, sigmaM: 4, surveyGrade: false, laidOn, fixes }], { toleranceM: 0.5 })
  */
 export function buildRouteSections(route: { ref: string; coords: LonLat[] }, sources: RouteObservations[], opts: SectionOptions): SectionDraft[] {
-  const o: Required<SectionOptions> = { biasSigmaM: 1, biasTauS: 60, bridgeM: 60, windowM: 8, minRunM: 6, ...opts };
+  const o: Required<SectionOptions> = { biasSigmaM: 1, biasTauS: 60, bridgeM: 60, windowM: 8, minRunM: 6, breaksM: [], ...opts };
   const length = lineLengthM(route.coords);
   const bins = smoothBins(route.coords, length, sources, o);
+  // a split falls on the metre boundary nearest its chainage: sections are built from 1 m bins
+  const breaks = new Set(o.breaksM.map((b) => Math.round(b)).filter((b) => b > 0 && b < bins.length));
   const drafts: SectionDraft[] = [];
   for (let i = 0; i < bins.length; ) {
     let j = i;
-    while (j < bins.length && bins[j].source === bins[i].source && bins[j].deviates === bins[i].deviates) j++;
+    while (j < bins.length && bins[j].source === bins[i].source && bins[j].deviates === bins[i].deviates && (j === i || !breaks.has(j))) j++;
     const from = i;
     const to = Math.min(length, j);
     const run = bins.slice(i, j);

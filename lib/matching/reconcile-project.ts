@@ -1,4 +1,5 @@
 import { buildRouteSections } from './build-sections';
+import { applyRouteCorrections, reassignFixes, splitPoints, type Correction } from './corrections';
 import { lineLengthM } from './chainage';
 import { matchTrace } from './match-trace';
 import type { Fix } from './match-types';
@@ -26,6 +27,18 @@ export interface ReconcileStats {
   outliers: number;
   unplannedRuns: number;
   pieces: number;
+  /** matched fixes moved to another route by the engineer's reassign corrections */
+  reassigned: number;
+  /** wall time of matchTrace and of the section building, when asked for with `timings: true` (bench:match) */
+  timingsMs?: { matchMs: number; sectionsMs: number };
+}
+
+/** The matched observations of one upload on one route, for the offset-versus-chainage plot. */
+export interface RouteObservationSeries {
+  ref: string;
+  uploadId: string;
+  chainageM: number[];
+  offsetM: number[];
 }
 
 /** Moving average over ±k positions: the unplanned stretch's line from its noisy fixes. */
@@ -47,12 +60,16 @@ function smooth(points: LonLat[], k: number): LonLat[] {
 export async function reconcileProject(
   routes: PlannedRouteInput[],
   uploads: UploadTraces[],
-  opts: { toleranceM: number; onProgress?: (fraction: number) => void },
-): Promise<{ drafts: SectionDraft[]; stats: ReconcileStats }> {
+  opts: { toleranceM: number; corrections?: Correction[]; timings?: boolean; onProgress?: (fraction: number) => void },
+): Promise<{ drafts: SectionDraft[]; stats: ReconcileStats; observations: RouteObservationSeries[] }> {
   const graph = buildRouteGraph(routes);
+  const corrections = opts.corrections ?? [];
+  const routeByRef = new Map(routes.map((r) => [r.ref, r]));
   const byRoute = new Map<string, RouteObservations[]>();
   const drafts: SectionDraft[] = [];
-  const stats: ReconcileStats = { fixes: 0, matched: 0, outliers: 0, unplannedRuns: 0, pieces: 0 };
+  const stats: ReconcileStats = { fixes: 0, matched: 0, outliers: 0, unplannedRuns: 0, pieces: 0, reassigned: 0 };
+  // timings stay out of the stored run summary unless asked for: they differ from run to run
+  const timingsMs = { matchMs: 0, sectionsMs: 0 };
   const sorted = [...uploads].sort((a, b) => a.uploadId.localeCompare(b.uploadId));
   for (const [u, up] of sorted.entries()) {
     for (const trace of up.traces) {
@@ -61,14 +78,19 @@ export async function reconcileProject(
       // the matcher compares fixes with the PLAN, which the trench may leave by up to a few metres:
       // its noise term covers the source's own error and that expected departure
       const sigmaM = Math.hypot(up.sigmaM, Math.max(opts.toleranceM, 1));
+      const t0 = performance.now();
       const result = matchTrace(trace, routes, graph, { sigmaM });
+      timingsMs.matchMs += performance.now() - t0;
       stats.fixes += trace.length;
       stats.matched += result.matched.length;
       stats.outliers += result.outliers.length;
       stats.pieces += result.pieces;
       const time = new Map(trace.map((f) => [f.seq, f.t]));
+      const bySeq = new Map(trace.map((f) => [f.seq, f]));
+      const { fixes: matched, moved } = reassignFixes(result.matched, (seq) => [bySeq.get(seq)!.lon, bySeq.get(seq)!.lat], routeByRef, corrections);
+      stats.reassigned += moved;
       const perRef = new Map<string, RouteObservations['fixes']>();
-      for (const m of result.matched) {
+      for (const m of matched) {
         const list = perRef.get(m.ref) ?? [];
         list.push({ chainageM: m.chainageM, offsetM: m.offsetM, t: time.get(m.seq) ?? null });
         perRef.set(m.ref, list);
@@ -96,7 +118,24 @@ export async function reconcileProject(
   }
   for (const [i, r] of [...routes].sort((a, b) => a.ref.localeCompare(b.ref)).entries()) {
     if (i % 50 === 0) await breathe();
-    drafts.push(...buildRouteSections(r, byRoute.get(r.ref) ?? [], { toleranceM: opts.toleranceM }));
+    const t0 = performance.now();
+    const built = buildRouteSections(r, byRoute.get(r.ref) ?? [], { toleranceM: opts.toleranceM, breaksM: splitPoints(corrections, r.ref) });
+    drafts.push(...applyRouteCorrections(r, built, corrections));
+    timingsMs.sectionsMs += performance.now() - t0;
   }
-  return { drafts, stats };
+  const observations: RouteObservationSeries[] = [];
+  for (const [ref, list] of [...byRoute].sort((a, b) => a[0].localeCompare(b[0]))) {
+    const perUpload = new Map<string, RouteObservationSeries>();
+    for (const o of list) {
+      const series = perUpload.get(o.uploadId) ?? { ref, uploadId: o.uploadId, chainageM: [], offsetM: [] };
+      for (const f of o.fixes) {
+        series.chainageM.push(f.chainageM);
+        series.offsetM.push(f.offsetM);
+      }
+      perUpload.set(o.uploadId, series);
+    }
+    observations.push(...perUpload.values());
+  }
+  if (opts.timings) stats.timingsMs = timingsMs;
+  return { drafts, stats, observations };
 }

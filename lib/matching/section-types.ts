@@ -27,6 +27,10 @@ export interface SectionDraft {
   accuracyM: number;
   sourceUploadIds: string[];
   laidOn: string | null;
+  /** why a stretch is not built, or on what other source it is counted built (from a correction) */
+  note?: string | null;
+  /** the engineer's corrections that shaped this stretch */
+  correctionIds?: number[];
 }
 
 export interface SectionOptions {
@@ -42,4 +46,6 @@ export interface SectionOptions {
   windowM?: number;
   /** shortest run that can be its own deviating stretch (m) */
   minRunM?: number;
+  /** chainages where a section must end and the next begin (an engineer's split) */
+  breaksM?: number[];
 }

@@ -1,4 +1,4 @@
-import { randomUUID } from 'node:crypto';
+import { createHash, randomUUID } from 'node:crypto';
 import { readFile } from 'node:fs/promises';
 import type { Knex } from 'knex';
 import { z } from 'zod';
@@ -26,6 +26,7 @@ import { lineLengthM } from '@/lib/matching/chainage';
 import { diffPlans } from '@/lib/matching/plan-diff';
 import { attributeKeys, guessPlanMapping, toPlannedRoutes, type PlanMapping } from '@/lib/matching/plan-mapping';
 import { buildRouteGraph } from '@/lib/matching/route-graph';
+import type { PlannedRouteInput } from '@/lib/matching/types';
 import { combinedSha, removeOriginals, storeOriginals } from './originals';
 import { parse } from './uploads';
 
@@ -141,4 +142,34 @@ export async function plannedFeatureCollection(db: Knex, projectId: string, incl
       properties: { ref: r.ref, street: r.street, ducts: r.ducts, kind: r.kind, lengthM: Math.round(r.lengthM * 1000) / 1000, firstVersion: r.firstVersion, geometryVersion: r.geometryVersion, removedInVersion: r.removedInVersion },
     })),
   };
+}
+
+/**
+ * Adds an unplanned stretch to the plan as a new route (an engineer's promotion), as the next plan version
+ * with its change list, so the design's history shows where the route came from. Runs in the caller's
+ * transaction; the caller writes the correction and reconciles.
+ */
+export async function addPromotedRoute(
+  trx: Knex.Transaction,
+  actor: Principal,
+  projectId: string,
+  p: { ref: string; street: string | null; kind: 'street' | 'crossing'; coords: PlannedRouteInput['coords']; sectionId: string; reason: string },
+): Promise<number> {
+  const version = await lockProjectPlan(trx, projectId);
+  const current = await listPlannedRoutes(trx, projectId);
+  const route: PlannedRouteInput = { ref: p.ref, street: p.street, ducts: null, kind: p.kind, coords: p.coords };
+  const lengthM = lineLengthM(p.coords);
+  const id = await insertPlannedRoute(trx, projectId, { ...route, lengthM }, version);
+  await insertRouteHistory(trx, id, version, 'added', route);
+  const graph = buildRouteGraph([...current, route]);
+  const versionId = randomUUID();
+  await insertPlanVersion(trx, {
+    id: versionId, projectId, version, fileName: `promoted from unplanned section ${p.sectionId}`,
+    sha256: createHash('sha256').update(JSON.stringify(route)).digest('hex'), format: 'promotion', crs: 'EPSG:4326', mapping: {}, mappingGuessed: false,
+    changes: { added: [p.ref], removed: [], reshaped: [], retagged: [] }, diagnostics: graph.diagnostics, warnings: [],
+    routeCount: current.length + 1, lengthM: current.reduce((n, r) => n + r.lengthM, 0) + lengthM, importedBy: actor.id,
+  });
+  await deriveExtentFromPlan(trx, projectId);
+  await writeAudit(trx, auditActor(actor), { projectId, objectType: 'plan_version', objectId: versionId, action: 'promote_route', after: { version, ref: p.ref, fromSection: p.sectionId, lengthM, reason: p.reason } });
+  return version;
 }

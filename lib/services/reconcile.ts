@@ -3,14 +3,15 @@ import { z } from 'zod';
 import { writeAudit, type AuditActor } from '@/db/audit';
 import { hasCurrentPlan, listPlannedRoutes } from '@/db/planned';
 import { getProject } from '@/db/projects';
-import { getSection, insertReconcileRun, type Section, insertSection, listCurrentSections, nextReconcileRun, retireSections, setSectionReview, updateSectionFromDraft } from '@/db/sections';
+import { listCorrections, toMatchingCorrections } from '@/db/corrections';
+import { getSection, insertReconcileRun, listRouteObservations, neighbourSections, replaceRouteObservations, type Section, insertSection, listCurrentSections, nextReconcileRun, retireSections, setSectionReview, updateSectionFromDraft } from '@/db/sections';
 import { AppError } from '@/lib/api/errors';
 import { auditActor, type Principal } from '@/lib/auth/principal';
 import type { Fix } from '@/lib/matching/match-types';
 import { matchSections } from '@/lib/matching/match-sections';
 import { reconcileProject, type UploadTraces } from '@/lib/matching/reconcile-project';
 import { applyExclusions, type Exclusion } from '@/lib/matching/apply-exclusions';
-import { insertUploadExclusion, listUploadExclusions } from '@/db/uploads';
+import { getUpload, insertUploadExclusion, listUploadExclusions } from '@/db/uploads';
 import { getJob } from '@/db/jobs';
 
 const SURVEY_GRADE = new Set(['rtk_gnss', 'total_station']);
@@ -56,8 +57,9 @@ export async function runReconciliation(db: Knex, projectId: string, jobId: stri
   const project = (await getProject(db, projectId))!;
   const routes = await listPlannedRoutes(db, projectId);
   const uploads = await loadTraces(db, projectId);
+  const corrections = toMatchingCorrections(await listCorrections(db, projectId, true));
   await progress(0.1, `Matching ${uploads.length} uploads onto ${routes.length} routes`);
-  const { drafts, stats } = await reconcileProject(routes, uploads, { toleranceM: project.lateralToleranceM });
+  const { drafts, stats, observations } = await reconcileProject(routes, uploads, { toleranceM: project.lateralToleranceM, corrections });
   await progress(0.8, `Writing ${drafts.length} sections`);
   return db.transaction(async (trx) => {
     const run = await nextReconcileRun(trx, projectId);
@@ -87,6 +89,7 @@ export async function runReconciliation(db: Knex, projectId: string, jobId: stri
     const kept = new Set(ids.map((x) => x.keepId).filter(Boolean));
     const retired = existing.filter((s) => !kept.has(s.id)).map((s) => s.id);
     await retireSections(trx, retired, run);
+    await replaceRouteObservations(trx, projectId, run, observations);
     const summary = { ...stats, sections: drafts.length, created, retired: retired.length, reviewResets: resets };
     await insertReconcileRun(trx, projectId, run, jobId, summary);
     await writeAudit(trx, actor, { projectId, objectType: 'reconcile_run', objectId: String(run), action: 'run', after: summary });
@@ -171,3 +174,30 @@ export async function excludeFromMatching(db: Knex, actor: Principal, projectId:
   const job = await requestReconciliation(db, projectId, actor.id);
   return { exclusion: { id, ...input }, job };
 }
+
+/**
+ * Everything the section's page shows: the section, its planned route, the matched observations of the
+ * latest run within its chainages (for the offset plot), its source uploads, its neighbours along the
+ * route, and the corrections that shaped it or were made on it.
+ */
+export async function sectionDetail(db: Knex, sectionId: string) {
+  const s = (await getSection(db, sectionId))!;
+  const project = (await getProject(db, s.projectId))!;
+  const route = s.plannedRouteRef === null ? null : (await listPlannedRoutes(db, s.projectId, true)).find((r) => r.ref === s.plannedRouteRef) ?? null;
+  const observations = s.plannedRouteRef === null ? [] : await listRouteObservations(db, s.projectId, s.plannedRouteRef, s.fromChainageM - 10, s.toChainageM + 10);
+  const uploadIds = [...new Set([...s.sourceUploadIds, ...observations.map((o) => o.uploadId)])];
+  const uploads = (await Promise.all(uploadIds.map((id) => getUpload(db, id)))).filter((u): u is NonNullable<typeof u> => !!u);
+  const sources = uploads.map((u) => ({ id: u.id, fileName: u.fileName, accuracyClass: u.accuracyClass, sigmaM: u.sigmaM, surveyDate: u.surveyDate, crew: u.crew, status: u.status, wonHere: s.sourceUploadIds.includes(u.id) }));
+  const { before, after } = await neighbourSections(db, s);
+  const corrections = (await listCorrections(db, s.projectId)).filter((c) => c.sectionId === s.id || s.correctionIds.includes(c.id));
+  return {
+    section: { ...sectionFeature(s).properties, id: s.id, reviewComment: s.reviewComment, note: s.note, derivedFrom: s.derivedFrom, firstRun: s.firstRun, lastRun: s.lastRun, retiredInRun: s.retiredInRun, geometry: { type: 'LineString' as const, coordinates: s.coords } },
+    route: route && { ref: route.ref, street: route.street, ducts: route.ducts, kind: route.kind, lengthM: round(route.lengthM), removedInVersion: route.removedInVersion, geometry: { type: 'LineString' as const, coordinates: route.coords } },
+    toleranceM: project.lateralToleranceM,
+    observations,
+    sources,
+    neighbours: { before: before && { id: before.id, status: before.status, fromChainageM: before.fromChainageM, toChainageM: before.toChainageM }, after: after && { id: after.id, status: after.status, fromChainageM: after.fromChainageM, toChainageM: after.toChainageM } },
+    corrections,
+  };
+}
+export type SectionDetail = Awaited<ReturnType<typeof sectionDetail>>;
