@@ -1,39 +1,24 @@
 'use client';
 
-import { useEffect, useRef, useState } from 'react';
+import { useRouter } from 'next/navigation';
+import { useState } from 'react';
 import { Button, Notice } from '@/components/ui/primitives';
 import { callApi } from './api-client';
-
-interface JobView {
-  id: string;
-  status: 'queued' | 'running' | 'completed' | 'failed';
-  progress: number;
-  message: string;
-  resultUrl: string | null;
-}
+import { useJob, type JobView } from './use-job';
 
 /** Starts a background job, shows its progress bar, and offers the result when it is done. */
-export function JobButton({ startUrl, label, resultLabel }: { startUrl: string; label: string; resultLabel: string }) {
-  const [job, setJob] = useState<JobView | null>(null);
+export function JobButton({ startUrl, label, resultLabel, refreshOnDone = false }: { startUrl: string; label: string; resultLabel: string; refreshOnDone?: boolean }) {
+  const router = useRouter();
   const [error, setError] = useState<string | null>(null);
-  const timer = useRef<ReturnType<typeof setInterval> | null>(null);
-
-  useEffect(() => () => { if (timer.current) clearInterval(timer.current); }, []);
+  const { job, busy, follow } = useJob(() => { if (refreshOnDone) router.refresh(); });
 
   async function start() {
     setError(null);
     const res = await callApi<{ job: JobView }>(startUrl, 'POST');
     if (!res.ok) return setError(res.message);
-    setJob(res.data.job);
-    timer.current = setInterval(async () => {
-      const r = await callApi<{ job: JobView }>(`/api/jobs/${res.data.job.id}`, 'GET');
-      if (!r.ok) return;
-      setJob(r.data.job);
-      if (r.data.job.status === 'completed' || r.data.job.status === 'failed') clearInterval(timer.current!);
-    }, 500);
+    follow(res.data.job);
   }
 
-  const busy = job !== null && (job.status === 'queued' || job.status === 'running');
   return (
     <div className="flex flex-col items-end gap-2">
       <Button variant="secondary" onClick={start} disabled={busy}>

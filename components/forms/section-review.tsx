@@ -21,11 +21,15 @@ export function SectionReview({ sections }: { sections: { id: string; label: str
   }
   return (
     <form className="grid gap-3 sm:grid-cols-4" onSubmit={(e) => submit(e, 'approve')} noValidate>
-      <Field label="Section" htmlFor="review-section">
-        <Select id="review-section" name="section">
-          {sections.map((s) => <option key={s.id} value={s.id}>{s.label} — {s.review}</option>)}
-        </Select>
-      </Field>
+      {sections.length === 1 ? (
+        <input type="hidden" name="section" value={sections[0].id} />
+      ) : (
+        <Field label="Section" htmlFor="review-section">
+          <Select id="review-section" name="section">
+            {sections.map((s) => <option key={s.id} value={s.id}>{s.label} — {s.review}</option>)}
+          </Select>
+        </Field>
+      )}
       <Field label="Comment" htmlFor="review-comment" error={error ?? undefined}>
         <Input id="review-comment" name="comment" aria-invalid={!!error} />
       </Field>

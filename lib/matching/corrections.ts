@@ -1,4 +1,5 @@
-import { lineLengthM, localFrame, projectOntoLine } from './chainage';
+import { lineLengthM } from './chainage';
+import { signedOffset } from './offset-profile';
 import { subLine } from './build-sections';
 import type { SectionDraft } from './section-types';
 import type { LonLat, PlannedRouteInput } from './types';
@@ -23,18 +24,6 @@ export type Correction =
 /** Chainages where the builder must start a new section on a route (split corrections). */
 export function splitPoints(corrections: Correction[], ref: string): number[] {
   return corrections.filter((c) => c.kind === 'split' && c.ref === ref).map((c) => (c as { atM: number }).atM).sort((a, b) => a - b);
-}
-
-/** Signed offset of p from the line at its projection: + left of the drawing direction, − right. */
-function signedOffset(coords: LonLat[], p: LonLat): { chainageM: number; offsetM: number; distanceM: number } {
-  const proj = projectOntoLine(coords, p);
-  const a = coords[proj.segment];
-  const b = coords[proj.segment + 1] ?? a;
-  const f = localFrame(a);
-  const [bx, by] = f.toXY(b);
-  const [px, py] = f.toXY(p);
-  const cross = bx * py - by * px;
-  return { chainageM: proj.chainageM, offsetM: cross < 0 ? -proj.distanceM : proj.distanceM, distanceM: proj.distanceM };
 }
 
 /**

@@ -25,10 +25,23 @@ interface Ctx {
   foreignUploadId: string;
   failedUploadId: string;
   spareUploadId: string;
-  currentSectionId: (req: APIRequestContext) => Promise<string>;
+  currentSection: (req: APIRequestContext) => Promise<SectionRef>;
   foreignSectionId: string;
+  correctionId: number;
+  foreignCorrectionId: number;
   spareTokenId: (req: APIRequestContext) => Promise<string>;
 }
+
+interface SectionRef {
+  id: string;
+  status: string;
+  fromChainageM: number;
+  toChainageM: number;
+}
+
+/** A correction any current section accepts: a reason where nothing is built, else a split in the middle. */
+const correctionFor = (s: SectionRef) =>
+  s.status === 'not_built' ? { kind: 'not_built_reason', reason: 'isolation matrix' } : { kind: 'split', atChainageM: (s.fromChainageM + s.toChainageM) / 2, reason: 'isolation matrix' };
 
 interface Row {
   /** URL for the caller's own object */
@@ -38,7 +51,8 @@ interface Row {
   /** a role without the right, or why not applicable */
   denied: Who | { na: string };
   allowed: Who;
-  body?: (c: Ctx) => unknown;
+  /** the request body; `section` is the current section when the URL names CURRENT */
+  body?: (c: Ctx, section?: SectionRef) => unknown;
   success: number;
 }
 
@@ -262,6 +276,35 @@ const MATRIX: Record<string, Row | PublicRow> = {
     body: () => ({ decision: 'approve', comment: 'isolation matrix' }),
     success: 200,
   },
+  'GET /api/sections/[sectionId]': {
+    url: () => '/api/sections/CURRENT',
+    foreign: (c) => `/api/sections/${c.foreignSectionId}`,
+    denied: ALL_ROLES,
+    allowed: 'maintenance',
+    success: 200,
+  },
+  'POST /api/sections/[sectionId]/corrections': {
+    url: () => '/api/sections/CURRENT/corrections',
+    foreign: (c) => `/api/sections/${c.foreignSectionId}/corrections`,
+    denied: 'surveyor',
+    allowed: 'engineer',
+    body: (_c, section) => section && correctionFor(section),
+    success: 202,
+  },
+  'GET /api/projects/[projectId]/corrections': {
+    url: (c) => `/api/projects/${c.projectId}/corrections`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/corrections`,
+    denied: ALL_ROLES,
+    allowed: 'owner',
+    success: 200,
+  },
+  'DELETE /api/corrections/[correctionId]': {
+    url: (c) => `/api/corrections/${c.correctionId}`,
+    foreign: (c) => `/api/corrections/${c.foreignCorrectionId}`,
+    denied: 'surveyor',
+    allowed: 'engineer',
+    success: 200,
+  },
   'GET /api/crs': { url: () => '/api/crs?q=25832', foreign: NO_OBJECT, denied: ALL_ROLES, allowed: 'surveyor', success: 200 },
   'GET /api/audit': { url: () => '/api/audit', foreign: NO_OBJECT, denied: 'maintenance', allowed: 'admin', success: 200 },
 };
@@ -341,13 +384,23 @@ test.beforeAll(async ({ request }) => {
   };
   expect((await sectionsOf(projectId, tokens.engineer)).length).toBeGreaterThan(0);
   const foreignSections = await sectionsOf(fp.body!.project.id, foreignToken);
+  // earlier rows' uploads queue reconciliations that may retire sections: run one to its end first
+  const currentSection = async (req: APIRequestContext) => {
+    const job = await json<{ job: { id: string } }>(req, 'POST', `/api/projects/${projectId}/reconcile`, tokens.engineer);
+    await expect.poll(async () => (await json<{ job: { status: string } }>(req, 'GET', `/api/jobs/${job.body!.job.id}`, tokens.engineer)).body!.job.status, { timeout: 30_000 }).toBe('completed');
+    return (await json<{ sections: SectionRef[] }>(req, 'GET', `/api/projects/${projectId}/sections`, tokens.engineer)).body!.sections[0];
+  };
+  const correctionOn = async (section: SectionRef, token: string) => {
+    const r = await json<{ correction: { id: number } }>(request, 'POST', `/api/sections/${section.id}/corrections`, token, correctionFor(section));
+    expect(r.status).toBe(202);
+    return r.body!.correction.id;
+  };
+  const correctionId = await correctionOn(await currentSection(request), tokens.engineer);
+  const foreignCorrectionId = await correctionOn((foreignSections as unknown as SectionRef[])[0], foreignToken);
   ctx = {
-    // earlier rows' uploads queue reconciliations that may retire sections: run one to its end first
-    currentSectionId: async (req) => {
-      const job = await json<{ job: { id: string } }>(req, 'POST', `/api/projects/${projectId}/reconcile`, tokens.engineer);
-      await expect.poll(async () => (await json<{ job: { status: string } }>(req, 'GET', `/api/jobs/${job.body!.job.id}`, tokens.engineer)).body!.job.status, { timeout: 30_000 }).toBe('completed');
-      return (await json<{ sections: { id: string }[] }>(req, 'GET', `/api/projects/${projectId}/sections`, tokens.engineer)).body!.sections[0].id;
-    },
+    currentSection,
+    correctionId,
+    foreignCorrectionId,
     foreignSectionId: foreignSections[0].id,
     uploadId: upload.body!.upload!.id,
     spareUploadId: spareUpload.body!.upload!.id,
@@ -383,8 +436,9 @@ for (const [key, row] of Object.entries(MATRIX)) {
     const method = key.split(' ')[0];
     let url = row.url(ctx);
     if (url.endsWith('/SPARE')) url = url.replace('SPARE', await ctx.spareTokenId(request));
-    if (url.includes('/CURRENT/')) url = url.replace('CURRENT', await ctx.currentSectionId(request));
-    const body = row.body?.(ctx);
+    const section = url.includes('/CURRENT') ? await ctx.currentSection(request) : undefined;
+    if (section) url = url.replace('CURRENT', section.id);
+    const body = row.body?.(ctx, section);
 
     const anon = await json<{ error: { code: string } }>(request, method, url, null, body);
     expect(anon.status, 'without credentials').toBe(401);

@@ -11,16 +11,9 @@ import { Card, PageHeader } from '@/components/ui/primitives';
 import { GeoMap, type MapLayer } from '@/components/map/geo-map';
 import { JobButton } from '@/components/forms/job-button';
 import { SectionReview } from '@/components/forms/section-review';
+import { STATUS_STYLE } from '@/components/ui/section-status';
 
 export const metadata: Metadata = { title: 'Planned against built' };
-
-// Okabe–Ito colours: distinguishable under the common colour-vision deficiencies
-export const STATUS_STYLE = {
-  as_planned: { colour: '#009e73', label: 'as planned', tone: 'ok' },
-  deviates: { colour: '#e69f00', label: 'deviates', tone: 'warn' },
-  unplanned: { colour: '#cc79a7', label: 'unplanned', tone: 'info' },
-  not_built: { colour: '#999999', label: 'not built', tone: 'muted' },
-} as const;
 
 export default async function ReconciliationPage({ params }: { params: Promise<{ projectId: string }> }) {
   const { projectId } = await params;
@@ -46,7 +39,7 @@ export default async function ReconciliationPage({ params }: { params: Promise<{
       <PageHeader
         title="Planned against built"
         subtitle={`${formatLength(totals.builtM, unit)} built of ${formatLength(totals.plannedM, unit)} planned (${(totals.coverage * 100).toFixed(1)} %); ${formatLength(totals.laidM, unit)} laid including unplanned stretches.`}
-        actions={can(me.role, 'reconcile.run') ? <JobButton startUrl={`/api/projects/${project.id}/reconcile`} label="Reconcile now" resultLabel="" /> : undefined}
+        actions={can(me.role, 'reconcile.run') ? <JobButton startUrl={`/api/projects/${project.id}/reconcile`} label="Reconcile now" resultLabel="" refreshOnDone /> : undefined}
       />
       <div className="space-y-6">
         <GeoMap label="Map of planned routes and built sections" layers={layers} height={480} />
@@ -87,7 +80,7 @@ export default async function ReconciliationPage({ params }: { params: Promise<{
               return {
                 id: s.id,
                 cells: {
-                  route: s.plannedRouteRef ?? '—',
+                  route: { text: s.plannedRouteRef ?? 'unplanned', href: `/projects/${project.id}/sections/${s.id}` },
                   street,
                   from: { text: formatLength(s.fromChainageM, unit), sort: s.fromChainageM },
                   to: { text: formatLength(s.toChainageM, unit), sort: s.toChainageM },

@@ -1,0 +1,50 @@
+'use client';
+
+import { CartesianGrid, ComposedChart, Legend, Line, ReferenceArea, ReferenceLine, ResponsiveContainer, Scatter, Tooltip, XAxis, YAxis } from 'recharts';
+
+export interface OffsetSeries {
+  label: string;
+  points: { chainageM: number; offsetM: number }[];
+}
+
+// Okabe–Ito: distinguishable under the common colour-vision deficiencies; status colours are kept for the map
+const SERIES_COLOURS = ['#0072b2', '#d55e00', '#56b4e9', '#cc79a7', '#f0e442', '#000000'];
+
+/**
+ * Lateral offset of each matched observation from the planned route against chainage, with the project's
+ * tolerance as a band around the plan and the section's as-built line drawn through them.
+ */
+export function OffsetPlot({ series, asBuilt, toleranceM, fromM, toM, summary }: { series: OffsetSeries[]; asBuilt: { chainageM: number; offsetM: number }[]; toleranceM: number; fromM: number; toM: number; summary: string }) {
+  const all = [...series.flatMap((s) => s.points.map((p) => p.offsetM)), ...asBuilt.map((p) => p.offsetM), toleranceM, -toleranceM];
+  const span = Math.max(1, ...all.map(Math.abs));
+  // symmetric ticks on a 1–2–5 step, so that 0 (the plan) and the tolerance read off at a glance
+  const raw = (span * 1.1) / 3;
+  const mag = 10 ** Math.floor(Math.log10(raw));
+  const step = [1, 2, 5, 10].map((k) => k * mag).find((x) => x >= raw)!;
+  const lim = Math.ceil((span * 1.1) / step) * step;
+  const ticks = Array.from({ length: Math.round((2 * lim) / step) + 1 }, (_, i) => Math.round((-lim + i * step) * 1e6) / 1e6);
+  return (
+    <figure role="img" aria-label={`Offset from the plan against chainage. ${summary}`} className="w-full">
+      <div className="h-72 w-full">
+        <ResponsiveContainer width="100%" height="100%">
+          <ComposedChart margin={{ top: 8, right: 16, bottom: 24, left: 8 }}>
+            <CartesianGrid stroke="#e5e7eb" />
+            <XAxis type="number" dataKey="chainageM" domain={[Math.floor(fromM), Math.ceil(toM)]} allowDataOverflow tickFormatter={(v: number) => `${v} m`} label={{ value: 'chainage along the planned route (m)', position: 'insideBottom', offset: -12, fontSize: 12 }} fontSize={12} />
+            <YAxis type="number" dataKey="offsetM" domain={[-lim, lim]} ticks={ticks} allowDataOverflow tickFormatter={(v: number) => (step < 1 ? v.toFixed(1) : String(v))} label={{ value: 'offset, + left (m)', angle: -90, position: 'insideLeft', fontSize: 12 }} fontSize={12} width={56} />
+            <ReferenceArea y1={-toleranceM} y2={toleranceM} fill="#009e73" fillOpacity={0.12} ifOverflow="extendDomain" />
+            <ReferenceLine y={0} stroke="#0072b2" strokeDasharray="6 4" label={{ value: 'plan', position: 'insideTopLeft', fontSize: 11 }} />
+            <Tooltip formatter={(v) => `${Number(v).toFixed(2)} m`} labelFormatter={(v) => `chainage ${Number(v).toFixed(1)} m`} />
+            <Legend verticalAlign="top" height={28} wrapperStyle={{ fontSize: 12 }} />
+            {series.map((s, i) => (
+              <Scatter key={s.label} name={s.label} data={s.points} fill={SERIES_COLOURS[i % SERIES_COLOURS.length]} isAnimationActive={false} shape="circle" legendType="circle" r={2} />
+            ))}
+            {asBuilt.length > 1 && <Line name="as-built line" data={asBuilt} dataKey="offsetM" stroke="#000000" strokeWidth={2} dot={false} isAnimationActive={false} type="linear" />}
+          </ComposedChart>
+        </ResponsiveContainer>
+      </div>
+      <figcaption className="mt-1 text-xs text-ink-soft">
+        Green band: the project&apos;s lateral tolerance of ±{toleranceM} m around the plan. {summary}
+      </figcaption>
+    </figure>
+  );
+}
