@@ -13,6 +13,8 @@ export type XY = [number, number];
 
 export interface LocalFrame {
   toXY(p: LonLat): XY;
+  /** the inverse of toXY */
+  toLonLat(p: XY): LonLat;
 }
 
 /**
@@ -30,6 +32,7 @@ export function localFrame(origin: LonLat): LocalFrame {
   const dLon = (lon: number) => ((((lon - lon0) % 360) + 540) % 360) - 180; // across the antimeridian too
   return {
     toXY: ([lon, lat]) => [dLon(lon) * mx, (lat - lat0) * my],
+    toLonLat: ([x, y]) => [lon0 + x / mx, lat0 + y / my],
   };
 }
 

@@ -1,5 +1,7 @@
 import { buildRouteSections } from './build-sections';
 import { applyRouteCorrections, reassignFixes, splitPoints, type Correction } from './corrections';
+import { unplannedLine } from './unplanned-line';
+import { claimBeyondEnds, foldJunctionHops } from './visits';
 import { lineLengthM } from './chainage';
 import { matchTrace } from './match-trace';
 import type { Fix } from './match-types';
@@ -29,6 +31,8 @@ export interface ReconcileStats {
   pieces: number;
   /** matched fixes moved to another route by the engineer's reassign corrections */
   reassigned: number;
+  /** handheld fixes put back on their route after a hop onto a joining route within their noise */
+  junctionHops: number;
   /** wall time of matchTrace and of the section building, when asked for with `timings: true` (bench:match) */
   timingsMs?: { matchMs: number; sectionsMs: number };
 }
@@ -39,15 +43,6 @@ export interface RouteObservationSeries {
   uploadId: string;
   chainageM: number[];
   offsetM: number[];
-}
-
-/** Moving average over ±k positions: the unplanned stretch's line from its noisy fixes. */
-function smooth(points: LonLat[], k: number): LonLat[] {
-  if (k === 0) return points;
-  return points.map((_, i) => {
-    const w = points.slice(Math.max(0, i - k), i + k + 1);
-    return [w.reduce((n, p) => n + p[0], 0) / w.length, w.reduce((n, p) => n + p[1], 0) / w.length] as LonLat;
-  });
 }
 
 /**
@@ -67,7 +62,7 @@ export async function reconcileProject(
   const routeByRef = new Map(routes.map((r) => [r.ref, r]));
   const byRoute = new Map<string, RouteObservations[]>();
   const drafts: SectionDraft[] = [];
-  const stats: ReconcileStats = { fixes: 0, matched: 0, outliers: 0, unplannedRuns: 0, pieces: 0, reassigned: 0 };
+  const stats: ReconcileStats = { fixes: 0, matched: 0, outliers: 0, unplannedRuns: 0, pieces: 0, reassigned: 0, junctionHops: 0 };
   // timings stay out of the stored run summary unless asked for: they differ from run to run
   const timingsMs = { matchMs: 0, sectionsMs: 0 };
   const sorted = [...uploads].sort((a, b) => a.uploadId.localeCompare(b.uploadId));
@@ -87,8 +82,14 @@ export async function reconcileProject(
       stats.pieces += result.pieces;
       const time = new Map(trace.map((f) => [f.seq, f.t]));
       const bySeq = new Map(trace.map((f) => [f.seq, f]));
-      const { fixes: matched, moved } = reassignFixes(result.matched, (seq) => [bySeq.get(seq)!.lon, bySeq.get(seq)!.lat], routeByRef, corrections);
+      const position = (seq: number): LonLat => [bySeq.get(seq)!.lon, bySeq.get(seq)!.lat];
+      const { fixes: reassigned, moved } = reassignFixes(result.matched, position, routeByRef, corrections);
       stats.reassigned += moved;
+      // a handheld walk past a junction hops onto the other route and back within its noise: put it back
+      const hops = up.surveyGrade ? { fixes: reassigned, folded: 0 } : foldJunctionHops(reassigned, position, routeByRef, { radiusM: 2.5 * up.sigmaM, maxFixes: 10 });
+      stats.junctionHops += hops.folded;
+      const ends = claimBeyondEnds(hops.fixes, result.unmatched, (seq) => bySeq.get(seq)!, routeByRef, { nearM: 2 * up.sigmaM });
+      const matched = ends.matched;
       const perRef = new Map<string, RouteObservations['fixes']>();
       for (const m of matched) {
         const list = perRef.get(m.ref) ?? [];
@@ -100,9 +101,11 @@ export async function reconcileProject(
         list.push({ uploadId: up.uploadId, sigmaM: up.sigmaM, surveyGrade: up.surveyGrade, laidOn: up.laidOn, fixes });
         byRoute.set(ref, list);
       }
-      for (const run of result.unmatched) {
-        const k = up.surveyGrade ? 0 : 3;
-        const coords = smooth(run.map((f) => [f.lon, f.lat] as LonLat), k);
+      for (const run of ends.unmatched) {
+        // a trench runs straight for tens of metres: ±6 fixes (about 15 m of walking) smooth a handheld walk
+        const k = up.surveyGrade ? 0 : 6;
+        // what is left of a smoothed walk's noise: about σ/√(2k+1) per point; simplify within twice that
+        const coords = unplannedLine(run.map((f) => [f.lon, f.lat] as LonLat), { k, simplifyM: (2 * up.sigmaM) / Math.sqrt(2 * k + 1) });
         const lengthM = lineLengthM(coords);
         if (lengthM < 2) continue;
         stats.unplannedRuns++;
