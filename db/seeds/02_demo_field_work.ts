@@ -14,7 +14,8 @@ import { mulberry32 } from '../../lib/records/seeded-random';
 
 // The demo's field work in Quillhaven North: a design of four streets and their road crossings, one crew's
 // handheld walk (with a detour around a tree pit on Lanternfield Road), an RTK survey of Cobbler Walk laid
-// 0.8 m off the design for 30 m, and Saltmarsh Row not yet built. Generated, fictional, idempotent.
+// 0.8 m off the design for 30 m, a spur laid on past the end of Wickham Rise that the design does not have
+// (Ferrier Close, agreed on site), and Saltmarsh Row not yet built. Generated, fictional, idempotent.
 const G = geodesic.Geodesic.WGS84;
 const O: [number, number] = [9.104, 52.106];
 const at = (east: number, north: number): [number, number] => {
@@ -70,6 +71,17 @@ function rtk(): string {
   return rows.join('\n') + '\n';
 }
 
+/** RTK points of the spur: from 3 m beyond the end of Wickham Rise, 45 m on to the north-east. */
+function spur(): string {
+  const n = prng(91);
+  const rows = ['Pt,Lat,Lon,Height,Code,Fix,HRMS'];
+  for (let s = 3; s <= 48; s += 3) {
+    const [lon, lat] = at(250 + s * 0.5 + 0.015 * n(), 136 + s * 0.866 + 0.015 * n());
+    rows.push(`FC${s},${lat.toFixed(9)},${lon.toFixed(9)},${(48.6 + s * 0.003).toFixed(3)},TR,fixed,0.014`);
+  }
+  return rows.join('\n') + '\n';
+}
+
 async function form(dir: string, name: string, text: string, fields: Record<string, string>) {
   const tmpPath = path.join(dir, name);
   await writeFile(tmpPath, text);
@@ -93,6 +105,7 @@ export async function seed(knex: Knex): Promise<void> {
     }
     await receiveUpload(knex, surveyor, project, await form(dir, 'crew2-morning-walk.gpx', walk(), { accuracy: 'handheld_gnss', surveyDate: '2026-11-03', crew: 'Crew 2', content: 'trench' }));
     await receiveUpload(knex, surveyor, project, await form(dir, 'cobbler-walk-rtk.csv', rtk(), { accuracy: 'rtk_gnss', surveyDate: '2026-11-04', crew: 'Survey team', content: 'trench' }));
+    await receiveUpload(knex, surveyor, project, await form(dir, 'ferrier-close-spur-rtk.csv', spur(), { accuracy: 'rtk_gnss', surveyDate: '2026-11-05', crew: 'Survey team', content: 'trench' }));
     await runReconciliation(knex, row.id, null, { userId: engineer.id, label: `demo seed for ${engineer.name}`, organisationId: engineer.organisationId }, async () => {});
   } finally {
     await rm(dir, { recursive: true, force: true });
