@@ -86,11 +86,95 @@ export function subLine(coords: LonLat[], from: number, to: number): LonLat[] {
 }
 
 const margin = (s: RouteObservations, o: Required<SectionOptions>) => (s.surveyGrade ? 0 : Math.min(s.sigmaM, o.bridgeM / 2));
+/** Where the source saw the trench: as its caller estimated it, else from its fixes with a margin at each end. */
+const seen = (s: RouteObservations, o: Required<SectionOptions>) => s.intervals ?? observedIntervals(s.fixes, o.bridgeM, margin(s, o));
+
+/**
+ * Fixes sorted by chainage, as columns: each bin's windows are then index ranges found by binary search.
+ * The ranges hold exactly the fixes that `Math.abs(chainage − c) <= w` keeps, in the same order, since
+ * that distance falls monotonically towards c on either side.
+ */
+interface SortedFixes {
+  chainage: Float64Array;
+  offset: Float64Array;
+  /** NaN where the fix has no time */
+  t: Float64Array;
+}
+
+function sortedColumns(fixes: RouteObservations['fixes']): SortedFixes {
+  const n = fixes.length;
+  const out: SortedFixes = { chainage: new Float64Array(n), offset: new Float64Array(n), t: new Float64Array(n) };
+  fixes.forEach((f, i) => ((out.chainage[i] = f.chainageM), (out.offset[i] = f.offsetM), (out.t[i] = f.t ?? NaN)));
+  return out;
+}
+
+/** First index whose chainage is not more than w below c. */
+function windowStart(ch: Float64Array, c: number, w: number): number {
+  let lo = 0;
+  let hi = ch.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if (ch[mid] < c && Math.abs(ch[mid] - c) > w) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo;
+}
+
+/** First index whose chainage is more than w above c. */
+function windowEnd(ch: Float64Array, c: number, w: number): number {
+  let lo = 0;
+  let hi = ch.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if (ch[mid] > c && Math.abs(ch[mid] - c) > w) hi = mid;
+    else lo = mid + 1;
+  }
+  return lo;
+}
+
+/** trimmedMean of `n` values in `xs` (sorted in place): a typed sort, no copies, the same sum in the same order. */
+function trimmedMeanInPlace(xs: Float64Array, n: number): number {
+  const s = xs.subarray(0, n).sort();
+  const k = Math.floor(n * 0.1);
+  let sum = 0;
+  for (let i = k; i < n - k; i++) sum += s[i];
+  return sum / (n - 2 * k);
+}
+
+/**
+ * median of `n` values in `xs` (reordered in place), the element `median` picks, by quickselect (Hoare 1961):
+ * linear in n where sorting the ±32 m ring of a much-walked route is not.
+ */
+function medianInPlace(xs: Float64Array, n: number): number {
+  if (n === 0) return 0;
+  const k = Math.min(n - 1, Math.max(0, Math.ceil(0.5 * n) - 1));
+  let lo = 0;
+  let hi = n - 1;
+  while (hi > lo) {
+    const pivot = xs[(lo + hi) >> 1];
+    let i = lo;
+    let j = hi;
+    while (i <= j) {
+      while (xs[i] < pivot) i++;
+      while (xs[j] > pivot) j--;
+      if (i <= j) {
+        const t = xs[i];
+        (xs[i++] = xs[j]), (xs[j--] = t);
+      }
+    }
+    if (k <= j) hi = j;
+    else if (k >= i) lo = i;
+    else return xs[k];
+  }
+  return xs[k];
+}
 
 function smoothBins(route: LonLat[], length: number, sources: RouteObservations[], o: Required<SectionOptions>): Bin[] {
   const nb = Math.max(1, Math.ceil(length));
-  const covered = sources.map((s) => observedIntervals(s.fixes, o.bridgeM, margin(s, o)));
+  const covered = sources.map((s) => seen(s, o));
   const sorted = sources.map((s) => [...s.fixes].sort((a, b) => a.chainageM - b.chainageM));
+  const columns = sorted.map(sortedColumns);
+  const scratch = new Float64Array(Math.max(1, ...sorted.map((f) => f.length)));
   const bins: Bin[] = [];
   for (let i = 0; i < nb; i++) {
     const c = Math.min(length, i + 0.5);
@@ -106,30 +190,46 @@ function smoothBins(route: LonLat[], length: number, sources: RouteObservations[
     }
     const s = sources[best];
     const fx = sorted[best];
+    const { chainage, offset, t } = columns[best];
     const w = s.surveyGrade ? Math.max(1, o.windowM / 10) : o.windowM;
-    const near = fx.filter((f) => Math.abs(f.chainageM - c) <= w);
-    const local = near.length ? near : [fx.reduce((p, f) => (Math.abs(f.chainageM - c) < Math.abs(p.chainageM - c) ? f : p))];
-    const centre = trimmedMean(local.map((f) => f.offsetM));
+    const [n0, n1] = [windowStart(chainage, c, w), windowEnd(chainage, c, w)];
+    let count = n1 - n0;
+    if (count > 0) scratch.set(offset.subarray(n0, n1));
+    else {
+      scratch[0] = fx.reduce((p, f) => (Math.abs(f.chainageM - c) < Math.abs(p.chainageM - c) ? f : p)).offsetM;
+      count = 1;
+    }
+    const centre = trimmedMeanInPlace(scratch, count);
     let anomaly = centre;
     let baseline = 0;
     let residualBias = 0;
-    let se = (TRIM_EFFICIENCY * s.sigmaM) / Math.sqrt(local.length);
+    let se = (TRIM_EFFICIENCY * s.sigmaM) / Math.sqrt(count);
     if (!s.surveyGrade) {
       // the GNSS bias drifts over a minute or so: measure the offset against its wider neighbourhood,
       // and allow for how far the bias can wander within that neighbourhood's time span
       // the ring around the window, not the window itself, so that a detour does not pull its own baseline
-      const wideFixes = fx.filter((f) => Math.abs(f.chainageM - c) <= 4 * o.windowM);
-      const ring = wideFixes.filter((f) => Math.abs(f.chainageM - c) > 2 * o.windowM);
-      const basis = ring.length >= 5 ? ring : wideFixes;
-      baseline = median(basis.map((f) => f.offsetM));
+      const [w0, w1] = [windowStart(chainage, c, 4 * o.windowM), windowEnd(chainage, c, 4 * o.windowM)];
+      const [r0, r1] = [windowStart(chainage, c, 2 * o.windowM), windowEnd(chainage, c, 2 * o.windowM)];
+      const ringSize = r0 - w0 + (w1 - r1);
+      let basisSize: number;
+      if (ringSize >= 5) {
+        scratch.set(offset.subarray(w0, r0));
+        scratch.set(offset.subarray(r1, w1), r0 - w0);
+        basisSize = ringSize;
+      } else {
+        scratch.set(offset.subarray(w0, w1));
+        basisSize = w1 - w0;
+      }
+      baseline = medianInPlace(scratch, basisSize);
       anomaly = centre - baseline;
-      const times = wideFixes.map((f) => f.t).filter((t): t is number => t !== null);
-      const span = times.length > 1 ? Math.max(...times) - Math.min(...times) : 8 * w;
+      let [tMin, tMax, timed] = [Infinity, -Infinity, 0];
+      for (let j = w0; j < w1; j++) if (t[j] === t[j]) (tMin = Math.min(tMin, t[j])), (tMax = Math.max(tMax, t[j])), timed++;
+      const span = timed > 1 ? tMax - tMin : 8 * w;
       // over a span T much shorter than τ the bias moves like a random walk with diffusion 2σ²/τ, so its
       // distance from its own average over the span has variance σ²·T/(3τ); beyond that it is plain σ²
       const drift = o.biasSigmaM * Math.sqrt(Math.min(1, span / (3 * o.biasTauS)));
       // the baseline is itself a median of noisy fixes: its error does not shrink with the window's fixes
-      const baselineSe = (MEDIAN_EFFICIENCY * s.sigmaM) / Math.sqrt(basis.length);
+      const baselineSe = (MEDIAN_EFFICIENCY * s.sigmaM) / Math.sqrt(basisSize);
       residualBias = Math.hypot(drift, baselineSe);
       se = Math.sqrt(se * se + residualBias * residualBias);
     }
@@ -156,6 +256,18 @@ function smoothBins(route: LonLat[], length: number, sources: RouteObservations[
   return bins;
 }
 
+/** The builder's settings where the caller gives none (bias and its correlation time after the matcher's scenarios). */
+export const SECTION_DEFAULTS: Required<Omit<SectionOptions, 'toleranceM'>> = { biasSigmaM: 1, biasTauS: 60, bridgeM: 60, windowM: 8, minRunM: 6, breaksM: [] };
+
+/** The measured offset at a chainage, interpolated between the survey points about it (held at the ends). */
+function offsetAt(sorted: RouteObservations['fixes'], c: number): { chainageM: number; offsetM: number } {
+  const j = sorted.findIndex((f) => f.chainageM >= c);
+  if (j <= 0) return { chainageM: c, offsetM: sorted[j === 0 ? 0 : sorted.length - 1].offsetM };
+  const [a, b] = [sorted[j - 1], sorted[j]];
+  const t = b.chainageM > a.chainageM ? (c - a.chainageM) / (b.chainageM - a.chainageM) : 0;
+  return { chainageM: c, offsetM: a.offsetM + t * (b.offsetM - a.offsetM) };
+}
+
 /**
  * The as-built sections of one planned route from every upload matched onto it: built intervals by
  * chainage; `as_planned` where the observations agree with the plan within their noise (the line is the
@@ -166,7 +278,7 @@ function smoothBins(route: LonLat[], length: number, sources: RouteObservations[
  * buildRouteSections({ ref: 'R-1', coords }, [{ uploadId, sigmaM: 4, surveyGrade: false, laidOn, fixes }], { toleranceM: 0.5 })
  */
 export function buildRouteSections(route: { ref: string; coords: LonLat[] }, sources: RouteObservations[], opts: SectionOptions): SectionDraft[] {
-  const o: Required<SectionOptions> = { biasSigmaM: 1, biasTauS: 60, bridgeM: 60, windowM: 8, minRunM: 6, breaksM: [], ...opts };
+  const o: Required<SectionOptions> = { ...SECTION_DEFAULTS, ...opts };
   const length = lineLengthM(route.coords);
   const bins = smoothBins(route.coords, length, sources, o);
   // a split falls on the metre boundary nearest its chainage: sections are built from 1 m bins
@@ -188,9 +300,13 @@ export function buildRouteSections(route: { ref: string; coords: LonLat[] }, sou
       offsets = [];
       accuracyM = 0;
     } else if (src.surveyGrade) {
-      const pts = src.fixes.filter((f) => f.chainageM >= from && f.chainageM <= to).sort((a, b) => a.chainageM - b.chainageM);
-      coords = pts.length >= 2 ? pts.map((f) => offsetPoint(route.coords, f.chainageM, f.offsetM)) : subLine(route.coords, from, to);
-      offsets = pts.map((f) => Math.abs(f.offsetM));
+      const all = [...src.fixes].sort((a, b) => a.chainageM - b.chainageM);
+      const pts = all.filter((f) => f.chainageM > from && f.chainageM < to);
+      // the measured line runs from boundary to boundary: its ends are interpolated between the points on
+      // either side, so neighbouring sections meet and no length is lost between them
+      const ends = [offsetAt(all, from), offsetAt(all, to)];
+      coords = all.length >= 2 ? [ends[0], ...pts, ends[1]].map((f) => offsetPoint(route.coords, f.chainageM, f.offsetM)) : subLine(route.coords, from, to);
+      offsets = [...pts, ...ends].map((f) => Math.abs(f.offsetM));
       accuracyM = R95 * src.sigmaM;
     } else if (status === 'deviates') {
       coords = run.map((b, k) => offsetPoint(route.coords, Math.min(length, from + k + 0.5), b.anomaly));
@@ -203,7 +319,7 @@ export function buildRouteSections(route: { ref: string; coords: LonLat[] }, sou
       offsets = run.map((b) => Math.abs(b.anomaly));
       accuracyM = R95 * median(run.map((b) => b.se));
     }
-    const contributing = src ? sources.filter((s) => observedIntervals(s.fixes, o.bridgeM, margin(s, o)).some(([a, b]) => a < to && b > from)) : [];
+    const contributing = src ? sources.filter((s) => seen(s, o).some(([a, b]) => a < to && b > from)) : [];
     drafts.push({
       ref: route.ref,
       fromChainageM: from,

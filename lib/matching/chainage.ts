@@ -146,12 +146,17 @@ export function projectOntoLine(coords: LonLat[], p: LonLat): Projection {
     planar.push({ i, d, s: t * Math.sqrt(l2) });
     best = Math.min(best, d);
   }
-  const cum = cumulativeChainage(coords);
+  // chainage at the finalists' vertices only: the same running sum as cumulativeChainage, stopped early
+  const cum = [0];
+  const chainageAt = (i: number) => {
+    for (let k = cum.length; k <= i; k++) cum.push(cum[k - 1] + distanceM(coords[k - 1], coords[k]));
+    return cum[i];
+  };
   let out: Projection | undefined;
   for (const c of planar) {
     if (c.d > best * 1.01 + 0.01) continue;
     const foot = footOnSegment(coords[c.i], coords[c.i + 1], p, c.s);
-    if (!out || foot.d < out.distanceM) out = { chainageM: cum[c.i] + foot.s, distanceM: foot.d, point: foot.point, segment: c.i };
+    if (!out || foot.d < out.distanceM) out = { chainageM: chainageAt(c.i) + foot.s, distanceM: foot.d, point: foot.point, segment: c.i };
   }
   return out!;
 }

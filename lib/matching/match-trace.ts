@@ -1,8 +1,8 @@
-import { candidatesFor, makeCandidateIndex, metresPerDegree } from './candidates';
-import { resolveMatchOptions, type Candidate, type Fix, type MatchOptions, type MatchResult, type MatchedFix, type ResolvedMatchOptions } from './match-types';
-import { makeRouteNetwork, routeDistanceM } from './route-distance';
+import { appendCandidates, CandidateColumns, makeCandidateIndex, metresPerDegree } from './candidates';
+import { resolveMatchOptions, type Fix, type MatchOptions, type MatchResult, type ResolvedMatchOptions } from './match-types';
+import { locatePositions, makeRouteNetwork, routeDistanceMatrix, type PositionColumns } from './route-distance';
 import type { PlannedRouteInput, RouteGraph } from './types';
-import { viterbi } from './viterbi';
+import { viterbiLayers } from './viterbi';
 
 // Hidden-Markov map matching after Newson & Krumm (2009), "Hidden Markov Map Matching Through Noise and
 // Sparseness", ACM SIGSPATIAL GIS, doi:10.1145/1653771.1653818.
@@ -97,18 +97,21 @@ function splitPieces(fixes: Fix[], p: Plane, o: ResolvedMatchOptions): number[][
   return pieces;
 }
 
+const grow = <T extends Int32Array | Float64Array>(from: T, to: T): T => (to.set(from), to);
+
 /**
  * Drops candidates e^−32 (≈ 1e−14) or more less likely than the fix's best one. Within a handheld radius of
  * 4σ this never bites (at most e^−8); for an RTK survey (σ = 5 cm) it removes the far side of the street, so
  * a survey that jumps to a route it cannot reach by the network breaks the chain instead of pulling the
- * preceding points onto the wrong route. Candidates arrive nearest first.
+ * preceding points onto the wrong route. Candidates arrive nearest first: the fix's n candidates from
+ * `first` on in `c`; returns how many to keep.
  */
-function prune(c: Candidate[], sigmaM: number): Candidate[] {
-  if (c.length < 2) return c;
-  const z0 = c[0].distanceM / sigmaM;
-  let n = 1;
-  while (n < c.length && (c[n].distanceM / sigmaM) ** 2 - z0 * z0 <= 64) n++;
-  return n === c.length ? c : c.slice(0, n);
+function prune(c: CandidateColumns, first: number, n: number, sigmaM: number): number {
+  if (n < 2) return n;
+  const z0 = c.distance[first] / sigmaM;
+  let kept = 1;
+  while (kept < n && (c.distance[first + kept] / sigmaM) ** 2 - z0 * z0 <= 64) kept++;
+  return kept;
 }
 
 /**
@@ -127,49 +130,69 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
   const result: MatchResult = { matched: [], unmatched: [], outliers: [], pieces: pieces.length };
   const logBeta = Math.log(o.betaM);
   const outlierAt: number[] = [];
+  // the current chain's candidates: those of its k-th fix are first[k] … first[k + 1] − 1 in cands
+  const cands = new CandidateColumns();
+  // the candidates as positions: each one's graph edge and its legs to the edge's from and to node, found once
+  const pos: PositionColumns = { route: cands.route, chainage: cands.chainage, edge: new Int32Array(cands.route.length), leg0: new Float64Array(cands.route.length), leg1: new Float64Array(cands.route.length) };
+  let chain: number[] = [];
+  let first: number[] = [0];
 
-  const runChain = (chain: number[], cands: Candidate[][]) => {
+  const runChain = () => {
     if (chain.length === 0) return;
+    // Newson & Krumm drop transitions whose route is far longer than the straight line between the fixes
+    const bound = new Float64Array(chain.length);
     const gc = new Float64Array(chain.length);
-    for (let k = 1; k < chain.length; k++) gc[k] = dist(plane, chain[k - 1], chain[k]);
-    const { path } = viterbi(
-      cands.map((c) => c.length),
-      (k, j) => emissionLogProb(cands[k][j].distanceM, o.sigmaM),
-      (k, i, j) => {
-        // Newson & Krumm drop transitions whose route is far longer than the straight line between the fixes
-        const rd = routeDistanceM(net, cands[k - 1][i], cands[k][j], 4 * gc[k] + 50);
-        return rd === Infinity ? -Infinity : -Math.abs(rd - gc[k]) / o.betaM - logBeta;
-      },
-    );
-    chain.forEach((i, k) => {
-      const c = cands[k][path[k]];
-      result.matched.push({ seq: fixes[i].seq, ref: c.ref, chainageM: c.chainageM, offsetM: c.offsetM, distanceM: c.distanceM });
+    for (let k = 1; k < chain.length; k++) (gc[k] = dist(plane, chain[k - 1], chain[k])), (bound[k] = 4 * gc[k] + 50);
+    const counts = new Int32Array(chain.length);
+    for (let k = 0; k < chain.length; k++) counts[k] = first[k + 1] - first[k];
+    const { route, chainage, distance } = cands;
+    const emissions = new Float64Array(first[chain.length]);
+    for (let c = 0; c < emissions.length; c++) emissions[c] = emissionLogProb(distance[c], o.sigmaM);
+    const betaM = o.betaM;
+    const { path } = viterbiLayers(counts, emissions, (k, out) => {
+      const size = counts[k - 1] * counts[k];
+      routeDistanceMatrix(net, pos, first[k - 1], counts[k - 1], first[k], counts[k], bound[k], out);
+      for (let x = 0; x < size; x++) out[x] = out[x] === Infinity ? -Infinity : -Math.abs(out[x] - gc[k]) / betaM - logBeta;
     });
+    chain.forEach((i, k) => {
+      const c = first[k] + path[k];
+      result.matched.push({ seq: fixes[i].seq, ref: routes[route[c]].ref, chainageM: chainage[c], offsetM: cands.offset[c], distanceM: distance[c] });
+    });
+    // the fix that closed the chain may have its candidates in already: they start the next chain
+    const [end, tail] = [first[chain.length], cands.length - first[chain.length]];
+    for (const col of [cands.route, cands.chainage, cands.distance, cands.offset, pos.edge, pos.leg0, pos.leg1]) col.copyWithin(0, end, end + tail);
+    (chain = []), (first = [0]), (cands.length = tail);
   };
 
   for (const piece of pieces) {
     const spike = spikes(fixes, piece, plane, o);
-    let chain: number[] = [];
-    let chainCands: Candidate[][] = [];
     let far: number[] = [];
     const closeFar = () => {
       if (far.length >= 3) {
-        runChain(chain, chainCands);
-        (chain = []), (chainCands = []);
+        runChain();
         result.unmatched.push(far.map((i) => fixes[i]));
       } else for (const i of far) outlierAt.push(i);
       far = [];
     };
     piece.forEach((i, k) => {
       if (spike[k]) return void outlierAt.push(i);
-      const c = prune(candidatesFor(index, fixes[i], o.searchRadiusM, o.maxCandidates), o.sigmaM);
-      if (c.length === 0) return void far.push(i);
+      const at = cands.length;
+      const n = prune(cands, at, appendCandidates(index, fixes[i], o.searchRadiusM, o.maxCandidates, cands), o.sigmaM);
+      cands.length = at + n;
+      if (n === 0) return void far.push(i);
       if (far.length > 0) closeFar();
+      if (pos.edge.length < cands.route.length) {
+        const size = cands.route.length;
+        [pos.edge, pos.leg0, pos.leg1] = [grow(pos.edge, new Int32Array(size)), grow(pos.leg0, new Float64Array(size)), grow(pos.leg1, new Float64Array(size))];
+      }
+      pos.route = cands.route;
+      pos.chainage = cands.chainage;
+      locatePositions(net, pos, cands.length - n, cands.length);
       chain.push(i);
-      chainCands.push(c);
+      first.push(cands.length);
     });
     closeFar();
-    runChain(chain, chainCands);
+    runChain();
   }
   // a spike inside a run of far fixes is found before the run closes: restore input order
   result.outliers = outlierAt.sort((a, b) => a - b).map((i) => fixes[i].seq);

@@ -1,8 +1,8 @@
-import { buildRouteSections } from './build-sections';
+import { buildRouteSections, SECTION_DEFAULTS } from './build-sections';
 import { applyRouteCorrections, reassignFixes, splitPoints, type Correction } from './corrections';
 import { unplannedLine } from './unplanned-line';
-import { claimBeyondEnds, foldJunctionHops } from './visits';
-import { lineLengthM } from './chainage';
+import { claimBeyondEnds, foldJunctionHops, walkedIntervals } from './visits';
+import { distanceM, lineLengthM } from './chainage';
 import { matchTrace } from './match-trace';
 import type { Fix } from './match-types';
 import { buildRouteGraph } from './route-graph';
@@ -60,6 +60,8 @@ export async function reconcileProject(
   const graph = buildRouteGraph(routes);
   const corrections = opts.corrections ?? [];
   const routeByRef = new Map(routes.map((r) => [r.ref, r]));
+  const lengths = new Map(routes.map((r) => [r.ref, lineLengthM(r.coords)]));
+  const lengthOf = (ref: string) => lengths.get(ref) ?? 0;
   const byRoute = new Map<string, RouteObservations[]>();
   const drafts: SectionDraft[] = [];
   const stats: ReconcileStats = { fixes: 0, matched: 0, outliers: 0, unplannedRuns: 0, pieces: 0, reassigned: 0, junctionHops: 0 };
@@ -96,16 +98,22 @@ export async function reconcileProject(
         list.push({ chainageM: m.chainageM, offsetM: m.offsetM, t: time.get(m.seq) ?? null });
         perRef.set(m.ref, list);
       }
+      // where a walk saw trench: per visit, from its smoothed chainages (survey points are taken as they are)
+      const offNetwork = new Set(ends.unmatched.flatMap((r) => r.fixes.map((f) => f.seq)));
+      const apart = (a: number, b: number) => { for (let q = a + 1; q < b; q++) if (offNetwork.has(q)) return true; return false; };
+      const walked = up.surveyGrade ? null : walkedIntervals(matched, graph, { k: 5, bridgeM: SECTION_DEFAULTS.bridgeM, minFixes: 3, nearM: 2 * up.sigmaM, lengthOf, apart });
       for (const [ref, fixes] of perRef) {
         const list = byRoute.get(ref) ?? [];
-        list.push({ uploadId: up.uploadId, sigmaM: up.sigmaM, surveyGrade: up.surveyGrade, laidOn: up.laidOn, fixes });
+        list.push({ uploadId: up.uploadId, sigmaM: up.sigmaM, surveyGrade: up.surveyGrade, laidOn: up.laidOn, fixes, ...(walked ? { intervals: walked.get(ref) ?? [] } : {}) });
         byRoute.set(ref, list);
       }
       for (const run of ends.unmatched) {
         // a trench runs straight for tens of metres: ±6 fixes (about 15 m of walking) smooth a handheld walk
         const k = up.surveyGrade ? 0 : 6;
         // what is left of a smoothed walk's noise: about σ/√(2k+1) per point; simplify within twice that
-        const coords = unplannedLine(run.map((f) => [f.lon, f.lat] as LonLat), { k, simplifyM: (2 * up.sigmaM) / Math.sqrt(2 * k + 1) });
+        const line = unplannedLine(run.fixes.map((f) => [f.lon, f.lat] as LonLat), { k, simplifyM: (2 * up.sigmaM) / Math.sqrt(2 * k + 1) });
+        // a trench laid on past a route's end starts at that end: the line joins the network there
+        const coords = [...(run.from ? [run.from] : []), ...line, ...(run.to && (!run.from || distanceM(run.from, run.to) > 1) ? [run.to] : [])];
         const lengthM = lineLengthM(coords);
         if (lengthM < 2) continue;
         stats.unplannedRuns++;

@@ -17,14 +17,40 @@ export interface RouteNetwork {
   adjStart: Int32Array;
   adjNode: Int32Array;
   adjLen: Float64Array;
-  /** node → (bound searched, distances to every node settled within it) */
-  cache: Map<number, { bound: number; dist: Map<number, number> }>;
+  /**
+   * per source node: the bound searched (−1: not searched), and where in the pool its search's settled
+   * nodes lie (sorted by id, with their distances); `cached` counts the sources held
+   */
+  sourceBound: Float64Array;
+  sourceStart: Int32Array;
+  sourceCount: Int32Array;
+  poolNode: Int32Array;
+  poolDist: Float64Array;
+  poolUsed: number;
+  cached: number;
+  /** Dijkstra's scratch, stamped per search: tentative distances, and whether a node is settled */
+  seen: Int32Array;
+  done: Int32Array;
+  tentative: Float64Array;
+  settledOrder: Int32Array;
+  searches: number;
+  /**
+   * Edge pairs, direct-mapped (a slot per hash of the pair, the newest pair wins it), 8 numbers a slot so
+   * that one probe reads one cache line: edge A, edge B, the bound the distances hold to, then the node
+   * distances from A's from/to node to B's from/to node, each exact where ≤ the bound, Infinity beyond,
+   * NaN until first needed.
+   * Consecutive fixes mostly share their candidates' edges, so a transition is one probe, not four searches.
+   */
+  pairMask: number;
+  pairs: Float64Array;
   heapNode: number[];
   heapKey: number[];
 }
 
 // a walk seldom needs more than a few hundred source nodes; a full clear is cheaper than an LRU at this size
 const CACHE_LIMIT = 4096;
+// the smallest bound a pair's distances are found to: most transitions ask for ~70 m (4 × a 1 Hz step + 50)
+const PAIR_MIN_BOUND_M = 128;
 
 /**
  * Prepares `graph` (built from the same routes, in any order) for routeDistanceM.
@@ -51,26 +77,42 @@ export function makeRouteNetwork(graph: RouteGraph, routes: PlannedRouteInput[])
     (adjNode[fill[e.fromNode]] = e.toNode), (adjLen[fill[e.fromNode]++] = e.lengthM);
     (adjNode[fill[e.toNode]] = e.fromNode), (adjLen[fill[e.toNode]++] = e.lengthM);
   }
-  return { routeEdges, edges: graph.edges, adjStart, adjNode, adjLen, cache: new Map(), heapNode: [], heapKey: [] };
+  // about eight slots an edge, at most 2 MB: a walk's neighbourhood of edge pairs stays in them, and in cache
+  const slots = Math.min(1 << 15, Math.max(256, 2 ** Math.ceil(Math.log2(8 * graph.edges.length + 1))));
+  return {
+    routeEdges, edges: graph.edges, adjStart, adjNode, adjLen,
+    sourceBound: new Float64Array(n).fill(-1), sourceStart: new Int32Array(n), sourceCount: new Int32Array(n),
+    poolNode: new Int32Array(1024), poolDist: new Float64Array(1024), poolUsed: 0, cached: 0,
+    seen: new Int32Array(n), done: new Int32Array(n), tentative: new Float64Array(n), settledOrder: new Int32Array(n), searches: 0,
+    pairMask: slots - 1, pairs: new Float64Array(8 * slots).fill(-1),
+    heapNode: [], heapKey: [],
+  };
 }
 
-/** The edge of `route` holding `chainageM` (binary search), or −1 when the route is not in the graph. */
-function edgeAt(net: RouteNetwork, p: RoutePosition): number {
-  const list = net.routeEdges[p.route];
+/**
+ * The graph edge of `route` holding `chainageM` (binary search), or −1 when the route is not in the graph.
+ * `edgeAtChainage(net, 0, 12.5)` → the index in net.edges of routes[0]'s edge around 12.5 m
+ */
+export function edgeAtChainage(net: RouteNetwork, route: number, chainageM: number): number {
+  const list = net.routeEdges[route];
   if (!list || list.length === 0) return -1;
-  let [lo, hi] = [0, list.length - 1];
+  let lo = 0;
+  let hi = list.length - 1;
   while (lo < hi) {
     const mid = (lo + hi + 1) >> 1;
-    if (net.edges[list[mid]].fromChainageM <= p.chainageM) lo = mid;
+    if (net.edges[list[mid]].fromChainageM <= chainageM) lo = mid;
     else hi = mid - 1;
   }
   return list[lo];
 }
 
-/** Dijkstra from `source`, settling nodes up to `bound` metres; a binary heap on the network's scratch arrays. */
-function dijkstra(net: RouteNetwork, source: number, bound: number): Map<number, number> {
-  const dist = new Map<number, number>([[source, 0]]);
-  const settled = new Map<number, number>();
+/**
+ * Dijkstra from `source`, settling nodes up to `bound` metres; a binary heap on the network's scratch arrays.
+ * Returns how many nodes it settled, in net.settledOrder, their distances in net.tentative.
+ */
+function dijkstra(net: RouteNetwork, source: number, bound: number): number {
+  const run = ++net.searches;
+  const { seen, done, tentative, settledOrder } = net;
   const [hn, hk] = [net.heapNode, net.heapKey];
   hn.length = hk.length = 0;
   const push = (node: number, key: number) => {
@@ -99,36 +141,174 @@ function dijkstra(net: RouteNetwork, source: number, bound: number): Map<number,
     }
     return node;
   };
+  (seen[source] = run), (tentative[source] = 0);
   push(source, 0);
+  let settled = 0;
   while (hn.length > 0) {
     const key = hk[0];
     const u = pop();
-    if (settled.has(u)) continue;
-    settled.set(u, key);
+    if (done[u] === run) continue;
+    (done[u] = run), (tentative[u] = key), (settledOrder[settled++] = u);
     for (let j = net.adjStart[u]; j < net.adjStart[u + 1]; j++) {
       const v = net.adjNode[j];
       const d = key + net.adjLen[j];
-      if (d > bound || settled.has(v) || d >= (dist.get(v) ?? Infinity)) continue;
-      dist.set(v, d);
+      if (d > bound || done[v] === run || (seen[v] === run && d >= tentative[v])) continue;
+      (seen[v] = run), (tentative[v] = d);
       push(v, d);
     }
   }
   return settled;
 }
 
+/** The distance to `to` settled by the cached search from `from`, or −1 (binary search by node id). */
+function cachedDistance(net: RouteNetwork, from: number, to: number): number {
+  const nodes = net.poolNode;
+  let lo = net.sourceStart[from];
+  let hi = lo + net.sourceCount[from] - 1;
+  while (lo <= hi) {
+    const mid = (lo + hi) >> 1;
+    if (nodes[mid] < to) lo = mid + 1;
+    else if (nodes[mid] > to) hi = mid - 1;
+    else return net.poolDist[mid];
+  }
+  return -1;
+}
+
 /** Shortest distance between two nodes if it is ≤ bound, else Infinity; cached per source node. */
 function nodeDistance(net: RouteNetwork, from: number, to: number, bound: number): number {
   if (from === to) return 0;
-  let hit = net.cache.get(from);
-  if (!hit || (hit.bound < bound && !hit.dist.has(to))) {
-    if (net.cache.size >= CACHE_LIMIT) net.cache.clear();
+  const searched = net.sourceBound[from];
+  let d = searched < 0 ? -1 : cachedDistance(net, from, to);
+  if (searched < 0 || (searched < bound && d < 0)) {
+    if (net.cached >= CACHE_LIMIT) (net.sourceBound.fill(-1), (net.cached = 0), (net.poolUsed = 0));
+    if (net.sourceBound[from] < 0) net.cached++;
     // searching twice as far as asked lets the next few queries from this node hit the cache
-    const b = Math.max(bound, 2 * (hit?.bound ?? 0));
-    hit = { bound: b, dist: dijkstra(net, from, b) };
-    net.cache.set(from, hit);
+    const b = Math.max(bound, 2 * Math.max(searched, 0));
+    const n = dijkstra(net, from, b);
+    if (net.poolUsed + n > net.poolNode.length) {
+      const size = Math.max(net.poolUsed + n, 2 * net.poolNode.length);
+      const [nodes, dist] = [new Int32Array(size), new Float64Array(size)];
+      nodes.set(net.poolNode.subarray(0, net.poolUsed)), dist.set(net.poolDist.subarray(0, net.poolUsed));
+      [net.poolNode, net.poolDist] = [nodes, dist];
+    }
+    // a new search from a node supersedes its old one, which stays in the pool until the next clear
+    const at = net.poolUsed;
+    const sortedNodes = net.poolNode.subarray(at, at + n);
+    sortedNodes.set(net.settledOrder.subarray(0, n));
+    sortedNodes.sort();
+    for (let i = 0; i < n; i++) net.poolDist[at + i] = net.tentative[sortedNodes[i]];
+    (net.poolUsed += n), (net.sourceBound[from] = b), (net.sourceStart[from] = at), (net.sourceCount[from] = n);
+    d = cachedDistance(net, from, to);
   }
-  const d = hit.dist.get(to);
-  return d !== undefined && d <= bound ? d : Infinity;
+  return d >= 0 && d <= bound ? d : Infinity;
+}
+
+/**
+ * Where in net.pairs the end-node distances of ea and eb start, valid for queries bounded by `boundM`.
+ * A new pair's distances start as NaN, found when a path first needs them (pairDistance): a leg longer
+ * than the bound rules most of them out.
+ */
+function pairSlot(net: RouteNetwork, ea: number, eb: number, boundM: number): number {
+  const P = net.pairs;
+  const h = ((Math.imul(ea, 0x9e3779b1) ^ eb) & net.pairMask) << 3;
+  if (P[h] === ea && P[h + 1] === eb && P[h + 2] >= boundM) return h;
+  (P[h] = ea), (P[h + 1] = eb), (P[h + 2] = Math.max(boundM, PAIR_MIN_BOUND_M));
+  P[h + 3] = P[h + 4] = P[h + 5] = P[h + 6] = NaN;
+  return h;
+}
+
+/** Node distance `which` (0: from–from, 1: from–to, 2: to–from, 3: to–to) of the pair in slot h. */
+function pairDistance(net: RouteNetwork, h: number, which: number): number {
+  const P = net.pairs;
+  let d = P[h + 3 + which];
+  if (d !== d) {
+    const [A, B] = [net.edges[P[h]], net.edges[P[h + 1]]];
+    d = P[h + 3 + which] = nodeDistance(net, which < 2 ? A.fromNode : A.toNode, which % 2 === 0 ? B.fromNode : B.toNode, P[h + 2]);
+  }
+  return d;
+}
+
+/** best after the path start → d → end, if it fits under min(bound, best) (nodeDistance's rule: d ≤ the rest). */
+function via(net: RouteNetwork, h: number, which: number, best: number, boundM: number, start: number, end: number): number {
+  const rest = Math.min(boundM, best) - start - end;
+  if (rest < 0) return best;
+  const d = pairDistance(net, h, which);
+  return d <= rest ? Math.min(best, start + d + end) : best;
+}
+
+/**
+ * How far a position lies from its edge's from node and to node along the route (≥ 0): the first and last
+ * legs of a path that leaves the route by either end of the edge.
+ * `edgeLegs(net, e, 12.5)` → `[12.5 − edge start, edge end − 12.5]`
+ */
+export function edgeLegs(net: RouteNetwork, e: number, chainageM: number): [number, number] {
+  const E = net.edges[e];
+  return [Math.max(chainageM - E.fromChainageM, 0), Math.max(E.toChainageM - chainageM, 0)];
+}
+
+/**
+ * routeDistanceM for positions whose edges (edgeAtChainage) and legs along them (edgeLegs) the caller
+ * already knows: the matcher works them out once a candidate, not once a transition.
+ * `routeDistanceBetween(net, 0, 10, e0, 10, 30, 0, 25, e0, 25, 15, 100)` → 15
+ */
+export function routeDistanceBetween(
+  net: RouteNetwork,
+  routeA: number, chainageA: number, ea: number, a0: number, a1: number,
+  routeB: number, chainageB: number, eb: number, b0: number, b1: number,
+  boundM: number,
+): number {
+  if (routeA === routeB) {
+    const d = Math.abs(chainageA - chainageB);
+    return d <= boundM ? d : Infinity;
+  }
+  if (ea < 0 || eb < 0) return Infinity;
+  const h = pairSlot(net, ea, eb, boundM);
+  let best = via(net, h, 0, Infinity, boundM, a0, b0);
+  best = via(net, h, 1, best, boundM, a0, b1);
+  best = via(net, h, 2, best, boundM, a1, b0);
+  best = via(net, h, 3, best, boundM, a1, b1);
+  return best <= boundM ? best : Infinity;
+}
+
+/** Positions on the plan in flat columns with their edges and legs (edgeAtChainage, edgeLegs): a trace's candidates. */
+export interface PositionColumns {
+  route: Int32Array;
+  chainage: Float64Array;
+  /** −1 where the route is not in the graph */
+  edge: Int32Array;
+  leg0: Float64Array;
+  leg1: Float64Array;
+}
+
+/**
+ * Fills in the edge and legs of positions from … to − 1 of `p` from their route and chainage.
+ * `locatePositions(net, cols, 0, cols.route.length)` → cols.edge, cols.leg0, cols.leg1 set for every position
+ */
+export function locatePositions(net: RouteNetwork, p: PositionColumns, from: number, to: number): void {
+  for (let c = from; c < to; c++) {
+    const e = (p.edge[c] = edgeAtChainage(net, p.route[c], p.chainage[c]));
+    if (e < 0) continue;
+    const E = net.edges[e];
+    // as edgeLegs
+    p.leg0[c] = Math.max(p.chainage[c] - E.fromChainageM, 0);
+    p.leg1[c] = Math.max(E.toChainageM - p.chainage[c], 0);
+  }
+}
+
+/**
+ * routeDistanceBetween from each of the positions a … a + na − 1 to each of b … b + nb − 1, row-major into
+ * `out`: the matcher asks for one layer's transitions in one call.
+ * `routeDistanceMatrix(net, cols, 0, 2, 2, 3, 70, out)` → out[0 … 5] = distances from positions 0, 1 to 2, 3, 4
+ */
+export function routeDistanceMatrix(net: RouteNetwork, p: PositionColumns, a: number, na: number, b: number, nb: number, boundM: number, out: Float64Array): void {
+  const { route, chainage, edge, leg0, leg1 } = p;
+  for (let i = 0; i < na; i++) {
+    const x = a + i;
+    for (let j = 0; j < nb; j++) {
+      const y = b + j;
+      out[i * nb + j] = routeDistanceBetween(net, route[x], chainage[x], edge[x], leg0[x], leg1[x], route[y], chainage[y], edge[y], leg0[y], leg1[y], boundM);
+    }
+  }
 }
 
 /**
@@ -138,23 +318,8 @@ function nodeDistance(net: RouteNetwork, from: number, to: number, bound: number
  * `routeDistanceM(net, { route: 0, chainageM: 10 }, { route: 0, chainageM: 25 }, 100)` → 15
  */
 export function routeDistanceM(net: RouteNetwork, a: RoutePosition, b: RoutePosition, boundM: number): number {
-  if (a.route === b.route) {
-    const d = Math.abs(a.chainageM - b.chainageM);
-    return d <= boundM ? d : Infinity;
-  }
-  const [ea, eb] = [edgeAt(net, a), edgeAt(net, b)];
-  if (ea < 0 || eb < 0) return Infinity;
-  const [A, B] = [net.edges[ea], net.edges[eb]];
-  const starts = [A.fromNode, Math.max(a.chainageM - A.fromChainageM, 0), A.toNode, Math.max(A.toChainageM - a.chainageM, 0)];
-  const ends = [B.fromNode, Math.max(b.chainageM - B.fromChainageM, 0), B.toNode, Math.max(B.toChainageM - b.chainageM, 0)];
-  let best = Infinity;
-  for (let i = 0; i < 4; i += 2) {
-    for (let j = 0; j < 4; j += 2) {
-      const rest = Math.min(boundM, best) - starts[i + 1] - ends[j + 1];
-      if (rest < 0) continue;
-      const d = nodeDistance(net, starts[i], ends[j], rest);
-      if (d !== Infinity) best = Math.min(best, starts[i + 1] + d + ends[j + 1]);
-    }
-  }
-  return best <= boundM ? best : Infinity;
+  const [ea, eb] = a.route === b.route ? [-1, -1] : [edgeAtChainage(net, a.route, a.chainageM), edgeAtChainage(net, b.route, b.chainageM)];
+  const [a0, a1] = ea < 0 ? [0, 0] : edgeLegs(net, ea, a.chainageM);
+  const [b0, b1] = eb < 0 ? [0, 0] : edgeLegs(net, eb, b.chainageM);
+  return routeDistanceBetween(net, a.route, a.chainageM, ea, a0, a1, b.route, b.chainageM, eb, b0, b1, boundM);
 }

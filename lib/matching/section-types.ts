@@ -11,6 +11,8 @@ export interface RouteObservations {
   surveyGrade: boolean;
   laidOn: string | null;
   fixes: { chainageM: number; offsetM: number; t: number | null }[];
+  /** the chainage intervals the source saw built, when the caller estimated them (e.g. per visit of a walk) */
+  intervals?: [number, number][];
 }
 
 /** A stretch of the as-built record before it is given a lasting id. */

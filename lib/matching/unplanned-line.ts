@@ -3,7 +3,7 @@ import { localFrame } from './chainage';
 import type { LonLat } from './types';
 
 /** Local linear fit of x over positions lo…hi (inclusive), evaluated at i: unbiased at a run's ends, unlike a moving average. */
-function localLinear(xs: number[], i: number, lo: number, hi: number): number {
+export function localLinear(xs: number[], i: number, lo: number, hi: number): number {
   const n = hi - lo + 1;
   if (n < 3) return xs.slice(lo, hi + 1).reduce((a, b) => a + b, 0) / n;
   let [st, sx, stt, stx] = [0, 0, 0, 0];

@@ -1,7 +1,8 @@
 import { lineLengthM, localFrame } from './chainage';
 import { signedOffset } from './offset-profile';
+import { localLinear } from './unplanned-line';
 import type { Fix, MatchedFix } from './match-types';
-import type { LonLat, PlannedRouteInput } from './types';
+import type { LonLat, PlannedRouteInput, RouteGraph } from './types';
 
 /** A visit: consecutive matched fixes of one trace on one route, `start` to `end` (exclusive) in match order. */
 export interface Visit {
@@ -26,8 +27,8 @@ export function splitVisits(matched: { ref: string }[]): Visit[] {
 
 /**
  * Near a junction a noisy walk along route A hops onto B and back, because within its noise the fixes fit
- * either. A short visit to B between two visits of A whose fixes all lie within `radiusM` of A is such a
- * hop: its fixes are put back on A (projected), so B does not gain a false stretch of trench. A real walk
+ * either. A short visit to B between two visits of A whose fixes all lie within `radiusM` of A, or no
+ * farther from A than from B, is such a hop: its fixes are put back on A (projected), so B does not gain a false stretch of trench. A real walk
  * along B leaves A's reach, or arrives from a third route.
  */
 export function foldJunctionHops(
@@ -45,7 +46,8 @@ export function foldJunctionHops(
     const home = routes.get(prev.ref);
     if (!home) continue;
     const back = out.slice(hop.start, hop.end).map((m) => ({ m, on: signedOffset(home.coords, position(m.seq)) }));
-    if (!back.every((b) => b.on.distanceM <= opts.radiusM)) continue;
+    // A explains each fix within the noise, or at least as well as B does (a hop to the start of a T-junction)
+    if (!back.every((b) => b.on.distanceM <= opts.radiusM || b.on.distanceM <= b.m.distanceM + 0.5)) continue;
     back.forEach((b, k) => (out[hop.start + k] = { ...b.m, ref: home.ref, ...b.on }));
     folded += back.length;
   }
@@ -62,6 +64,13 @@ function overshoot(coords: LonLat[], atStart: boolean, p: LonLat): number {
   return -(px * bx + py * by) / n;
 }
 
+/** An unmatched run of fixes; `from`/`to` is the end of the route it continues, when it starts or stops there. */
+export interface UnmatchedRun {
+  fixes: Fix[];
+  from?: LonLat;
+  to?: LonLat;
+}
+
 /**
  * A trench laid on past the end of a route: the matcher keeps the first fixes beyond the end on the route
  * (their nearest point is its end), and the unplanned run starts only where they leave its search radius.
@@ -75,18 +84,19 @@ export function claimBeyondEnds(
   fixAt: (seq: number) => Fix,
   routes: Map<string, PlannedRouteInput>,
   opts: { nearM: number },
-): { matched: MatchedFix[]; unmatched: Fix[][]; claimed: number } {
+): { matched: MatchedFix[]; unmatched: UnmatchedRun[]; claimed: number } {
   const lengths = new Map<string, number>();
   const lengthOf = (ref: string, coords: LonLat[]) => lengths.get(ref) ?? (lengths.set(ref, lineLengthM(coords)), lengths.get(ref)!);
-  /** 'beyond' the start or end of its route, 'near' one of them within nearM, or 'inside' */
-  const where = (m: MatchedFix): 'beyond' | 'near' | 'inside' => {
+  /** beyond the start or end of its route (with that end's position), near one of them within nearM, or inside */
+  const where = (m: MatchedFix): { at: 'beyond'; end: LonLat } | { at: 'near' | 'inside' } => {
     const r = routes.get(m.ref);
-    if (!r || r.coords.length < 2) return 'inside';
+    if (!r || r.coords.length < 2) return { at: 'inside' };
     const length = lengthOf(m.ref, r.coords);
     const f = fixAt(m.seq);
     const p: LonLat = [f.lon, f.lat];
-    if ((m.chainageM < 0.05 && overshoot(r.coords, true, p) > 0) || (m.chainageM > length - 0.05 && overshoot(r.coords, false, p) > 0)) return 'beyond';
-    return m.chainageM <= opts.nearM || m.chainageM >= length - opts.nearM ? 'near' : 'inside';
+    if (m.chainageM < 0.05 && overshoot(r.coords, true, p) > 0) return { at: 'beyond', end: r.coords[0] };
+    if (m.chainageM > length - 0.05 && overshoot(r.coords, false, p) > 0) return { at: 'beyond', end: r.coords[r.coords.length - 1] };
+    return { at: m.chainageM <= opts.nearM || m.chainageM >= length - opts.nearM ? 'near' : 'inside' };
   };
   const runs = [...unmatched].sort((a, b) => a[0].seq - b[0].seq);
   const give = new Set<number>();
@@ -94,16 +104,18 @@ export function claimBeyondEnds(
     const lo = r > 0 ? runs[r - 1][runs[r - 1].length - 1].seq : -Infinity;
     const hi = r + 1 < runs.length ? runs[r + 1][0].seq : Infinity;
     const claim: Fix[] = [];
-    const scan = (indices: number[]) => {
+    const scan = (indices: number[]): LonLat | undefined => {
       let ref: string | null = null;
+      let end: LonLat | undefined;
       for (const i of indices) {
         const m = matched[i];
         if (give.has(i) || (ref !== null && m.ref !== ref)) break;
         ref = m.ref;
         const w = where(m);
-        if (w === 'inside') break;
-        if (w === 'beyond') (give.add(i), claim.push(fixAt(m.seq)));
+        if (w.at === 'inside') break;
+        if (w.at === 'beyond') (give.add(i), claim.push(fixAt(m.seq)), (end = w.end));
       }
+      return end;
     };
     const before: number[] = [];
     const after: number[] = [];
@@ -111,18 +123,116 @@ export function claimBeyondEnds(
       if (m.seq > lo && m.seq < run[0].seq) before.push(i);
       else if (m.seq > run[run.length - 1].seq && m.seq < hi) after.push(i);
     });
-    scan(before.reverse());
-    scan(after);
-    return [...claim, ...run].sort((a, b) => a.seq - b.seq);
+    const from = scan(before.reverse());
+    const to = scan(after);
+    return { fixes: [...claim, ...run].sort((a, b) => a.seq - b.seq), from, to };
   });
   const kept = matched.filter((_, i) => !give.has(i));
   // runs that now meet (a noisy fix in reach of the route's end had cut one walk in two) become one
-  const merged: Fix[][] = [];
+  const merged: UnmatchedRun[] = [];
   for (const run of grown) {
     const last = merged[merged.length - 1];
-    const between = last && kept.some((m) => m.seq > last[last.length - 1].seq && m.seq < run[0].seq);
-    if (last && !between) last.push(...run);
+    const between = last && kept.some((m) => m.seq > last.fixes[last.fixes.length - 1].seq && m.seq < run.fixes[0].seq);
+    if (last && !between) (last.fixes.push(...run.fixes), (last.to = run.to));
     else merged.push(run);
   }
   return { matched: kept, unmatched: merged, claimed: give.size };
+}
+
+/**
+ * The chainage intervals a walk saw built on each route. Each visit's chainages are smoothed by a local
+ * linear fit over ±k fixes, so its ends are estimated without the noise of its first and last fix (the raw
+ * extremes overshoot by about σ). Where the walk came from, or went on to, another route, the visit's end is
+ * put at their junction (the handover between routes is blurred by the noise, the junction is where the
+ * trench turned; within `bridgeM`, as a signal gap is bridged). When the two routes do not meet but one
+ * route joins both — a road crossing too short for a noisy walk to show — the walk crossed it: the visit's
+ * end goes to that route's junction and the crossing is seen built between its two junctions. Otherwise an
+ * end within `nearM` of the route's own end goes to that end. A visit also ends where the walk left the
+ * network (`apart`: an unplanned run between two fixes). Stays closer than 2·nearM join; visits of fewer
+ * than `minFixes` fixes are noise about a junction and see nothing.
+ *
+ * walkedIntervals(matched, graph, { k: 5, bridgeM: 60, minFixes: 3, nearM: 7, lengthOf }).get('N1') → [[0, 212.4]]
+ */
+export function walkedIntervals(
+  matched: { seq: number; ref: string; chainageM: number }[],
+  graph: RouteGraph,
+  opts: { k: number; bridgeM: number; minFixes: number; nearM: number; lengthOf: (ref: string) => number; apart?: (seqA: number, seqB: number) => boolean },
+): Map<string, [number, number][]> {
+  // junctions by route: where each route meets others, at which chainage on it
+  const joins = new Map<string, { node: Map<string, number>; at: number }[]>();
+  for (const n of graph.nodes) {
+    const node = new Map(n.routes.map((r) => [r.ref, r.chainageM]));
+    for (const r of n.routes) (joins.get(r.ref) ?? joins.set(r.ref, []).get(r.ref)!).push({ node, at: r.chainageM });
+  }
+  /** the chainage on `ref` nearest `c` (within bridgeM) where `other` joins it */
+  const junction = (ref: string, other: string, c: number): number | undefined => {
+    let best: number | undefined;
+    for (const j of joins.get(ref) ?? []) if (j.node.has(other) && Math.abs(j.at - c) <= opts.bridgeM && (best === undefined || Math.abs(j.at - c) < Math.abs(best - c))) best = j.at;
+    return best;
+  };
+  /** a route joining `ref` near c and `other` near cOther: where on `ref`, and the stretch of it walked across */
+  const across = (ref: string, c: number, other: string, cOther: number): { at: number; via: string; from: number; to: number } | undefined => {
+    let best: { at: number; via: string; from: number; to: number; cost: number } | undefined;
+    for (const j of joins.get(ref) ?? []) {
+      if (Math.abs(j.at - c) > opts.bridgeM) continue;
+      for (const [via, viaAt] of j.node) {
+        if (via === ref || via === other) continue;
+        const far = junction(via, other, viaAt);
+        const onOther = far === undefined ? undefined : [...(joins.get(via) ?? [])].find((x) => x.at === far)?.node.get(other);
+        if (far === undefined || onOther === undefined || Math.abs(onOther - cOther) > opts.bridgeM) continue;
+        const cost = Math.abs(j.at - c) + Math.abs(onOther - cOther) + Math.abs(far - viaAt);
+        if (!best || cost < best.cost) best = { at: j.at, via, from: Math.min(viaAt, far), to: Math.max(viaAt, far), cost };
+      }
+    }
+    return best && { at: best.at, via: best.via, from: best.from, to: best.to };
+  };
+  const toEnd = (ref: string, c: number) => (c <= opts.nearM ? 0 : c >= opts.lengthOf(ref) - opts.nearM ? opts.lengthOf(ref) : c);
+
+  // a stay on a route ends where the walk left the network in between (an unplanned run), too
+  const visits = splitVisits(matched).flatMap((v) => {
+    const parts: Visit[] = [];
+    let start = v.start;
+    for (let i = v.start + 1; i < v.end; i++) if (opts.apart?.(matched[i - 1].seq, matched[i].seq)) (parts.push({ ref: v.ref, start, end: i }), (start = i));
+    parts.push({ ref: v.ref, start, end: v.end });
+    return parts;
+  }).filter((v) => v.end - v.start >= opts.minFixes);
+  const smooth = visits.map((v) => {
+    const cs = matched.slice(v.start, v.end).map((m) => m.chainageM);
+    return cs.map((_, i) => localLinear(cs, i, Math.max(0, i - opts.k), Math.min(cs.length - 1, i + opts.k)));
+  });
+  const out = new Map<string, [number, number][]>();
+  const add = (ref: string, a: number, b: number) => (out.get(ref) ?? out.set(ref, []).get(ref)!).push([a, b]);
+  const snapped = smooth.map((s) => [...s]);
+  visits.forEach((v, n) => {
+    const s = snapped[n];
+    const ends: [number, Visit | undefined, number | undefined][] = [
+      [0, visits[n - 1], smooth[n - 1]?.at(-1)],
+      [s.length - 1, visits[n + 1], smooth[n + 1]?.[0]],
+    ];
+    for (const [i, other, cOther] of ends) {
+      const c = smooth[n][i];
+      const direct = other && other.ref !== v.ref ? junction(v.ref, other.ref, c) : undefined;
+      const via = other && other.ref !== v.ref && direct === undefined ? across(v.ref, c, other.ref, cOther!) : undefined;
+      if (via) add(via.via, via.from, via.to);
+      s[i] = direct ?? via?.at ?? toEnd(v.ref, c);
+    }
+    let [a, b] = [s[0], s[0]];
+    for (let i = 1; i < s.length; i++) {
+      if (Math.abs(s[i] - s[i - 1]) > opts.bridgeM) (add(v.ref, a, b), ([a, b] = [s[i], s[i]]));
+      else [a, b] = [Math.min(a, s[i]), Math.max(b, s[i])];
+    }
+    add(v.ref, a, b);
+  });
+  // a few metres between two stays on a route are the blur of a handover (a hop onto a joining route and
+  // back), not a gap in the trench: within 2·nearM they close; a stay that shrank to a point saw nothing
+  for (const [ref, list] of out) {
+    const merged: [number, number][] = [];
+    for (const [a, b] of [...list].sort((x, y) => x[0] - y[0])) {
+      const last = merged[merged.length - 1];
+      if (last && a - last[1] <= 2 * opts.nearM) last[1] = Math.max(last[1], b);
+      else merged.push([a, b]);
+    }
+    out.set(ref, merged.filter(([a, b]) => b - a >= 1));
+  }
+  return out;
 }

@@ -22,6 +22,23 @@ export function viterbi(
   emission: (layer: number, state: number) => number,
   transition: (layer: number, from: number, to: number) => number,
 ): ViterbiResult {
+  let total = 0;
+  for (let k = 0; k < counts.length; k++) total += counts[k] >= 1 ? counts[k] : 0;
+  const emissions = new Float64Array(total);
+  for (let k = 0, c = 0; k < counts.length; k++) for (let j = 0; j < counts[k]; j++) emissions[c++] = emission(k, j);
+  return viterbiLayers(counts, emissions, (k, out) => {
+    const [pm, m] = [counts[k - 1], counts[k]];
+    for (let i = 0; i < pm; i++) for (let j = 0; j < m; j++) out[i * m + j] = transition(k, i, j);
+  });
+}
+
+/**
+ * viterbi with the emissions of all states in one flat array (layer by layer) and the transitions into
+ * each layer filled in at once: `transitions(k, out)` sets out[i · counts[k] + j] for every state i of
+ * layer k − 1 and j of layer k. One call a layer instead of one a pair of states.
+ * `viterbiLayers([2, 2], Float64Array.of(0, -5, -5, 0), (k, out) => out.fill(0)).path` → `Int32Array [0, 1]`
+ */
+export function viterbiLayers(counts: ArrayLike<number>, emissions: Float64Array, transitions: (layer: number, out: Float64Array) => void): ViterbiResult {
   const n = counts.length;
   const offset = new Int32Array(n + 1);
   let widest = 0;
@@ -34,6 +51,7 @@ export function viterbi(
   const back = new Int32Array(offset[n]);
   let prev = new Float64Array(widest);
   let cur = new Float64Array(widest);
+  const trans = new Float64Array(widest * widest);
   const chainStarts: number[] = [];
   /** the best final state of the chain ending just before each chain start */
   const chainEnds: number[] = [];
@@ -45,22 +63,24 @@ export function viterbi(
   };
   for (let k = 0; k < n; k++) {
     const m = counts[k];
+    const base = offset[k];
     let reachable = false;
     if (k > 0) {
       const pm = counts[k - 1];
+      transitions(k, trans);
       for (let j = 0; j < m; j++) {
-        const e = emission(k, j);
+        const e = emissions[base + j];
         let best = -Infinity;
         let from = -1;
         if (e !== -Infinity) {
           for (let i = 0; i < pm; i++) {
             if (prev[i] === -Infinity) continue;
-            const s = prev[i] + transition(k, i, j);
+            const s = prev[i] + trans[i * m + j];
             if (s > best) (best = s), (from = i);
           }
         }
         cur[j] = best + e;
-        back[offset[k] + j] = from;
+        back[base + j] = from;
         if (from >= 0 && cur[j] !== -Infinity) reachable = true;
       }
     }
@@ -71,7 +91,7 @@ export function viterbi(
         if (prev[end] !== -Infinity) logProb += prev[end];
       }
       chainStarts.push(k);
-      for (let j = 0; j < m; j++) (cur[j] = emission(k, j)), (back[offset[k] + j] = -1);
+      for (let j = 0; j < m; j++) (cur[j] = emissions[base + j]), (back[base + j] = -1);
     }
     [prev, cur] = [cur, prev];
   }

@@ -197,6 +197,24 @@ describe('corrections of sections', () => {
     expect(err.message).toMatch(/part of the plan now/);
   });
 
+  it('keeps corrections in force across an overlapping upload and a plan revision', async () => {
+    const [a] = (await on('E-1')).filter((s) => s.status === 'as_planned');
+    await correct(a, { kind: 'split', atChainageM: 30, reason: 'a driveway apron between the two halves' });
+    await run();
+    const boundaries = async () => (await on('E-1')).filter((s) => s.status === 'as_planned').map((s) => Math.round(s.fromChainageM));
+    expect(await boundaries()).toContain(30);
+    // a second RTK survey of the same stretch, then the design re-issued with a street renamed
+    await upload('east-again.csv', rtk(range(1, 99, 2).map((s) => at(90, s))), { accuracy: 'rtk_gnss', surveyDate: '2026-10-25' });
+    await run();
+    expect(await boundaries()).toContain(30);
+    const form = await formOf([{ name: 'design-rev.geojson', bytes: design.replace('"Lantern Row"', '"Lantern Row (upper)"') }]);
+    await importPlan(db, engineer, project, form);
+    await form.cleanup();
+    await run();
+    expect(await boundaries()).toContain(30);
+    expect((await on('E-1')).find((s) => s.status === 'not_built')!.note).toBe('private forecourt: the owner refused access');
+  });
+
   it('refuses corrections that do not fit the section, with a specific message and nothing stored', async () => {
     const east = await on('E-1');
     const asBuilt = east.find((s) => s.status === 'as_planned')!;

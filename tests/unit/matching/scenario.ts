@@ -300,3 +300,122 @@ export function gridScenario(seed: number, opts: { blocks: number; fixes: number
   }
   return { routes, plan, totalLengthM, handheld };
 }
+
+/**
+ * The scenario position of a WGS 84 point: the inverse of `geo`, by Newton steps on GeographicLib's Inverse
+ * (each step moves the guess by the geodesic from geo(guess) to p, split into east and north); converges to
+ * well under a millimetre in three steps over a few kilometres.
+ * `xyOf(geo([120, -40]))` → `[120, -40]` (±1e-6)
+ */
+export function xyOf(p: LonLat): XY {
+  const step = (from: LonLat): XY => {
+    const r = WGS84.Inverse(from[1], from[0], p[1], p[0]);
+    const a = (r.azi1! * Math.PI) / 180;
+    return [r.s12! * Math.sin(a), r.s12! * Math.cos(a)];
+  };
+  let q = step(ORIGIN);
+  for (let i = 0; i < 4; i++) {
+    const d = step(geo(q));
+    q = [q[0] + d[0], q[1] + d[1]];
+    if (Math.hypot(d[0], d[1]) < 1e-7) break;
+  }
+  return q;
+}
+
+/** Union of intervals, sorted, overlaps merged. */
+export function unionIntervals(xs: [number, number][]): [number, number][] {
+  const out: [number, number][] = [];
+  for (const [a, b] of [...xs].map(([a, b]) => [Math.min(a, b), Math.max(a, b)] as [number, number]).sort((p, q) => p[0] - q[0])) {
+    const last = out[out.length - 1];
+    if (last && a <= last[1]) last[1] = Math.max(last[1], b);
+    else out.push([a, b]);
+  }
+  return out;
+}
+
+/** Metres of [a, b] covered by the (merged) intervals. */
+export function overlapM(intervals: [number, number][], a: number, b: number): number {
+  return intervals.reduce((n, [p, q]) => n + Math.max(0, Math.min(b, q) - Math.max(a, p)), 0);
+}
+
+export interface ProjectScenario {
+  routes: PlannedRouteInput[];
+  plan: Map<string, XY[]>;
+  asBuilt: Map<string, XY[]>;
+  handheld: TruthFix[];
+  rtk: TruthFix[];
+  /** what was really laid on each planned route: geodesic plan chainage intervals (GeographicLib) */
+  built: Map<string, [number, number][]>;
+  /** the part of it that the RTK survey measured */
+  rtkBuilt: Map<string, [number, number][]>;
+  /** the same, as planar plan chainage (index into the as-built line's 1 m vertices) */
+  builtPlanar: Map<string, [number, number][]>;
+  gap: [number, number];
+  extension: { from: XY; to: XY; lengthM: number };
+  detour: { ref: string; fromM: number; toM: number; amplitudeM: number };
+  /** the true trench at planar plan chainage c of a route (ref null: c metres along the extension) */
+  at(ref: string | null, c: number): XY;
+}
+
+/**
+ * The street of `streetScenario` (both sides 6.5 m apart, a 60° curve, two crossings, two T-junctions,
+ * a 5 m detour over 25 m on N1, a 40 m unplanned extension off V2) as one project would record it:
+ * a handheld walk (1 Hz, σ 3.5 m, OU bias 1 m / 60 s, 1 % spikes of 15–40 m, a 40 s signal gap on S1,
+ * N1 walked back and forth over 100–300 m) and an RTK survey of N1 from 250 m to its end. S1 before the
+ * X1 crossing and after X2, and all of V1, are left unbuilt, so only N1 is laid there.
+ * `projectScenario(1).built.get('S1')` → `[[100.0…, 352.8…]]`
+ */
+export function projectScenario(seed: number): ProjectScenario {
+  const { routes, plan, asBuilt, extension, detour } = streetScenario(seed);
+  const rng = mulberry32(seed * 7919 + 17);
+  const len = (ref: string) => lengthXY(plan.get(ref)!);
+  const dir: XY = [(extension.to[0] - extension.from[0]) / extension.lengthM, (extension.to[1] - extension.from[1]) / extension.lengthM];
+  // the as-built line has a vertex at each metre of planar plan chainage, the last one at the route's end
+  const at = (ref: string | null, c: number): XY => {
+    if (ref === null) return [extension.from[0] + c * dir[0], extension.from[1] + c * dir[1]];
+    const line = asBuilt.get(ref)!;
+    const i = Math.min(Math.max(Math.floor(c), 0), line.length - 2);
+    const span = i + 1 === line.length - 1 ? len(ref) - i : 1;
+    const f = Math.min(Math.max((c - i) / span, 0), 1);
+    return [line[i][0] + f * (line[i + 1][0] - line[i][0]), line[i][1] + f * (line[i + 1][1] - line[i][1])];
+  };
+  const x2s = 200 + (60 * Math.PI) / 3 + 90; // where X2 crosses, as streetScenario draws it
+  type Leg = [string | null, number, number];
+  const walk: Leg[] = [['N1', 0, 100], ['X1', 0, len('X1')], ['S1', 100, 160], ['V2', 0, len('V2')], [null, 0, extension.lengthM], [null, extension.lengthM, 0], ['V2', len('V2'), 0], ['S1', 160, x2s], ['X2', len('X2'), 0], ['N1', x2s, 100], ['N1', 100, 300]];
+  const survey: Leg[] = [['N1', 250, len('N1')]];
+  const noise = handheldNoise(rng, { whiteM: 3.5, biasM: 1, tauS: 60, outlierRate: 0.01 });
+  const t0 = 1_762_243_200;
+  const handheld: TruthFix[] = [];
+  let t = 0;
+  let gap: [number, number] = [0, 0];
+  for (const [k, [ref, a, b]] of walk.entries()) {
+    const steps = Math.max(1, Math.round(Math.abs(b - a) / 1.3));
+    for (let i = 0; i < steps; i++, t++) {
+      const q = at(ref, a + ((b - a) * i) / steps);
+      const n = noise();
+      // 40 s without signal on S1, from about 210 m: the walker went on and so did the trench
+      if (k === 7 && i >= 40 && i < 80) continue;
+      if (k === 7 && i === 80) gap = [handheld[handheld.length - 1].fix.t!, t0 + t];
+      const fix = { ...lonLatFix(geo([q[0] + n.dx, q[1] + n.dy])), t: t0 + t, seq: handheld.length };
+      handheld.push({ fix, truthXY: q, truth: geo(q), ref, outlier: n.outlier });
+    }
+  }
+  const rtk: TruthFix[] = [];
+  for (const [ref, a, b] of survey) {
+    const steps = Math.max(1, Math.round(Math.abs(b - a) / 2));
+    for (let i = 0; i <= steps; i++) {
+      const q = at(ref, a + ((b - a) * i) / steps);
+      const fix = { ...lonLatFix(geo([q[0] + 0.02 * gaussian(rng), q[1] + 0.02 * gaussian(rng)])), t: null, seq: 100_000 + rtk.length };
+      rtk.push({ fix, truthXY: q, truth: geo(q), ref, outlier: false });
+    }
+  }
+  const planar = (legs: Leg[]) => {
+    const m = new Map<string, [number, number][]>();
+    for (const [ref, a, b] of legs) if (ref !== null) m.set(ref, [...(m.get(ref) ?? []), [a, b]]);
+    return new Map([...m].map(([ref, xs]) => [ref, unionIntervals(xs)]));
+  };
+  const geodesicChainage = (ref: string, c: number) => truthChainage(plan.get(ref)!, alongXY(plan.get(ref)!, c).p);
+  const toGeodesic = (m: Map<string, [number, number][]>) => new Map([...m].map(([ref, xs]) => [ref, xs.map(([a, b]) => [geodesicChainage(ref, a), geodesicChainage(ref, b)] as [number, number])]));
+  const builtPlanar = planar([...walk, ...survey]);
+  return { routes, plan, asBuilt, handheld, rtk, built: toGeodesic(builtPlanar), rtkBuilt: toGeodesic(planar(survey)), builtPlanar, gap, extension, detour, at };
+}

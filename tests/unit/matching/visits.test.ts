@@ -56,8 +56,11 @@ describe('visits of a walk to its routes', () => {
     const out = claimBeyondEnds(matched, [run], fixAt, routes, { nearM: 7 });
     // fixes 21 (101.5 m) … 27 (110.5 m) lie beyond A's end at 100 m; fix 22 is noise about the end and stays
     expect(out.unmatched).toHaveLength(1);
-    expect(out.unmatched[0][0].seq).toBe(21);
-    expect(out.unmatched[0].map((f) => f.seq)).not.toContain(22);
+    expect(out.unmatched[0].fixes[0].seq).toBe(21);
+    expect(out.unmatched[0].fixes.map((f) => f.seq)).not.toContain(22);
+    // the run now starts at the end of A, where the trench left the plan
+    expect(out.unmatched[0].from).toEqual(A.coords[1]);
+    expect(out.unmatched[0].to).toBeUndefined();
     expect(out.claimed).toBe(6);
     expect(out.matched.map((f) => f.seq)).toContain(22);
     expect(out.matched).toHaveLength(22);
@@ -68,7 +71,7 @@ describe('visits of a walk to its routes', () => {
     const matched = [m(5, 'A', 100, 11)];
     const out = claimBeyondEnds(matched, [fixes.slice(0, 5), fixes.slice(6)], (s) => fixes[s], routes, { nearM: 7 });
     expect(out.unmatched).toHaveLength(1);
-    expect(out.unmatched[0].map((f) => f.seq)).toEqual([...Array(12).keys()]);
+    expect(out.unmatched[0].fixes.map((f) => f.seq)).toEqual([...Array(12).keys()]);
     expect(out.matched).toHaveLength(0);
   });
 });

@@ -1,0 +1,98 @@
+import { describe, expect, it } from 'vitest';
+import { appendCandidates, CandidateColumns, candidatesFor, makeCandidateIndex } from '@/lib/matching/candidates';
+import { buildRouteGraph } from '@/lib/matching/route-graph';
+import { locatePositions, makeRouteNetwork, routeDistanceM, routeDistanceMatrix, type PositionColumns } from '@/lib/matching/route-distance';
+import { viterbi, viterbiLayers } from '@/lib/matching/viterbi';
+import { gridScenario, mulberry32, streetScenario } from './scenario';
+
+// The matcher keeps a long trace's candidates in typed columns, finds a layer's route distances at once behind
+// an edge-pair cache, and runs Viterbi on flat arrays. Each fast path is checked here against the plain one it
+// replaces, value for value: the bench figures in the README rest on these giving the same matches.
+
+describe('compact candidates', () => {
+  it('appendCandidates gives exactly what candidatesFor gives, fix after fix, past the columns growing', () => {
+    const gs = gridScenario(4, { blocks: 4, fixes: 3000 });
+    const index = makeCandidateIndex(gs.routes);
+    const cols = new CandidateColumns();
+    let checked = 0;
+    for (const { fix } of gs.handheld) {
+      const at = cols.length;
+      const n = appendCandidates(index, fix, 16.5, 5, cols);
+      const plain = candidatesFor(index, fix, 16.5, 5);
+      expect(n).toBe(plain.length);
+      plain.forEach((c, i) => {
+        expect([cols.route[at + i], cols.chainage[at + i], cols.distance[at + i], cols.offset[at + i]]).toEqual([c.route, c.chainageM, c.distanceM, c.offsetM]);
+        checked++;
+      });
+    }
+    expect(cols.length).toBe(checked);
+    expect(checked).toBeGreaterThan(1024 * 4); // the columns started at 1,024 and grew
+  });
+});
+
+describe('route distances a layer at a time', () => {
+  it('routeDistanceMatrix over a walk equals routeDistanceM on a fresh network, pair for pair', () => {
+    const gs = gridScenario(5, { blocks: 4, fixes: 400 });
+    const graph = buildRouteGraph(gs.routes);
+    const index = makeCandidateIndex(gs.routes);
+    const cols = new CandidateColumns();
+    const first = [0];
+    for (const { fix } of gs.handheld) if (appendCandidates(index, fix, 16.5, 5, cols) > 0) first.push(cols.length);
+    const net = makeRouteNetwork(graph, gs.routes);
+    const n = cols.length;
+    const pos: PositionColumns = { route: cols.route, chainage: cols.chainage, edge: new Int32Array(n), leg0: new Float64Array(n), leg1: new Float64Array(n) };
+    locatePositions(net, pos, 0, n);
+    const rng = mulberry32(2);
+    const out = new Float64Array(25);
+    let finite = 0;
+    for (let k = 1; k + 1 < first.length; k++) {
+      const [a, na, b, nb] = [first[k - 1], first[k] - first[k - 1], first[k], first[k + 1] - first[k]];
+      // bounds vary as the matcher's do (4 × the step between fixes + 50 m), down to ones that cut paths off
+      const bound = k % 7 === 0 ? 5 + 20 * rng() : 50 + 40 * rng();
+      routeDistanceMatrix(net, pos, a, na, b, nb, bound, out);
+      // a network with nothing cached yet: the caches must not change a distance
+      const fresh = makeRouteNetwork(graph, gs.routes);
+      for (let i = 0; i < na; i++) {
+        for (let j = 0; j < nb; j++) {
+          const want = routeDistanceM(fresh, { route: cols.route[a + i], chainageM: cols.chainage[a + i] }, { route: cols.route[b + j], chainageM: cols.chainage[b + j] }, bound);
+          expect(out[i * nb + j]).toBe(want);
+          if (want !== Infinity) finite++;
+        }
+      }
+    }
+    expect(finite).toBeGreaterThan(1000);
+  });
+
+  it('routeDistanceM across a junction is the legs to it plus nothing: both sides of one street corner', () => {
+    const sc = streetScenario(3);
+    const net = makeRouteNetwork(buildRouteGraph(sc.routes), sc.routes);
+    const [n1, x1] = [sc.routes.findIndex((r) => r.ref === 'N1'), sc.routes.findIndex((r) => r.ref === 'X1')];
+    // X1 starts on N1 at 100 m (a T-junction): 95 m along N1 to 2 m along X1 is 5 + 2 m
+    expect(routeDistanceM(net, { route: n1, chainageM: 95 }, { route: x1, chainageM: 2 }, 50)).toBeCloseTo(7, 1);
+    expect(routeDistanceM(net, { route: n1, chainageM: 95 }, { route: x1, chainageM: 2 }, 6)).toBe(Infinity);
+  });
+});
+
+describe('viterbiLayers', () => {
+  it('finds the best of every path, as enumerating them all does (Viterbi 1967)', () => {
+    const rng = mulberry32(9);
+    for (let trial = 0; trial < 40; trial++) {
+      const counts = Array.from({ length: 6 }, () => 1 + Math.floor(rng() * 3));
+      const em = counts.map((m) => Array.from({ length: m }, () => -5 * rng()));
+      const tr = counts.map((m, k) => Array.from({ length: k > 0 ? counts[k - 1] * m : 0 }, () => (rng() < 0.15 ? -Infinity : -3 * rng())));
+      // every path, scored: emissions plus transitions
+      let best = { score: -Infinity, path: [] as number[] };
+      const walk = (k: number, path: number[], score: number) => {
+        if (k === counts.length) return void (score > best.score && (best = { score, path: [...path] }));
+        for (let j = 0; j < counts[k]; j++) walk(k + 1, [...path, j], score + em[k][j] + (k > 0 ? tr[k][path[k - 1] * counts[k] + j] : 0));
+      };
+      walk(0, [], 0);
+      if (best.score === -Infinity) continue; // a break: the chain-restart rule applies (match-trace.test.ts)
+      const fast = viterbiLayers(counts, Float64Array.from(em.flat()), (k, out) => out.set(tr[k]));
+      expect([...fast.path]).toEqual(best.path);
+      expect(fast.logProb).toBeCloseTo(best.score, 12);
+      const plain = viterbi(counts, (k, j) => em[k][j], (k, i, j) => tr[k][i * counts[k] + j]);
+      expect([...plain.path]).toEqual(best.path);
+    }
+  });
+});
