@@ -195,7 +195,11 @@ function smoothBins(route: LonLat[], length: number, sources: RouteObservations[
     const [n0, n1] = [windowStart(chainage, c, w), windowEnd(chainage, c, w)];
     let count = n1 - n0;
     if (count > 0) scratch.set(offset.subarray(n0, n1));
-    else {
+    else if (fx.length === 0) {
+      // a stretch the walk is known to have crossed without a fix on it (a short road crossing): on the plan
+      scratch[0] = 0;
+      count = 1;
+    } else {
       scratch[0] = fx.reduce((p, f) => (Math.abs(f.chainageM - c) < Math.abs(p.chainageM - c) ? f : p)).offsetM;
       count = 1;
     }

@@ -285,3 +285,36 @@ export function appendCandidates(index: CandidateIndex, fix: { lon: number; lat:
   }
   return n;
 }
+
+/**
+ * The fix's best projection onto one route of the index (route k, its index in index.routes), with the
+ * arithmetic of the candidate search: chainage, signed offset (+ left) and distance, whatever the radius.
+ * Puts a fix on a route the matcher did not choose for it (a junction hop put back on the walked route).
+ * `projectOntoRoute(index, 0, { lon: 13.405, lat: 52.52 })` → `{ chainageM: 40.2, offsetM: -2.9, distanceM: 2.9 }`
+ */
+export function projectOntoRoute(index: CandidateIndex, k: number, fix: { lon: number; lat: number }): { chainageM: number; offsetM: number; distanceM: number } {
+  const { xs, ys, cum } = index;
+  const { mx, my } = metresPerDegree(fix.lat);
+  const kx = mx / index.mx0;
+  const ky = my / index.my0;
+  const px = (((((fix.lon - index.lon0) % 360) + 540) % 360) - 180) * index.mx0;
+  const py = (fix.lat - index.lat0) * index.my0;
+  const [v0, v1] = [index.routeStart[k], index.routeStart[k + 1]];
+  let [bestD2, bestA, bestT, bestCross] = [Infinity, v0, 0, 0];
+  for (let a = v0; a + 1 < v1; a++) {
+    const ax = (xs[a] - px) * kx;
+    const ay = (ys[a] - py) * ky;
+    const dx = (xs[a + 1] - xs[a]) * kx;
+    const dy = (ys[a + 1] - ys[a]) * ky;
+    const l2 = dx * dx + dy * dy;
+    let t = l2 > 0 ? -(ax * dx + ay * dy) / l2 : 0;
+    t = t < 0 ? 0 : t > 1 ? 1 : t;
+    const fx = ax + t * dx;
+    const fy = ay + t * dy;
+    const d2 = fx * fx + fy * fy;
+    if (d2 < bestD2) [bestD2, bestA, bestT, bestCross] = [d2, a, t, dx * -ay - dy * -ax];
+  }
+  if (bestD2 === Infinity) return { chainageM: 0, offsetM: 0, distanceM: Infinity };
+  const d = Math.sqrt(bestD2);
+  return { chainageM: cum[bestA] + bestT * (cum[bestA + 1] - cum[bestA]), offsetM: bestCross < 0 ? -d : d, distanceM: d };
+}

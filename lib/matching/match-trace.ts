@@ -1,6 +1,6 @@
-import { appendCandidates, CandidateColumns, makeCandidateIndex, metresPerDegree } from './candidates';
+import { appendCandidates, CandidateColumns, makeCandidateIndex, metresPerDegree, type CandidateIndex } from './candidates';
 import { resolveMatchOptions, type Fix, type MatchOptions, type MatchResult, type ResolvedMatchOptions } from './match-types';
-import { locatePositions, makeRouteNetwork, routeDistanceMatrix, type PositionColumns } from './route-distance';
+import { locatePositions, makeRouteNetwork, routeDistanceBetween, routeDistanceMatrix, type PositionColumns, type RouteNetwork } from './route-distance';
 import type { PlannedRouteInput, RouteGraph } from './types';
 import { viterbiLayers } from './viterbi';
 
@@ -114,6 +114,21 @@ function prune(c: CandidateColumns, first: number, n: number, sigmaM: number): n
   return kept;
 }
 
+/** The planned routes prepared for matching: the candidate index and the network for route distances. */
+export interface MatchNetwork {
+  index: CandidateIndex;
+  net: RouteNetwork;
+}
+
+/**
+ * Builds the candidate index and route network once, for every trace of a reconciliation (their caches of
+ * route distances carry over from trace to trace; they hold exact distances, so results do not change).
+ * `matchTrace(fixes, routes, graph, { sigmaM: 4 }, prepareMatchNetwork(routes, graph))`
+ */
+export function prepareMatchNetwork(routes: PlannedRouteInput[], graph: RouteGraph): MatchNetwork {
+  return { index: makeCandidateIndex(routes), net: makeRouteNetwork(graph, routes) };
+}
+
 /**
  * Matches a trace onto the planned routes: drops isolated spikes, splits at gaps, finds candidates within
  * the search radius, runs Viterbi per stretch, and reports each matched fix's route, chainage and signed
@@ -121,10 +136,9 @@ function prune(c: CandidateColumns, first: number, n: number, sigmaM: number): n
  * 1–2 such fixes are outliers. Fixes keep the given order, so survey points (t null) follow it too.
  * `matchTrace(fixes, routes, buildRouteGraph(routes), { sigmaM: 4 })` → `{ matched: [{ seq: 0, ref: 'N1', chainageM: 12.3, offsetM: 0.4, … }], unmatched: [], outliers: [], pieces: 1 }`
  */
-export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: RouteGraph, opts: MatchOptions): MatchResult {
+export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: RouteGraph, opts: MatchOptions, prepared?: MatchNetwork): MatchResult {
   const o = resolveMatchOptions(opts);
-  const index = makeCandidateIndex(routes);
-  const net = makeRouteNetwork(graph, routes);
+  const { index, net } = prepared ?? prepareMatchNetwork(routes, graph);
   const plane = toPlane(fixes, index.lon0, index.lat0, index.mx0, index.my0);
   const pieces = splitPieces(fixes, plane, o);
   const result: MatchResult = { matched: [], unmatched: [], outliers: [], pieces: pieces.length };
@@ -137,29 +151,120 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
   let chain: number[] = [];
   let first: number[] = [0];
 
-  const runChain = () => {
-    if (chain.length === 0) return;
+  /**
+   * Viterbi over layers of the current chain: layer k holds the candidates at[k] … at[k] + n[k] − 1 of fix
+   * fx[k]. Returns the chosen candidate of each layer.
+   */
+  const solve = (at: ArrayLike<number>, n: ArrayLike<number>, fx: ArrayLike<number>): Int32Array => {
+    const m = fx.length;
     // Newson & Krumm drop transitions whose route is far longer than the straight line between the fixes
-    const bound = new Float64Array(chain.length);
-    const gc = new Float64Array(chain.length);
-    for (let k = 1; k < chain.length; k++) (gc[k] = dist(plane, chain[k - 1], chain[k])), (bound[k] = 4 * gc[k] + 50);
-    const counts = new Int32Array(chain.length);
-    for (let k = 0; k < chain.length; k++) counts[k] = first[k + 1] - first[k];
-    const { route, chainage, distance } = cands;
-    const emissions = new Float64Array(first[chain.length]);
-    for (let c = 0; c < emissions.length; c++) emissions[c] = emissionLogProb(distance[c], o.sigmaM);
+    const gc = new Float64Array(m);
+    const bound = new Float64Array(m);
+    for (let k = 1; k < m; k++) (gc[k] = dist(plane, fx[k - 1], fx[k])), (bound[k] = 4 * gc[k] + 50);
+    let total = 0;
+    for (let k = 0; k < m; k++) total += n[k];
+    const emissions = new Float64Array(total);
+    for (let k = 0, e = 0; k < m; k++) for (let j = 0; j < n[k]; j++) emissions[e++] = emissionLogProb(cands.distance[at[k] + j], o.sigmaM);
     const betaM = o.betaM;
-    const { path } = viterbiLayers(counts, emissions, (k, out) => {
-      const size = counts[k - 1] * counts[k];
-      routeDistanceMatrix(net, pos, first[k - 1], counts[k - 1], first[k], counts[k], bound[k], out);
+    const { path } = viterbiLayers(n, emissions, (k, out) => {
+      const size = n[k - 1] * n[k];
+      routeDistanceMatrix(net, pos, at[k - 1], n[k - 1], at[k], n[k], bound[k], out);
       for (let x = 0; x < size; x++) out[x] = out[x] === Infinity ? -Infinity : -Math.abs(out[x] - gc[k]) / betaM - logBeta;
     });
+    for (let k = 0; k < m; k++) path[k] += at[k];
+    return path;
+  };
+
+  /**
+   * The skipped fixes between kept layers ka and kb when the kept ones chose different routes (a turn at a
+   * junction): Viterbi over just their candidates on those two routes, both ends fixed. False, with nothing
+   * chosen, when a skipped fix has a candidate on neither or the two routes do not connect within reach.
+   */
+  const between = (ka: number, kb: number, chosen: Int32Array): boolean => {
+    const { route, chainage, distance } = cands;
+    const [ca, cb] = [chosen[ka], chosen[kb]];
+    const [r1, r2] = [route[ca], route[cb]];
+    const span = kb - ka + 1;
+    // two states a layer at most (a fix has one candidate per route): state s of layer j is states[2j + s]
+    const states = new Int32Array(2 * span).fill(-1);
+    const score = new Float64Array(2 * span).fill(-Infinity);
+    const back = new Int8Array(2 * span);
+    (states[0] = ca), (score[0] = 0);
+    for (let j = 1; j < span; j++) {
+      const k = ka + j;
+      if (j === span - 1) states[2 * j] = cb;
+      else {
+        let s = 2 * j;
+        for (let c = first[k]; c < first[k + 1]; c++) if (route[c] === r1 || route[c] === r2) states[s++] = c;
+        if (s === 2 * j) return false;
+      }
+      const gc = dist(plane, chain[k - 1], chain[k]);
+      const bound = 4 * gc + 50;
+      let reached = false;
+      for (let t = 0; t < 2; t++) {
+        const y = states[2 * j + t];
+        if (y < 0) continue;
+        const e = j === span - 1 ? 0 : emissionLogProb(distance[y], o.sigmaM);
+        for (let p = 0; p < 2; p++) {
+          const x = states[2 * (j - 1) + p];
+          if (x < 0 || score[2 * (j - 1) + p] === -Infinity) continue;
+          const d = routeDistanceBetween(net, route[x], chainage[x], pos.edge[x], pos.leg0[x], pos.leg1[x], route[y], chainage[y], pos.edge[y], pos.leg0[y], pos.leg1[y], bound);
+          if (d === Infinity) continue;
+          const v = score[2 * (j - 1) + p] - Math.abs(d - gc) / o.betaM - logBeta + e;
+          if (v > score[2 * j + t]) (score[2 * j + t] = v), (back[2 * j + t] = p);
+        }
+        if (score[2 * j + t] > -Infinity) reached = true;
+      }
+      if (!reached) return false;
+    }
+    for (let j = span - 1, t = 0; j > 0; t = back[2 * j + t], j--) if (j < span - 1) chosen[ka + j] = states[2 * j + t];
+    return true;
+  };
+
+  const runChain = () => {
+    const L = chain.length;
+    if (L === 0) return;
+    const { route, chainage, distance } = cands;
+    // Newson & Krumm (2009, §4.1) leave out the fixes within 2σ of the last one kept: until the walker has
+    // moved further than the noise, a fix adds little to where the route goes. They skip the recursion here
+    // and are placed afterwards, on the route the kept fixes either side of them chose.
+    const keep: number[] = [0];
+    for (let k = 1; k < L; k++) if (k === L - 1 || dist(plane, chain[keep[keep.length - 1]], chain[k]) >= o.thinM) keep.push(k);
+    const chosen = new Int32Array(L);
+    const picked = solve(keep.map((k) => first[k]), keep.map((k) => first[k + 1] - first[k]), keep.map((k) => chain[k]));
+    keep.forEach((k, g) => (chosen[k] = picked[g]));
+    for (let g = 0; g + 1 < keep.length; g++) {
+      const [ka, kb] = [keep[g], keep[g + 1]];
+      if (kb - ka < 2) continue;
+      // both neighbours on one route, and the skipped fixes have a candidate on it: that one
+      const r = route[chosen[ka]];
+      let same = route[chosen[kb]] === r;
+      for (let k = ka + 1; same && k < kb; k++) {
+        let c = first[k];
+        while (c < first[k + 1] && route[c] !== r) c++;
+        if (c < first[k + 1]) chosen[k] = c;
+        else same = false;
+      }
+      if (same || between(ka, kb, chosen)) continue;
+      // otherwise: Viterbi over every candidate of the skipped fixes, both ends fixed
+      const span = kb - ka + 1;
+      const at = new Int32Array(span);
+      const n = new Int32Array(span);
+      const fx = new Int32Array(span);
+      for (let j = 0; j < span; j++) {
+        const k = ka + j;
+        fx[j] = chain[k];
+        [at[j], n[j]] = j === 0 || j === span - 1 ? [chosen[k], 1] : [first[k], first[k + 1] - first[k]];
+      }
+      const inner = solve(at, n, fx);
+      for (let j = 1; j + 1 < span; j++) chosen[ka + j] = inner[j];
+    }
     chain.forEach((i, k) => {
-      const c = first[k] + path[k];
+      const c = chosen[k];
       result.matched.push({ seq: fixes[i].seq, ref: routes[route[c]].ref, chainageM: chainage[c], offsetM: cands.offset[c], distanceM: distance[c] });
     });
     // the fix that closed the chain may have its candidates in already: they start the next chain
-    const [end, tail] = [first[chain.length], cands.length - first[chain.length]];
+    const [end, tail] = [first[L], cands.length - first[L]];
     for (const col of [cands.route, cands.chainage, cands.distance, cands.offset, pos.edge, pos.leg0, pos.leg1]) col.copyWithin(0, end, end + tail);
     (chain = []), (first = [0]), (cands.length = tail);
   };

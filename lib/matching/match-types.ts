@@ -19,6 +19,11 @@ export interface MatchOptions {
   searchRadiusM?: number;
   /** candidates kept per fix (best one per route); default 5 */
   maxCandidates?: number;
+  /**
+   * fixes closer than this to the last fix kept skip the Viterbi recursion and are placed afterwards on
+   * their neighbours' route (Newson & Krumm 2009, §4.1); default 2σ, 0 keeps every fix in the recursion
+   */
+  thinM?: number;
   /** a fix further from where its neighbours put it than this speed allows is an outlier; default 8 m/s */
   maxSpeedMps?: number;
   /** a track is split where consecutive timed fixes are further apart in time; default 30 s */
@@ -69,7 +74,7 @@ export type ResolvedMatchOptions = Required<MatchOptions>;
 
 /**
  * Fills in the defaults of MatchOptions.
- * `resolveMatchOptions({ sigmaM: 4 })` → `{ sigmaM: 4, betaM: 3, searchRadiusM: 16, maxCandidates: 5, maxSpeedMps: 8, gapSeconds: 30, gapMetres: 50 }`
+ * `resolveMatchOptions({ sigmaM: 4 })` → `{ sigmaM: 4, betaM: 3, searchRadiusM: 16, maxCandidates: 5, thinM: 8, maxSpeedMps: 8, gapSeconds: 30, gapMetres: 50 }`
  */
 export function resolveMatchOptions(opts: MatchOptions): ResolvedMatchOptions {
   if (!(opts.sigmaM > 0)) throw new RangeError('sigmaM must be a positive number of metres');
@@ -79,6 +84,7 @@ export function resolveMatchOptions(opts: MatchOptions): ResolvedMatchOptions {
     // 4σ holds 99.97 % of cross-track noise; 10 m keeps RTK surveys from losing a route to a 1 m as-built shift
     searchRadiusM: opts.searchRadiusM ?? Math.max(4 * opts.sigmaM, 10),
     maxCandidates: opts.maxCandidates ?? 5,
+    thinM: opts.thinM ?? 2 * opts.sigmaM,
     maxSpeedMps: opts.maxSpeedMps ?? 8,
     gapSeconds: opts.gapSeconds ?? 30,
     gapMetres: opts.gapMetres ?? 50,

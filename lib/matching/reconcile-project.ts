@@ -3,7 +3,8 @@ import { applyRouteCorrections, reassignFixes, splitPoints, type Correction } fr
 import { unplannedLine } from './unplanned-line';
 import { claimBeyondEnds, foldJunctionHops, walkedIntervals } from './visits';
 import { distanceM, lineLengthM } from './chainage';
-import { matchTrace } from './match-trace';
+import { matchTrace, prepareMatchNetwork } from './match-trace';
+import { projectOntoRoute } from './candidates';
 import type { Fix } from './match-types';
 import { buildRouteGraph } from './route-graph';
 import type { RouteObservations, SectionDraft } from './section-types';
@@ -58,6 +59,9 @@ export async function reconcileProject(
   opts: { toleranceM: number; corrections?: Correction[]; timings?: boolean; onProgress?: (fraction: number) => void },
 ): Promise<{ drafts: SectionDraft[]; stats: ReconcileStats; observations: RouteObservationSeries[] }> {
   const graph = buildRouteGraph(routes);
+  const prepared = prepareMatchNetwork(routes, graph);
+  const routeIndex = new Map<string, number>();
+  routes.forEach((r, i) => routeIndex.has(r.ref) || routeIndex.set(r.ref, i));
   const corrections = opts.corrections ?? [];
   const routeByRef = new Map(routes.map((r) => [r.ref, r]));
   const lengths = new Map(routes.map((r) => [r.ref, lineLengthM(r.coords)]));
@@ -76,32 +80,39 @@ export async function reconcileProject(
       // its noise term covers the source's own error and that expected departure
       const sigmaM = Math.hypot(up.sigmaM, Math.max(opts.toleranceM, 1));
       const t0 = performance.now();
-      const result = matchTrace(trace, routes, graph, { sigmaM });
+      const result = matchTrace(trace, routes, graph, { sigmaM }, prepared);
       timingsMs.matchMs += performance.now() - t0;
       stats.fixes += trace.length;
       stats.matched += result.matched.length;
       stats.outliers += result.outliers.length;
       stats.pieces += result.pieces;
-      const time = new Map(trace.map((f) => [f.seq, f.t]));
-      const bySeq = new Map(trace.map((f) => [f.seq, f]));
+      const bySeq = new Map<number, Fix>();
+      for (const f of trace) bySeq.set(f.seq, f);
       const position = (seq: number): LonLat => [bySeq.get(seq)!.lon, bySeq.get(seq)!.lat];
+      // a fix put on a route the matcher did not choose: with the candidate search's own arithmetic
+      const onRoute = (m: { seq: number }, ref: string) => {
+        const k = routeIndex.get(ref);
+        return k === undefined ? null : projectOntoRoute(prepared.index, k, bySeq.get(m.seq)!);
+      };
       const { fixes: reassigned, moved } = reassignFixes(result.matched, position, routeByRef, corrections);
       stats.reassigned += moved;
       // a handheld walk past a junction hops onto the other route and back within its noise: put it back
-      const hops = up.surveyGrade ? { fixes: reassigned, folded: 0 } : foldJunctionHops(reassigned, position, routeByRef, { radiusM: 2.5 * up.sigmaM, maxFixes: 10 });
+      const hops = up.surveyGrade ? { fixes: reassigned, folded: 0 } : foldJunctionHops(reassigned, onRoute, { radiusM: 2.5 * up.sigmaM, maxFixes: 10 });
       stats.junctionHops += hops.folded;
       const ends = claimBeyondEnds(hops.fixes, result.unmatched, (seq) => bySeq.get(seq)!, routeByRef, { nearM: 2 * up.sigmaM });
       const matched = ends.matched;
       const perRef = new Map<string, RouteObservations['fixes']>();
       for (const m of matched) {
         const list = perRef.get(m.ref) ?? [];
-        list.push({ chainageM: m.chainageM, offsetM: m.offsetM, t: time.get(m.seq) ?? null });
+        list.push({ chainageM: m.chainageM, offsetM: m.offsetM, t: bySeq.get(m.seq)?.t ?? null });
         perRef.set(m.ref, list);
       }
       // where a walk saw trench: per visit, from its smoothed chainages (survey points are taken as they are)
       const offNetwork = new Set(ends.unmatched.flatMap((r) => r.fixes.map((f) => f.seq)));
       const apart = (a: number, b: number) => { for (let q = a + 1; q < b; q++) if (offNetwork.has(q)) return true; return false; };
       const walked = up.surveyGrade ? null : walkedIntervals(matched, graph, { k: 5, bridgeM: SECTION_DEFAULTS.bridgeM, minFixes: 3, nearM: 2 * up.sigmaM, lengthOf, apart });
+      // a route the walk crossed without a fix matched on it (a short road crossing) is still seen built
+      if (walked) for (const ref of walked.keys()) if (!perRef.has(ref) && walked.get(ref)!.length > 0) perRef.set(ref, []);
       for (const [ref, fixes] of perRef) {
         const list = byRoute.get(ref) ?? [];
         list.push({ uploadId: up.uploadId, sigmaM: up.sigmaM, surveyGrade: up.surveyGrade, laidOn: up.laidOn, fixes, ...(walked ? { intervals: walked.get(ref) ?? [] } : {}) });

@@ -1,5 +1,4 @@
 import { lineLengthM, localFrame } from './chainage';
-import { signedOffset } from './offset-profile';
 import { localLinear } from './unplanned-line';
 import type { Fix, MatchedFix } from './match-types';
 import type { LonLat, PlannedRouteInput, RouteGraph } from './types';
@@ -28,30 +27,35 @@ export function splitVisits(matched: { ref: string }[]): Visit[] {
 /**
  * Near a junction a noisy walk along route A hops onto B and back, because within its noise the fixes fit
  * either. A short visit to B between two visits of A whose fixes all lie within `radiusM` of A, or no
- * farther from A than from B, is such a hop: its fixes are put back on A (projected), so B does not gain a false stretch of trench. A real walk
- * along B leaves A's reach, or arrives from a third route.
+ * farther from A than from B, is such a hop: its fixes are put back on A (`project(fix, 'A')`: chainage,
+ * signed offset and distance on A, or null when A is unknown), so B does not gain a false stretch of trench.
+ * A real walk along B leaves A's reach, or arrives from a third route.
  */
 export function foldJunctionHops(
   matched: MatchedFix[],
-  position: (seq: number) => LonLat,
-  routes: Map<string, PlannedRouteInput>,
+  project: (m: MatchedFix, ref: string) => { chainageM: number; offsetM: number; distanceM: number } | null,
   opts: { radiusM: number; maxFixes: number },
 ): { fixes: MatchedFix[]; folded: number } {
   const visits = splitVisits(matched);
-  const out = [...matched];
+  let out: MatchedFix[] | null = null;
   let folded = 0;
   for (let v = 1; v + 1 < visits.length; v++) {
     const [prev, hop, next] = [visits[v - 1], visits[v], visits[v + 1]];
     if (prev.ref !== next.ref || hop.end - hop.start > opts.maxFixes) continue;
-    const home = routes.get(prev.ref);
-    if (!home) continue;
-    const back = out.slice(hop.start, hop.end).map((m) => ({ m, on: signedOffset(home.coords, position(m.seq)) }));
-    // A explains each fix within the noise, or at least as well as B does (a hop to the start of a T-junction)
-    if (!back.every((b) => b.on.distanceM <= opts.radiusM || b.on.distanceM <= b.m.distanceM + 0.5)) continue;
-    back.forEach((b, k) => (out[hop.start + k] = { ...b.m, ref: home.ref, ...b.on }));
+    const back: MatchedFix[] = [];
+    for (let i = hop.start; i < hop.end; i++) {
+      const m = matched[i];
+      const on = project(m, prev.ref);
+      // A explains each fix within the noise, or at least as well as B does (a hop to the start of a T-junction)
+      if (!on || !(on.distanceM <= opts.radiusM || on.distanceM <= m.distanceM + 0.5)) break;
+      back.push({ seq: m.seq, ref: prev.ref, chainageM: on.chainageM, offsetM: on.offsetM, distanceM: on.distanceM });
+    }
+    if (back.length < hop.end - hop.start) continue;
+    out ??= matched.slice();
+    for (let k = 0; k < back.length; k++) out[hop.start + k] = back[k];
     folded += back.length;
   }
-  return { fixes: out, folded };
+  return { fixes: out ?? matched, folded };
 }
 
 /** How far p lies beyond the end of the line (m, + past it), along the direction of the end segment. */

@@ -1,6 +1,7 @@
 import geodesic from 'geographiclib-geodesic';
 import { describe, expect, it } from 'vitest';
 import type { Fix, MatchedFix } from '@/lib/matching/match-types';
+import { signedOffset } from '@/lib/matching/offset-profile';
 import { unplannedLine } from '@/lib/matching/unplanned-line';
 import { claimBeyondEnds, foldJunctionHops, splitVisits } from '@/lib/matching/visits';
 import type { LonLat, PlannedRouteInput } from '@/lib/matching/types';
@@ -31,7 +32,7 @@ describe('visits of a walk to its routes', () => {
     // fixes along A past the junction; two of them, 2 m north of A, were matched to B's start
     const pos = new Map<number, LonLat>([[0, at(90, 46)], [1, at(0, 2, at(90, 49))], [2, at(0, 2, at(90, 51))], [3, at(90, 54)]]);
     const matched = [m(0, 'A', 46), m(1, 'B', 2, 1), m(2, 'B', 2, 1), m(3, 'A', 54)];
-    const { fixes, folded } = foldJunctionHops(matched, (s) => pos.get(s)!, routes, { radiusM: 8, maxFixes: 10 });
+    const { fixes, folded } = foldJunctionHops(matched, (f, ref) => signedOffset(routes.get(ref)!.coords, pos.get(f.seq)!), { radiusM: 8, maxFixes: 10 });
     expect(folded).toBe(2);
     expect(fixes.map((f) => f.ref)).toEqual(['A', 'A', 'A', 'A']);
     expect(fixes[1].chainageM).toBeCloseTo(49, 1);
@@ -42,7 +43,7 @@ describe('visits of a walk to its routes', () => {
   it('keeps a real walk up the joining route, which leaves the walked one behind', () => {
     const pos = new Map<number, LonLat>([[0, at(90, 46)], [1, at(0, 10, at(90, 50))], [2, at(0, 20, at(90, 50))], [3, at(0, 10, at(90, 50))], [4, at(90, 54)]]);
     const matched = [m(0, 'A', 46), m(1, 'B', 10), m(2, 'B', 20), m(3, 'B', 10), m(4, 'A', 54)];
-    expect(foldJunctionHops(matched, (s) => pos.get(s)!, routes, { radiusM: 8, maxFixes: 10 }).folded).toBe(0);
+    expect(foldJunctionHops(matched, (f, ref) => signedOffset(routes.get(ref)!.coords, pos.get(f.seq)!), { radiusM: 8, maxFixes: 10 }).folded).toBe(0);
   });
 
   it('hands the fixes beyond a route end to the unplanned run that follows, across noise about the end', () => {

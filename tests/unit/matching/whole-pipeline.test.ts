@@ -168,6 +168,11 @@ describe.each(SEEDS)('a street project through the whole pipeline, seed %i', (se
     sc = projectScenario(seed);
     drafts = (await reconcileProject(sc.routes, uploadsOf(sc, sc.handheld.map((h) => h.fix)), { toleranceM: TOLERANCE_M })).drafts;
     f = measure(sc, drafts);
+    // WHOLE_PIPELINE_FIGURES=1 prints the measured figures (for the README and closing notes)
+    if (process.env.WHOLE_PIPELINE_FIGURES) {
+      const { samples: _, ...figures } = f;
+      console.log(`seed ${seed}`, JSON.stringify(figures, (_k, v) => (typeof v === 'number' ? Math.round(v * 10_000) / 10_000 : v)));
+    }
     spiked = [];
     for (let k = 0; k < SPIKES; k++) {
       const { walk, seq } = withOneOutlier(sc, seed * 100 + k);
