@@ -1,5 +1,6 @@
 import { cumulativeChainage, lineLengthM, localFrame, pointAtChainage } from './chainage';
 import type { RouteObservations, SectionDraft, SectionOptions, SectionStatus } from './section-types';
+import { SortedWindow, WindowExtremes } from './sliding-window';
 import type { LonLat } from './types';
 
 /** 95 % radius of a circular normal error with σ per axis [computed: sqrt(−2 ln 0.05)]. */
@@ -132,13 +133,17 @@ function windowEnd(ch: Float64Array, c: number, w: number): number {
   return lo;
 }
 
-/** trimmedMean of `n` values in `xs` (sorted in place): a typed sort, no copies, the same sum in the same order. */
-function trimmedMeanInPlace(xs: Float64Array, n: number): number {
-  const s = xs.subarray(0, n).sort();
+/** trimmedMean of the first `n` values of an ascending array: the same sum in the same order. */
+function trimmedMeanOfSorted(s: Float64Array, n: number): number {
   const k = Math.floor(n * 0.1);
   let sum = 0;
   for (let i = k; i < n - k; i++) sum += s[i];
   return sum / (n - 2 * k);
+}
+
+/** The element `median` picks (the ⌈n/2⌉-th smallest) of the first `n` values of an ascending array. */
+function medianOfSorted(s: Float64Array, n: number): number {
+  return n === 0 ? 0 : s[Math.min(n - 1, Math.max(0, Math.ceil(0.5 * n) - 1))];
 }
 
 /**
@@ -175,6 +180,8 @@ function smoothBins(route: LonLat[], length: number, sources: RouteObservations[
   const sorted = sources.map((s) => [...s.fixes].sort((a, b) => a.chainageM - b.chainageM));
   const columns = sorted.map(sortedColumns);
   const scratch = new Float64Array(Math.max(1, ...sorted.map((f) => f.length)));
+  // per source, made when first used: its window, its ring and the ring's time span, slid metre by metre
+  const slides = columns.map(() => null as null | { inner: SortedWindow; ring: SortedWindow; times: WindowExtremes });
   const bins: Bin[] = [];
   for (let i = 0; i < nb; i++) {
     const c = Math.min(length, i + 0.5);
@@ -191,19 +198,20 @@ function smoothBins(route: LonLat[], length: number, sources: RouteObservations[
     const s = sources[best];
     const fx = sorted[best];
     const { chainage, offset, t } = columns[best];
+    const slide = (slides[best] ??= { inner: new SortedWindow(offset), ring: new SortedWindow(offset), times: new WindowExtremes(t) });
     const w = s.surveyGrade ? Math.max(1, o.windowM / 10) : o.windowM;
     const [n0, n1] = [windowStart(chainage, c, w), windowEnd(chainage, c, w)];
     let count = n1 - n0;
-    if (count > 0) scratch.set(offset.subarray(n0, n1));
-    else if (fx.length === 0) {
-      // a stretch the walk is known to have crossed without a fix on it (a short road crossing): on the plan
-      scratch[0] = 0;
-      count = 1;
+    let centre: number;
+    if (count > 0) {
+      slide.inner.moveTo(n0, n1, n1, n1);
+      centre = trimmedMeanOfSorted(slide.inner.sorted, count);
     } else {
-      scratch[0] = fx.reduce((p, f) => (Math.abs(f.chainageM - c) < Math.abs(p.chainageM - c) ? f : p)).offsetM;
+      // a stretch the walk is known to have crossed without a fix on it (a short road crossing): on the plan;
+      // else the nearest fix
+      centre = fx.length === 0 ? 0 : fx.reduce((p, f) => (Math.abs(f.chainageM - c) < Math.abs(p.chainageM - c) ? f : p)).offsetM;
       count = 1;
     }
-    const centre = trimmedMeanInPlace(scratch, count);
     let anomaly = centre;
     let baseline = 0;
     let residualBias = 0;
@@ -216,19 +224,18 @@ function smoothBins(route: LonLat[], length: number, sources: RouteObservations[
       const [r0, r1] = [windowStart(chainage, c, 2 * o.windowM), windowEnd(chainage, c, 2 * o.windowM)];
       const ringSize = r0 - w0 + (w1 - r1);
       let basisSize: number;
+      slide.ring.moveTo(w0, r0, r1, w1);
       if (ringSize >= 5) {
-        scratch.set(offset.subarray(w0, r0));
-        scratch.set(offset.subarray(r1, w1), r0 - w0);
+        baseline = medianOfSorted(slide.ring.sorted, ringSize);
         basisSize = ringSize;
       } else {
         scratch.set(offset.subarray(w0, w1));
         basisSize = w1 - w0;
+        baseline = medianInPlace(scratch, basisSize);
       }
-      baseline = medianInPlace(scratch, basisSize);
       anomaly = centre - baseline;
-      let [tMin, tMax, timed] = [Infinity, -Infinity, 0];
-      for (let j = w0; j < w1; j++) if (t[j] === t[j]) (tMin = Math.min(tMin, t[j])), (tMax = Math.max(tMax, t[j])), timed++;
-      const span = timed > 1 ? tMax - tMin : 8 * w;
+      slide.times.moveTo(w0, w1);
+      const span = slide.times.count > 1 ? slide.times.max() - slide.times.min() : 8 * w;
       // over a span T much shorter than τ the bias moves like a random walk with diffusion 2σ²/τ, so its
       // distance from its own average over the span has variance σ²·T/(3τ); beyond that it is plain σ²
       const drift = o.biasSigmaM * Math.sqrt(Math.min(1, span / (3 * o.biasTauS)));

@@ -41,17 +41,35 @@ export function distanceM(a: LonLat, b: LonLat): number {
   return WGS84.Inverse(a[1], a[0], b[1], b[0], geodesic.Geodesic.DISTANCE).s12 ?? 0;
 }
 
+// A route's chainages are asked for again and again in one reconciliation (graph, candidate index, sections),
+// each time with GeographicLib: they are kept per coordinate array, with a copy of its values that must
+// still match, so an array changed in place is measured afresh.
+const chainageCache = new WeakMap<LonLat[], { values: Float64Array; cum: number[] }>();
+
+function cachedCumulative(coords: LonLat[]): readonly number[] {
+  const hit = chainageCache.get(coords);
+  if (hit && hit.values.length === 2 * coords.length) {
+    let same = true;
+    for (let i = 0; same && i < coords.length; i++) same = hit.values[2 * i] === coords[i][0] && hit.values[2 * i + 1] === coords[i][1];
+    if (same) return hit.cum;
+  }
+  const cum = new Array<number>(coords.length);
+  const values = new Float64Array(2 * coords.length);
+  let sum = 0;
+  for (let i = 0; i < coords.length; i++) {
+    if (i > 0) sum += distanceM(coords[i - 1], coords[i]);
+    cum[i] = sum;
+    (values[2 * i] = coords[i][0]), (values[2 * i + 1] = coords[i][1]);
+  }
+  chainageCache.set(coords, { values, cum });
+  return cum;
+}
+
 /**
  * Metres from the start at each vertex, e.g. `cumulativeChainage([[0, 0], [1, 0]])` → `[0, 111319.49]`.
  */
 export function cumulativeChainage(coords: LonLat[]): number[] {
-  const out = new Array<number>(coords.length);
-  let sum = 0;
-  for (let i = 0; i < coords.length; i++) {
-    if (i > 0) sum += distanceM(coords[i - 1], coords[i]);
-    out[i] = sum;
-  }
-  return out;
+  return cachedCumulative(coords).slice();
 }
 
 /**
@@ -59,11 +77,11 @@ export function cumulativeChainage(coords: LonLat[]): number[] {
  * `lineLengthM([[0, 0], [1, 0]])` → 111319.4908 (1° on the equator)
  */
 export function lineLengthM(coords: LonLat[]): number {
-  return coords.length < 2 ? 0 : cumulativeChainage(coords)[coords.length - 1];
+  return coords.length < 2 ? 0 : cachedCumulative(coords)[coords.length - 1];
 }
 
 /** The segment holding chainage `s`: the last i with cum[i] <= s, below the last vertex. */
-function segmentAt(cum: number[], s: number): number {
+function segmentAt(cum: readonly number[], s: number): number {
   let lo = 0;
   let hi = cum.length - 2;
   while (lo < hi) {
@@ -86,7 +104,7 @@ function positionOnSegment(a: LonLat, b: LonLat, s: number): LonLat {
 export function pointAtChainage(coords: LonLat[], chainageM: number): LonLat {
   if (coords.length === 0) throw new RangeError('pointAtChainage needs at least one position');
   if (coords.length === 1 || chainageM <= 0) return [coords[0][0], coords[0][1]];
-  const cum = cumulativeChainage(coords);
+  const cum = cachedCumulative(coords);
   const last = coords.length - 1;
   if (chainageM >= cum[last]) return [coords[last][0], coords[last][1]];
   const i = segmentAt(cum, chainageM);
@@ -146,12 +164,9 @@ export function projectOntoLine(coords: LonLat[], p: LonLat): Projection {
     planar.push({ i, d, s: t * Math.sqrt(l2) });
     best = Math.min(best, d);
   }
-  // chainage at the finalists' vertices only: the same running sum as cumulativeChainage, stopped early
-  const cum = [0];
-  const chainageAt = (i: number) => {
-    for (let k = cum.length; k <= i; k++) cum.push(cum[k - 1] + distanceM(coords[k - 1], coords[k]));
-    return cum[i];
-  };
+  // chainage at the finalists' vertices: the running sum of cumulativeChainage (kept per line)
+  const cum = cachedCumulative(coords);
+  const chainageAt = (i: number) => cum[i];
   let out: Projection | undefined;
   for (const c of planar) {
     if (c.d > best * 1.01 + 0.01) continue;

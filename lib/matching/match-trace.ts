@@ -1,8 +1,8 @@
 import { appendCandidates, CandidateColumns, makeCandidateIndex, metresPerDegree, type CandidateIndex } from './candidates';
 import { resolveMatchOptions, type Fix, type MatchOptions, type MatchResult, type ResolvedMatchOptions } from './match-types';
-import { locatePositions, makeRouteNetwork, routeDistanceBetween, routeDistanceMatrix, type PositionColumns, type RouteNetwork } from './route-distance';
+import { locatePositions, makeRouteNetwork, routeDistanceBetween, type PositionColumns, type RouteNetwork } from './route-distance';
 import type { PlannedRouteInput, RouteGraph } from './types';
-import { viterbiLayers } from './viterbi';
+import { viterbiPruned } from './viterbi';
 
 // Hidden-Markov map matching after Newson & Krumm (2009), "Hidden Markov Map Matching Through Noise and
 // Sparseness", ACM SIGSPATIAL GIS, doi:10.1145/1653771.1653818.
@@ -39,12 +39,13 @@ interface Plane {
 function toPlane(fixes: Fix[], lon0: number, lat0: number, mx0: number, my0: number): Plane {
   const n = fixes.length;
   const p: Plane = { x: new Float64Array(n), y: new Float64Array(n), kx: new Float64Array(n), ky: new Float64Array(n) };
-  fixes.forEach((f, i) => {
+  for (let i = 0; i < n; i++) {
+    const f = fixes[i];
     const { mx, my } = metresPerDegree(f.lat);
     p.x[i] = (((((f.lon - lon0) % 360) + 540) % 360) - 180) * mx0;
     p.y[i] = (f.lat - lat0) * my0;
     (p.kx[i] = mx / mx0), (p.ky[i] = my / my0);
-  });
+  }
   return p;
 }
 
@@ -60,20 +61,25 @@ const dist = (p: Plane, i: number, j: number) => Math.hypot((p.x[i] - p.x[j]) * 
  */
 function spikes(fixes: Fix[], piece: number[], p: Plane, o: ResolvedMatchOptions): boolean[] {
   const out = piece.map(() => false);
-  const at = (a: number, b: number, i: number): [number, number] => {
-    const [fa, fb, fi] = [fixes[a], fixes[b], fixes[i]];
-    const w = fa.t !== null && fb.t !== null && fi.t !== null && fb.t > fa.t ? (fi.t - fa.t) / (fb.t - fa.t) : 0.5;
-    return [p.x[a] + w * (p.x[b] - p.x[a]), p.y[a] + w * (p.y[b] - p.y[a])];
+  // the time-interpolated position between fixes a and b at fix i's time (halfway without times)
+  let rx = 0;
+  let ry = 0;
+  const at = (a: number, b: number, i: number) => {
+    const [ta, tb, ti] = [fixes[a].t, fixes[b].t, fixes[i].t];
+    const w = ta !== null && tb !== null && ti !== null && tb > ta ? (ti - ta) / (tb - ta) : 0.5;
+    rx = p.x[a] + w * (p.x[b] - p.x[a]);
+    ry = p.y[a] + w * (p.y[b] - p.y[a]);
   };
   for (let k = 1; k + 1 < piece.length; k++) {
     const i = piece[k];
-    const [rx1, ry1] = at(piece[k - 1], piece[k + 1], i);
-    let [rx, ry] = [rx1, ry1];
+    at(piece[k - 1], piece[k + 1], i);
+    let [x, y] = [rx, ry];
     if (k >= 2 && k + 2 < piece.length) {
-      const [rx2, ry2] = at(piece[k - 2], piece[k + 2], i);
-      [rx, ry] = [(rx1 + rx2) / 2, (ry1 + ry2) / 2];
+      at(piece[k - 2], piece[k + 2], i);
+      x = (x + rx) / 2;
+      y = (y + ry) / 2;
     }
-    const dev = Math.hypot((p.x[i] - rx) * p.kx[i], (p.y[i] - ry) * p.ky[i]);
+    const dev = Math.hypot((p.x[i] - x) * p.kx[i], (p.y[i] - y) * p.ky[i]);
     const [tp, ti, tn] = [fixes[piece[k - 1]].t, fixes[i].t, fixes[piece[k + 1]].t];
     const allow = tp !== null && ti !== null && tn !== null ? o.maxSpeedMps * Math.max(Math.min(ti - tp, tn - ti), 0) : o.gapMetres / 2;
     out[k] = dev > 3.5 * o.sigmaM && dev > allow;
@@ -166,10 +172,13 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
     const emissions = new Float64Array(total);
     for (let k = 0, e = 0; k < m; k++) for (let j = 0; j < n[k]; j++) emissions[e++] = emissionLogProb(cands.distance[at[k] + j], o.sigmaM);
     const betaM = o.betaM;
-    const { path } = viterbiLayers(n, emissions, (k, out) => {
-      const size = n[k - 1] * n[k];
-      routeDistanceMatrix(net, pos, at[k - 1], n[k - 1], at[k], n[k], bound[k], out);
-      for (let x = 0; x < size; x++) out[x] = out[x] === Infinity ? -Infinity : -Math.abs(out[x] - gc[k]) / betaM - logBeta;
+    const { route, chainage } = cands;
+    const { edge, leg0, leg1 } = pos;
+    // route distances are the costly part: asked for only where a transition can still change the best path
+    const { path } = viterbiPruned(n, emissions, -logBeta, (k, i, j) => {
+      const [x, y] = [at[k - 1] + i, at[k] + j];
+      const d = routeDistanceBetween(net, route[x], chainage[x], edge[x], leg0[x], leg1[x], route[y], chainage[y], edge[y], leg0[y], leg1[y], bound[k]);
+      return d === Infinity ? -Infinity : -Math.abs(d - gc[k]) / betaM - logBeta;
     });
     for (let k = 0; k < m; k++) path[k] += at[k];
     return path;

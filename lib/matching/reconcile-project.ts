@@ -15,6 +15,34 @@ const R95 = 2.4477;
 /** Matching is CPU work; between traces it lets the process serve other requests (the web server runs jobs too). */
 const breathe = () => new Promise<void>((resolve) => setImmediate(resolve));
 
+/**
+ * The fix with a given seq, for a trace's matched fixes: a table by seq where seqs are whole numbers in a
+ * compact range (as the stored points' are), else a Map. Throws on a seq the trace does not hold.
+ */
+export function seqLookup(trace: Fix[]): (seq: number) => Fix {
+  let [lo, hi] = [Infinity, -Infinity];
+  let whole = true;
+  for (const f of trace) {
+    if (!Number.isInteger(f.seq)) whole = false;
+    if (f.seq < lo) lo = f.seq;
+    if (f.seq > hi) hi = f.seq;
+  }
+  const missing = (seq: number): never => {
+    throw new RangeError(`no fix with seq ${seq} in this trace`);
+  };
+  if (whole && trace.length > 0 && hi - lo < 4 * trace.length + 1024) {
+    const at = new Int32Array(hi - lo + 1).fill(-1);
+    trace.forEach((f, i) => (at[f.seq - lo] = i));
+    return (seq) => {
+      const i = seq >= lo && seq <= hi ? at[seq - lo] : -1;
+      return i >= 0 ? trace[i] : missing(seq);
+    };
+  }
+  const bySeq = new Map<number, Fix>();
+  for (const f of trace) bySeq.set(f.seq, f);
+  return (seq) => bySeq.get(seq) ?? missing(seq);
+}
+
 /** One upload as the matcher takes it: its lines and point runs as traces, with its accuracy. */
 export interface UploadTraces {
   uploadId: string;
@@ -34,8 +62,12 @@ export interface ReconcileStats {
   reassigned: number;
   /** handheld fixes put back on their route after a hop onto a joining route within their noise */
   junctionHops: number;
-  /** wall time of matchTrace and of the section building, when asked for with `timings: true` (bench:match) */
-  timingsMs?: { matchMs: number; sectionsMs: number };
+  /**
+   * wall time of each stage, when asked for with `timings: true` (bench:match): the graph and index build,
+   * matchTrace, the passes over the matched fixes (junction hops, route ends, walked intervals, unplanned
+   * lines) and the section building
+   */
+  timingsMs?: { prepareMs: number; matchMs: number; visitsMs: number; sectionsMs: number };
 }
 
 /** The matched observations of one upload on one route, for the offset-versus-chainage plot. */
@@ -58,6 +90,7 @@ export async function reconcileProject(
   uploads: UploadTraces[],
   opts: { toleranceM: number; corrections?: Correction[]; timings?: boolean; onProgress?: (fraction: number) => void },
 ): Promise<{ drafts: SectionDraft[]; stats: ReconcileStats; observations: RouteObservationSeries[] }> {
+  const tPrepare = performance.now();
   const graph = buildRouteGraph(routes);
   const prepared = prepareMatchNetwork(routes, graph);
   const routeIndex = new Map<string, number>();
@@ -70,7 +103,7 @@ export async function reconcileProject(
   const drafts: SectionDraft[] = [];
   const stats: ReconcileStats = { fixes: 0, matched: 0, outliers: 0, unplannedRuns: 0, pieces: 0, reassigned: 0, junctionHops: 0 };
   // timings stay out of the stored run summary unless asked for: they differ from run to run
-  const timingsMs = { matchMs: 0, sectionsMs: 0 };
+  const timingsMs = { prepareMs: performance.now() - tPrepare, matchMs: 0, visitsMs: 0, sectionsMs: 0 };
   const sorted = [...uploads].sort((a, b) => a.uploadId.localeCompare(b.uploadId));
   for (const [u, up] of sorted.entries()) {
     for (const trace of up.traces) {
@@ -81,30 +114,30 @@ export async function reconcileProject(
       const sigmaM = Math.hypot(up.sigmaM, Math.max(opts.toleranceM, 1));
       const t0 = performance.now();
       const result = matchTrace(trace, routes, graph, { sigmaM }, prepared);
-      timingsMs.matchMs += performance.now() - t0;
+      const t1 = performance.now();
+      timingsMs.matchMs += t1 - t0;
       stats.fixes += trace.length;
       stats.matched += result.matched.length;
       stats.outliers += result.outliers.length;
       stats.pieces += result.pieces;
-      const bySeq = new Map<number, Fix>();
-      for (const f of trace) bySeq.set(f.seq, f);
-      const position = (seq: number): LonLat => [bySeq.get(seq)!.lon, bySeq.get(seq)!.lat];
+      const fixOf = seqLookup(trace);
+      const position = (seq: number): LonLat => [fixOf(seq).lon, fixOf(seq).lat];
       // a fix put on a route the matcher did not choose: with the candidate search's own arithmetic
       const onRoute = (m: { seq: number }, ref: string) => {
         const k = routeIndex.get(ref);
-        return k === undefined ? null : projectOntoRoute(prepared.index, k, bySeq.get(m.seq)!);
+        return k === undefined ? null : projectOntoRoute(prepared.index, k, fixOf(m.seq));
       };
       const { fixes: reassigned, moved } = reassignFixes(result.matched, position, routeByRef, corrections);
       stats.reassigned += moved;
       // a handheld walk past a junction hops onto the other route and back within its noise: put it back
       const hops = up.surveyGrade ? { fixes: reassigned, folded: 0 } : foldJunctionHops(reassigned, onRoute, { radiusM: 2.5 * up.sigmaM, maxFixes: 10 });
       stats.junctionHops += hops.folded;
-      const ends = claimBeyondEnds(hops.fixes, result.unmatched, (seq) => bySeq.get(seq)!, routeByRef, { nearM: 2 * up.sigmaM });
+      const ends = claimBeyondEnds(hops.fixes, result.unmatched, fixOf, routeByRef, { nearM: 2 * up.sigmaM });
       const matched = ends.matched;
       const perRef = new Map<string, RouteObservations['fixes']>();
       for (const m of matched) {
         const list = perRef.get(m.ref) ?? [];
-        list.push({ chainageM: m.chainageM, offsetM: m.offsetM, t: bySeq.get(m.seq)?.t ?? null });
+        list.push({ chainageM: m.chainageM, offsetM: m.offsetM, t: fixOf(m.seq).t });
         perRef.set(m.ref, list);
       }
       // where a walk saw trench: per visit, from its smoothed chainages (survey points are taken as they are)
@@ -135,6 +168,7 @@ export async function reconcileProject(
           sourceUploadIds: [up.uploadId], laidOn: up.laidOn,
         });
       }
+      timingsMs.visitsMs += performance.now() - t1;
     }
     opts.onProgress?.((u + 1) / Math.max(1, sorted.length));
   }

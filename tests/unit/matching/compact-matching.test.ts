@@ -2,7 +2,9 @@ import { describe, expect, it } from 'vitest';
 import { appendCandidates, CandidateColumns, candidatesFor, makeCandidateIndex } from '@/lib/matching/candidates';
 import { buildRouteGraph } from '@/lib/matching/route-graph';
 import { locatePositions, makeRouteNetwork, routeDistanceM, routeDistanceMatrix, type PositionColumns } from '@/lib/matching/route-distance';
-import { viterbi, viterbiLayers } from '@/lib/matching/viterbi';
+import { viterbi, viterbiLayers, viterbiPruned } from '@/lib/matching/viterbi';
+import { SortedWindow, WindowExtremes } from '@/lib/matching/sliding-window';
+import { seqLookup } from '@/lib/matching/reconcile-project';
 import { gridScenario, mulberry32, streetScenario } from './scenario';
 
 // The matcher keeps a long trace's candidates in typed columns, finds a layer's route distances at once behind
@@ -93,6 +95,77 @@ describe('viterbiLayers', () => {
       expect(fast.logProb).toBeCloseTo(best.score, 12);
       const plain = viterbi(counts, (k, j) => em[k][j], (k, i, j) => tr[k][i * counts[k] + j]);
       expect([...plain.path]).toEqual(best.path);
+      // transitions are all ≤ 0 here: the pruned recursion may skip those that cannot win, never the winner
+      const pruned = viterbiPruned(counts, Float64Array.from(em.flat()), 0, (k, i, j) => tr[k][i * counts[k] + j]);
+      expect([...pruned.path]).toEqual(best.path);
+    }
+  });
+
+  it('gives viterbiLayers\' own result when pruned, chain breaks and ties included, and asks for fewer transitions', () => {
+    const rng = mulberry32(21);
+    let asked = 0;
+    let all = 0;
+    for (let trial = 0; trial < 200; trial++) {
+      const counts = Array.from({ length: 12 }, () => 1 + Math.floor(rng() * 5));
+      // emissions far apart, as a near and a far candidate are; ties from rounding to whole numbers
+      const em = counts.map((m) => Array.from({ length: m }, () => -Math.round(12 * rng())));
+      const tr = counts.map((m, k) => Array.from({ length: k > 0 ? counts[k - 1] * m : 0 }, () => (rng() < 0.1 ? -Infinity : -Math.log(3) - Math.round(4 * rng()))));
+      const full = viterbiLayers(counts, Float64Array.from(em.flat()), (k, out) => out.set(tr[k]));
+      const pruned = viterbiPruned(counts, Float64Array.from(em.flat()), -Math.log(3), (k, i, j) => (asked++, tr[k][i * counts[k] + j]));
+      all += tr.reduce((n, t) => n + t.length, 0);
+      expect([...pruned.path]).toEqual([...full.path]);
+      expect(pruned.chainStarts).toEqual(full.chainStarts);
+      expect(pruned.logProb).toBe(full.logProb);
+    }
+    expect(asked).toBeLessThan(all);
+  });
+});
+
+describe('sliding windows', () => {
+  it('keeps the window sorted as its bounds slide: the same values as sorting each window afresh', () => {
+    const rng = mulberry32(5);
+    // quarter metres, so that many values tie (+ 0 turns −0 into 0: the two are equal, and either may come first)
+    const values = Float64Array.from({ length: 400 }, () => Math.round(20 * (rng() - 0.5)) / 4 + 0);
+    const w = new SortedWindow(values);
+    let b = [0, 0, 0, 0];
+    for (let step = 0; step < 300; step++) {
+      // four bounds, each moving forward by 0–3, kept in order
+      const next = b.map((x) => x + Math.floor(4 * rng()));
+      for (let k = 1; k < 4; k++) next[k] = Math.max(next[k], next[k - 1]);
+      b = next.map((x) => Math.min(x, values.length));
+      w.moveTo(b[0], b[1], b[2], b[3]);
+      // truth: Array.prototype.sort of the window's values
+      const truth = [...values.subarray(b[0], b[1]), ...values.subarray(b[2], b[3])].sort((x, y) => x - y);
+      expect([...w.sorted.subarray(0, w.size)]).toEqual(truth);
+    }
+    expect(() => w.moveTo(0, 0, 0, 0)).toThrow(/moved back/);
+  });
+
+  it('tracks the smallest and largest number in a sliding window, NaN left out', () => {
+    const rng = mulberry32(6);
+    const values = Float64Array.from({ length: 300 }, () => (rng() < 0.2 ? NaN : Math.round(100 * rng())));
+    const x = new WindowExtremes(values);
+    let [lo, hi] = [0, 0];
+    for (let step = 0; step < 250; step++) {
+      hi = Math.min(values.length, hi + Math.floor(4 * rng()));
+      lo = Math.min(hi, lo + Math.floor(4 * rng()));
+      x.moveTo(lo, hi);
+      const nums = [...values.subarray(lo, hi)].filter((v) => !Number.isNaN(v));
+      expect(x.count).toBe(nums.length);
+      expect(x.min()).toBe(nums.length ? Math.min(...nums) : Infinity);
+      expect(x.max()).toBe(nums.length ? Math.max(...nums) : -Infinity);
+    }
+  });
+});
+
+describe('seqLookup', () => {
+  it('finds fixes by seq, compact or sparse, and names a seq it does not hold', () => {
+    const compact = [5, 6, 7, 9].map((seq) => ({ lon: seq, lat: 0, t: null, seq }));
+    const sparse = [3, 1e9, -4.5].map((seq) => ({ lon: seq, lat: 0, t: null, seq }));
+    for (const trace of [compact, sparse]) {
+      const at = seqLookup(trace);
+      for (const f of trace) expect(at(f.seq)).toBe(f);
+      expect(() => at(8)).toThrow('no fix with seq 8 in this trace');
     }
   });
 });

@@ -84,6 +84,21 @@ describe('matchTrace on a street with both sides planned', () => {
     expect(r.matched.map((x) => x.seq)).toEqual([...r.matched.map((x) => x.seq)].sort((a, b) => a - b));
   });
 
+  it('thins the recursion as Newson & Krumm do (fixes within 2σ of the last kept one) without losing accuracy', () => {
+    // truth: the scenario's own route of each fix; the same trace matched with every fix in the recursion
+    const walked = sc.handheld.filter((h) => h.ref !== null && !h.outlier);
+    const share = (r: ReturnType<typeof matchTrace>) => {
+      const m = bySeq(r);
+      return walked.filter((h) => correct(h, m.get(h.fix.seq), sc.plan)).length / walked.length;
+    };
+    const thinned = matchTrace(sc.handheld.map((h) => h.fix), sc.routes, graph, { sigmaM: 4 });
+    const full = matchTrace(sc.handheld.map((h) => h.fix), sc.routes, graph, { sigmaM: 4, thinM: 0 });
+    expect(share(thinned)).toBeGreaterThanOrEqual(share(full) - 0.005);
+    // every fix still placed: the skipped ones on their neighbours' route, none lost or doubled
+    expect(thinned.matched.map((x) => x.seq)).toEqual(full.matched.map((x) => x.seq));
+    expect(thinned.outliers).toEqual(full.outliers);
+  });
+
   it('reports the unplanned extension as one unmatched run reaching its length (±20 %)', () => {
     const r = matchTrace(sc.handheld.map((h) => h.fix), sc.routes, graph, { sigmaM: 4 });
     const far = r.unmatched.filter((run) => run.length >= 3);
