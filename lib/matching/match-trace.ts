@@ -1,4 +1,4 @@
-import { appendCandidates, CandidateColumns, makeCandidateIndex, metresPerDegree, type CandidateIndex } from './candidates';
+import { appendCandidates, CandidateColumns, makeCandidateIndex, metresPerDegree, projectOntoRoute, type CandidateIndex } from './candidates';
 import { resolveMatchOptions, type Fix, type MatchOptions, type MatchResult, type ResolvedMatchOptions } from './match-types';
 import { locatePositions, makeRouteNetwork, routeDistanceBetween, type PositionColumns, type RouteNetwork } from './route-distance';
 import type { PlannedRouteInput, RouteGraph } from './types';
@@ -184,77 +184,134 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
     return path;
   };
 
+  // per layer of the current chain: whether it is kept for the recursion, and where it was placed
+  let kept: boolean[] = [];
+  const placed = { route: new Int32Array(64), chainage: new Float64Array(64), offset: new Float64Array(64), distance: new Float64Array(64) };
+  const place = (k: number, route: number, chainageM: number, offsetM: number, distanceM: number) => {
+    (placed.route[k] = route), (placed.chainage[k] = chainageM), (placed.offset[k] = offsetM), (placed.distance[k] = distanceM);
+  };
+  const placeCandidate = (k: number, c: number) => place(k, cands.route[c], cands.chainage[c], cands.offset[c], cands.distance[c]);
+  const placeOn = (k: number, route: number) => {
+    const p = projectOntoRoute(index, route, fixes[chain[k]]);
+    place(k, route, p.chainageM, p.offsetM, p.distanceM);
+  };
+  const searched = (k: number) => first[k + 1] > first[k];
+
   /**
    * The skipped fixes between kept layers ka and kb when the kept ones chose different routes (a turn at a
-   * junction): Viterbi over just their candidates on those two routes, both ends fixed. False, with nothing
-   * chosen, when a skipped fix has a candidate on neither or the two routes do not connect within reach.
+   * junction): Viterbi over their positions on just those two routes (their candidates there, or, for a fix
+   * never searched, its projection), both ends fixed. False, with nothing placed, when a searched fix has a
+   * candidate on neither or the two routes do not connect within reach.
    */
-  const between = (ka: number, kb: number, chosen: Int32Array): boolean => {
-    const { route, chainage, distance } = cands;
-    const [ca, cb] = [chosen[ka], chosen[kb]];
-    const [r1, r2] = [route[ca], route[cb]];
+  // between's scratch, grown as needed: positions on the two routes, two a layer, with their scores
+  let st = { route: new Int32Array(0), chainage: new Float64Array(0), offset: new Float64Array(0), distance: new Float64Array(0), edge: new Int32Array(0), leg0: new Float64Array(0), leg1: new Float64Array(0), score: new Float64Array(0), back: new Int8Array(0) };
+  const between = (ka: number, kb: number, ca: number, cb: number): boolean => {
+    const [r1, r2] = [cands.route[ca], cands.route[cb]];
     const span = kb - ka + 1;
-    // two states a layer at most (a fix has one candidate per route): state s of layer j is states[2j + s]
-    const states = new Int32Array(2 * span).fill(-1);
-    const score = new Float64Array(2 * span).fill(-Infinity);
-    const back = new Int8Array(2 * span);
-    (states[0] = ca), (score[0] = 0);
+    // two states a layer at most (one position per route): state s of layer j is at 2j + s
+    const size = 2 * span;
+    if (st.route.length < size) {
+      const n = 2 * size;
+      st = { route: new Int32Array(n), chainage: new Float64Array(n), offset: new Float64Array(n), distance: new Float64Array(n), edge: new Int32Array(n), leg0: new Float64Array(n), leg1: new Float64Array(n), score: new Float64Array(n), back: new Int8Array(n) };
+    }
+    st.route.fill(-1, 0, size);
+    const fromCandidate = (x: number, c: number) => {
+      (st.route[x] = cands.route[c]), (st.chainage[x] = cands.chainage[c]), (st.offset[x] = cands.offset[c]), (st.distance[x] = cands.distance[c]);
+      (st.edge[x] = pos.edge[c]), (st.leg0[x] = pos.leg0[c]), (st.leg1[x] = pos.leg1[c]);
+    };
+    fromCandidate(0, ca);
+    fromCandidate(2 * (span - 1), cb);
+    for (let j = 1; j + 1 < span; j++) {
+      const k = ka + j;
+      if (searched(k)) {
+        let x = 2 * j;
+        for (let c = first[k]; c < first[k + 1]; c++) if (cands.route[c] === r1 || cands.route[c] === r2) fromCandidate(x++, c);
+        if (x === 2 * j) return false;
+      } else {
+        for (const [t, r] of [[0, r1], [1, r2]]) {
+          if (t === 1 && r2 === r1) break;
+          const x = 2 * j + t;
+          const p = projectOntoRoute(index, r, fixes[chain[k]]);
+          (st.route[x] = r), (st.chainage[x] = p.chainageM), (st.offset[x] = p.offsetM), (st.distance[x] = p.distanceM);
+        }
+        locatePositions(net, st, 2 * j, 2 * j + 2);
+      }
+    }
+    const { score, back } = st;
+    score.fill(-Infinity, 0, size);
+    score[0] = 0;
     for (let j = 1; j < span; j++) {
       const k = ka + j;
-      if (j === span - 1) states[2 * j] = cb;
-      else {
-        let s = 2 * j;
-        for (let c = first[k]; c < first[k + 1]; c++) if (route[c] === r1 || route[c] === r2) states[s++] = c;
-        if (s === 2 * j) return false;
-      }
       const gc = dist(plane, chain[k - 1], chain[k]);
       const bound = 4 * gc + 50;
       let reached = false;
       for (let t = 0; t < 2; t++) {
-        const y = states[2 * j + t];
-        if (y < 0) continue;
-        const e = j === span - 1 ? 0 : emissionLogProb(distance[y], o.sigmaM);
-        for (let p = 0; p < 2; p++) {
-          const x = states[2 * (j - 1) + p];
-          if (x < 0 || score[2 * (j - 1) + p] === -Infinity) continue;
-          const d = routeDistanceBetween(net, route[x], chainage[x], pos.edge[x], pos.leg0[x], pos.leg1[x], route[y], chainage[y], pos.edge[y], pos.leg0[y], pos.leg1[y], bound);
+        const y = 2 * j + t;
+        if (st.route[y] < 0) continue;
+        const e = j === span - 1 ? 0 : emissionLogProb(st.distance[y], o.sigmaM);
+        for (let q = 0; q < 2; q++) {
+          const x = 2 * (j - 1) + q;
+          if (st.route[x] < 0 || score[x] === -Infinity) continue;
+          const d = routeDistanceBetween(net, st.route[x], st.chainage[x], st.edge[x], st.leg0[x], st.leg1[x], st.route[y], st.chainage[y], st.edge[y], st.leg0[y], st.leg1[y], bound);
           if (d === Infinity) continue;
-          const v = score[2 * (j - 1) + p] - Math.abs(d - gc) / o.betaM - logBeta + e;
-          if (v > score[2 * j + t]) (score[2 * j + t] = v), (back[2 * j + t] = p);
+          const v = score[x] - Math.abs(d - gc) / o.betaM - logBeta + e;
+          if (v > score[y]) (score[y] = v), (back[y] = q);
         }
-        if (score[2 * j + t] > -Infinity) reached = true;
+        if (score[y] > -Infinity) reached = true;
       }
       if (!reached) return false;
     }
-    for (let j = span - 1, t = 0; j > 0; t = back[2 * j + t], j--) if (j < span - 1) chosen[ka + j] = states[2 * j + t];
+    for (let j = span - 1, t = 0; j > 0; t = back[2 * j + t], j--) {
+      const x = 2 * j + t;
+      if (j < span - 1) place(ka + j, st.route[x], st.chainage[x], st.offset[x], st.distance[x]);
+    }
     return true;
+  };
+
+  /** Candidates for layer k of the chain found now (a skipped fix the recursion needs after all), at the end of cands. */
+  const searchLate = (k: number): [number, number] => {
+    const at = cands.length;
+    const n = prune(cands, at, appendCandidates(index, fixes[chain[k]], o.searchRadiusM, o.maxCandidates, cands), o.sigmaM);
+    cands.length = at + n;
+    located(at, n);
+    return [at, n];
   };
 
   const runChain = () => {
     const L = chain.length;
     if (L === 0) return;
-    const { route, chainage, distance } = cands;
+    const tailEnd = cands.length;
+    if (placed.route.length < L) {
+      const size = 2 * L;
+      [placed.route, placed.chainage, placed.offset, placed.distance] = [new Int32Array(size), new Float64Array(size), new Float64Array(size), new Float64Array(size)];
+    }
     // Newson & Krumm (2009, §4.1) leave out the fixes within 2σ of the last one kept: until the walker has
-    // moved further than the noise, a fix adds little to where the route goes. They skip the recursion here
-    // and are placed afterwards, on the route the kept fixes either side of them chose.
-    const keep: number[] = [0];
-    for (let k = 1; k < L; k++) if (k === L - 1 || dist(plane, chain[keep[keep.length - 1]], chain[k]) >= o.thinM) keep.push(k);
-    const chosen = new Int32Array(L);
-    const picked = solve(keep.map((k) => first[k]), keep.map((k) => first[k + 1] - first[k]), keep.map((k) => chain[k]));
-    keep.forEach((k, g) => (chosen[k] = picked[g]));
-    for (let g = 0; g + 1 < keep.length; g++) {
-      const [ka, kb] = [keep[g], keep[g + 1]];
+    // moved further than the noise, a fix adds little to where the route goes. They skip the recursion and
+    // are placed afterwards, on the route the kept fixes either side of them chose.
+    const keep: number[] = [];
+    for (let k = 0; k < L; k++) if (kept[k]) keep.push(k);
+    const chosen = solve(keep.map((k) => first[k]), keep.map((k) => first[k + 1] - first[k]), keep.map((k) => chain[k]));
+    keep.forEach((k, g) => placeCandidate(k, chosen[g]));
+    for (let g = 0; g < keep.length; g++) {
+      const ka = keep[g];
+      // after the last kept fix, the skipped ones have one neighbour: its route
+      const kb = g + 1 < keep.length ? keep[g + 1] : L;
       if (kb - ka < 2) continue;
-      // both neighbours on one route, and the skipped fixes have a candidate on it: that one
-      const r = route[chosen[ka]];
-      let same = route[chosen[kb]] === r;
+      const [ca, cb] = [chosen[g], g + 1 < keep.length ? chosen[g + 1] : chosen[g]];
+      // both neighbours on one route: the skipped fixes go on it (their candidate there, or their projection)
+      const r = cands.route[ca];
+      let same = cands.route[cb] === r;
       for (let k = ka + 1; same && k < kb; k++) {
+        if (!searched(k)) {
+          placeOn(k, r);
+          continue;
+        }
         let c = first[k];
-        while (c < first[k + 1] && route[c] !== r) c++;
-        if (c < first[k + 1]) chosen[k] = c;
-        else same = false;
+        while (c < first[k + 1] && cands.route[c] !== r) c++;
+        if (c < first[k + 1]) placeCandidate(k, c);
+        else same = kb === L ? (placeOn(k, r), true) : false;
       }
-      if (same || between(ka, kb, chosen)) continue;
+      if (same || between(ka, kb, ca, cb)) continue;
       // otherwise: Viterbi over every candidate of the skipped fixes, both ends fixed
       const span = kb - ka + 1;
       const at = new Int32Array(span);
@@ -263,46 +320,68 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
       for (let j = 0; j < span; j++) {
         const k = ka + j;
         fx[j] = chain[k];
-        [at[j], n[j]] = j === 0 || j === span - 1 ? [chosen[k], 1] : [first[k], first[k + 1] - first[k]];
+        [at[j], n[j]] = j === 0 ? [ca, 1] : j === span - 1 ? [cb, 1] : searched(k) ? [first[k], first[k + 1] - first[k]] : searchLate(k);
       }
       const inner = solve(at, n, fx);
-      for (let j = 1; j + 1 < span; j++) chosen[ka + j] = inner[j];
+      for (let j = 1; j + 1 < span; j++) placeCandidate(ka + j, inner[j]);
     }
-    chain.forEach((i, k) => {
-      const c = chosen[k];
-      result.matched.push({ seq: fixes[i].seq, ref: routes[route[c]].ref, chainageM: chainage[c], offsetM: cands.offset[c], distanceM: distance[c] });
-    });
+    for (let k = 0; k < L; k++) {
+      const f = fixes[chain[k]];
+      result.matched.push({ seq: f.seq, ref: routes[placed.route[k]].ref, chainageM: placed.chainage[k], offsetM: placed.offset[k], distanceM: placed.distance[k], t: f.t });
+    }
     // the fix that closed the chain may have its candidates in already: they start the next chain
-    const [end, tail] = [first[L], cands.length - first[L]];
+    const [end, tail] = [first[L], tailEnd - first[L]];
     for (const col of [cands.route, cands.chainage, cands.distance, cands.offset, pos.edge, pos.leg0, pos.leg1]) col.copyWithin(0, end, end + tail);
-    (chain = []), (first = [0]), (cands.length = tail);
+    (chain = []), (first = [0]), (kept = []), (cands.length = tail);
+  };
+
+  /** Edges and legs for the n candidates from `at` on, the position columns grown to the candidates'. */
+  const located = (at: number, n: number) => {
+    if (pos.edge.length < cands.route.length) {
+      const size = cands.route.length;
+      [pos.edge, pos.leg0, pos.leg1] = [grow(pos.edge, new Int32Array(size)), grow(pos.leg0, new Float64Array(size)), grow(pos.leg1, new Float64Array(size))];
+    }
+    pos.route = cands.route;
+    pos.chainage = cands.chainage;
+    locatePositions(net, pos, at, at + n);
   };
 
   for (const piece of pieces) {
     const spike = spikes(fixes, piece, plane, o);
     let far: number[] = [];
+    // the chain's last kept fix, and how far its nearest route is
+    let lastKept = -1;
+    let lastNear = 0;
     const closeFar = () => {
       if (far.length >= 3) {
         runChain();
+        lastKept = -1;
         result.unmatched.push(far.map((i) => fixes[i]));
       } else for (const i of far) outlierAt.push(i);
       far = [];
     };
     piece.forEach((i, k) => {
       if (spike[k]) return void outlierAt.push(i);
+      const d = lastKept >= 0 && chain.length > 0 ? dist(plane, lastKept, i) : Infinity;
+      const keepIt = !(d < o.thinM);
+      // a skipped fix this close to a kept one has a route within the search radius (triangle inequality):
+      // it is surely matched, and its candidates are only looked for if the recursion needs them
+      if (!keepIt && far.length === 0 && lastNear + d <= o.searchRadiusM) {
+        chain.push(i);
+        kept.push(false);
+        first.push(cands.length);
+        return;
+      }
       const at = cands.length;
       const n = prune(cands, at, appendCandidates(index, fixes[i], o.searchRadiusM, o.maxCandidates, cands), o.sigmaM);
       cands.length = at + n;
       if (n === 0) return void far.push(i);
       if (far.length > 0) closeFar();
-      if (pos.edge.length < cands.route.length) {
-        const size = cands.route.length;
-        [pos.edge, pos.leg0, pos.leg1] = [grow(pos.edge, new Int32Array(size)), grow(pos.leg0, new Float64Array(size)), grow(pos.leg1, new Float64Array(size))];
-      }
-      pos.route = cands.route;
-      pos.chainage = cands.chainage;
-      locatePositions(net, pos, cands.length - n, cands.length);
+      located(at, n);
+      const keepNow = keepIt || chain.length === 0;
+      if (keepNow) (lastKept = i), (lastNear = cands.distance[at]);
       chain.push(i);
+      kept.push(keepNow);
       first.push(cands.length);
     });
     closeFar();

@@ -43,6 +43,8 @@ export interface MatchedFix {
   offsetM: number;
   /** unsigned distance from the fix to the route */
   distanceM: number;
+  /** the fix's time, echoed (null for survey points) */
+  t: number | null;
 }
 
 export interface MatchResult {

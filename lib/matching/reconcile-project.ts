@@ -134,11 +134,12 @@ export async function reconcileProject(
       stats.junctionHops += hops.folded;
       const ends = claimBeyondEnds(hops.fixes, result.unmatched, fixOf, routeByRef, { nearM: 2 * up.sigmaM });
       const matched = ends.matched;
+      // the matched fixes themselves are the observations (chainage, offset, time): no copy of each
       const perRef = new Map<string, RouteObservations['fixes']>();
       for (const m of matched) {
-        const list = perRef.get(m.ref) ?? [];
-        list.push({ chainageM: m.chainageM, offsetM: m.offsetM, t: fixOf(m.seq).t });
-        perRef.set(m.ref, list);
+        const list = perRef.get(m.ref);
+        if (list) list.push(m);
+        else perRef.set(m.ref, [m]);
       }
       // where a walk saw trench: per visit, from its smoothed chainages (survey points are taken as they are)
       const offNetwork = new Set(ends.unmatched.flatMap((r) => r.fixes.map((f) => f.seq)));

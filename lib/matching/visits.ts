@@ -48,7 +48,7 @@ export function foldJunctionHops(
       const on = project(m, prev.ref);
       // A explains each fix within the noise, or at least as well as B does (a hop to the start of a T-junction)
       if (!on || !(on.distanceM <= opts.radiusM || on.distanceM <= m.distanceM + 0.5)) break;
-      back.push({ seq: m.seq, ref: prev.ref, chainageM: on.chainageM, offsetM: on.offsetM, distanceM: on.distanceM });
+      back.push({ seq: m.seq, ref: prev.ref, chainageM: on.chainageM, offsetM: on.offsetM, distanceM: on.distanceM, t: m.t });
     }
     if (back.length < hop.end - hop.start) continue;
     out ??= matched.slice();

@@ -19,7 +19,7 @@ const A: PlannedRouteInput = { ref: 'A', street: null, ducts: null, kind: 'stree
 // B leaves A at 50 m and runs 40 m north: a T-junction
 const B: PlannedRouteInput = { ref: 'B', street: null, ducts: null, kind: 'street', coords: [at(90, 50), at(0, 40, at(90, 50))] };
 const routes = new Map([['A', A], ['B', B]]);
-const m = (seq: number, ref: string, chainageM: number, distanceM = 0): MatchedFix => ({ seq, ref, chainageM, offsetM: distanceM, distanceM });
+const m = (seq: number, ref: string, chainageM: number, distanceM = 0): MatchedFix => ({ seq, ref, chainageM, offsetM: distanceM, distanceM, t: seq });
 
 describe('visits of a walk to its routes', () => {
   it('cuts matched fixes into stays on one route', () => {
