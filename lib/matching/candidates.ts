@@ -293,14 +293,26 @@ export function appendCandidates(index: CandidateIndex, fix: { lon: number; lat:
  * `projectOntoRoute(index, 0, { lon: 13.405, lat: 52.52 })` → `{ chainageM: 40.2, offsetM: -2.9, distanceM: 2.9 }`
  */
 export function projectOntoRoute(index: CandidateIndex, k: number, fix: { lon: number; lat: number }): { chainageM: number; offsetM: number; distanceM: number } {
-  const { xs, ys, cum } = index;
   const { mx, my } = metresPerDegree(fix.lat);
-  const kx = mx / index.mx0;
-  const ky = my / index.my0;
   const px = (((((fix.lon - index.lon0) % 360) + 540) % 360) - 180) * index.mx0;
   const py = (fix.lat - index.lat0) * index.my0;
-  const [v0, v1] = [index.routeStart[k], index.routeStart[k + 1]];
-  let [bestD2, bestA, bestT, bestCross] = [Infinity, v0, 0, 0];
+  const out = { chainageM: 0, offsetM: 0, distanceM: 0 };
+  projectInFrame(index, k, px, py, mx / index.mx0, my / index.my0, out);
+  return out;
+}
+
+/**
+ * projectOntoRoute for a point already in the index's frame (x, y) with its ground metres per frame unit
+ * (kx, ky), written into `out`: the matcher has its fixes in that frame.
+ */
+export function projectInFrame(index: CandidateIndex, k: number, px: number, py: number, kx: number, ky: number, out: { chainageM: number; offsetM: number; distanceM: number }): void {
+  const { xs, ys, cum } = index;
+  const v0 = index.routeStart[k];
+  const v1 = index.routeStart[k + 1];
+  let bestD2 = Infinity;
+  let bestA = v0;
+  let bestT = 0;
+  let bestCross = 0;
   for (let a = v0; a + 1 < v1; a++) {
     const ax = (xs[a] - px) * kx;
     const ay = (ys[a] - py) * ky;
@@ -312,9 +324,14 @@ export function projectOntoRoute(index: CandidateIndex, k: number, fix: { lon: n
     const fx = ax + t * dx;
     const fy = ay + t * dy;
     const d2 = fx * fx + fy * fy;
-    if (d2 < bestD2) [bestD2, bestA, bestT, bestCross] = [d2, a, t, dx * -ay - dy * -ax];
+    if (d2 < bestD2) (bestD2 = d2), (bestA = a), (bestT = t), (bestCross = dx * -ay - dy * -ax);
   }
-  if (bestD2 === Infinity) return { chainageM: 0, offsetM: 0, distanceM: Infinity };
+  if (bestD2 === Infinity) {
+    (out.chainageM = 0), (out.offsetM = 0), (out.distanceM = Infinity);
+    return;
+  }
   const d = Math.sqrt(bestD2);
-  return { chainageM: cum[bestA] + bestT * (cum[bestA + 1] - cum[bestA]), offsetM: bestCross < 0 ? -d : d, distanceM: d };
+  out.chainageM = cum[bestA] + bestT * (cum[bestA + 1] - cum[bestA]);
+  out.offsetM = bestCross < 0 ? -d : d;
+  out.distanceM = d;
 }

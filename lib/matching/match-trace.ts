@@ -1,4 +1,4 @@
-import { appendCandidates, CandidateColumns, makeCandidateIndex, metresPerDegree, projectOntoRoute, type CandidateIndex } from './candidates';
+import { appendCandidates, CandidateColumns, makeCandidateIndex, metresPerDegree, projectInFrame, type CandidateIndex } from './candidates';
 import { resolveMatchOptions, type Fix, type MatchOptions, type MatchResult, type ResolvedMatchOptions } from './match-types';
 import { locatePositions, makeRouteNetwork, routeDistanceBetween, type PositionColumns, type RouteNetwork } from './route-distance';
 import type { PlannedRouteInput, RouteGraph } from './types';
@@ -191,9 +191,11 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
     (placed.route[k] = route), (placed.chainage[k] = chainageM), (placed.offset[k] = offsetM), (placed.distance[k] = distanceM);
   };
   const placeCandidate = (k: number, c: number) => place(k, cands.route[c], cands.chainage[c], cands.offset[c], cands.distance[c]);
+  const foot = { chainageM: 0, offsetM: 0, distanceM: 0 };
+  const project = (i: number, route: number) => projectInFrame(index, route, plane.x[i], plane.y[i], plane.kx[i], plane.ky[i], foot);
   const placeOn = (k: number, route: number) => {
-    const p = projectOntoRoute(index, route, fixes[chain[k]]);
-    place(k, route, p.chainageM, p.offsetM, p.distanceM);
+    project(chain[k], route);
+    place(k, route, foot.chainageM, foot.offsetM, foot.distanceM);
   };
   const searched = (k: number) => first[k + 1] > first[k];
 
@@ -228,11 +230,11 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
         for (let c = first[k]; c < first[k + 1]; c++) if (cands.route[c] === r1 || cands.route[c] === r2) fromCandidate(x++, c);
         if (x === 2 * j) return false;
       } else {
-        for (const [t, r] of [[0, r1], [1, r2]]) {
-          if (t === 1 && r2 === r1) break;
+        for (let t = 0; t < (r2 === r1 ? 1 : 2); t++) {
+          const r = t === 0 ? r1 : r2;
           const x = 2 * j + t;
-          const p = projectOntoRoute(index, r, fixes[chain[k]]);
-          (st.route[x] = r), (st.chainage[x] = p.chainageM), (st.offset[x] = p.offsetM), (st.distance[x] = p.distanceM);
+          project(chain[k], r);
+          (st.route[x] = r), (st.chainage[x] = foot.chainageM), (st.offset[x] = foot.offsetM), (st.distance[x] = foot.distanceM);
         }
         locatePositions(net, st, 2 * j, 2 * j + 2);
       }

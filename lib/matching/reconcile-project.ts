@@ -91,7 +91,8 @@ export async function reconcileProject(
   opts: { toleranceM: number; corrections?: Correction[]; timings?: boolean; onProgress?: (fraction: number) => void },
 ): Promise<{ drafts: SectionDraft[]; stats: ReconcileStats; observations: RouteObservationSeries[] }> {
   const tPrepare = performance.now();
-  const graph = buildRouteGraph(routes);
+  // the plan's import reported its duplicates and overlaps: the graph alone is needed here
+  const graph = buildRouteGraph(routes, { pairChecks: false });
   const prepared = prepareMatchNetwork(routes, graph);
   const routeIndex = new Map<string, number>();
   routes.forEach((r, i) => routeIndex.has(r.ref) || routeIndex.set(r.ref, i));

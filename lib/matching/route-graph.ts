@@ -78,10 +78,11 @@ const distinctPositions = (coords: LonLat[]) => new Set(coords.map(([x, y]) => `
  * Snap and overlap decisions are planar, in one equirectangular frame about the network's centre: at
  * city scale (10 km across) its scale error stays under 0.1 %, i.e. < 0.5 mm on a 0.5 m snap. Chainages
  * and lengths are geodesic. Route crossings without an endpoint are not junctions (a road crossing is
- * drawn as its own route ending on both streets).
+ * drawn as its own route ending on both streets). `pairChecks: false` leaves out the duplicate and overlap
+ * diagnostics (a pairwise comparison of lines), which a reconciliation does not report.
  * `buildRouteGraph([{ ref: 'A', coords: [[0, 0], [0.001, 0]], … }]).edges` → `[{ ref: 'A', fromNode: 0, toNode: 1, … }]`
  */
-export function buildRouteGraph(routes: PlannedRouteInput[], opts: { snapM?: number } = {}): RouteGraph {
+export function buildRouteGraph(routes: PlannedRouteInput[], opts: { snapM?: number; pairChecks?: boolean } = {}): RouteGraph {
   const snapM = opts.snapM ?? 0.5;
   const diagnostics: Diagnostic[] = [];
   const count = new Map<string, number>();
@@ -197,7 +198,8 @@ export function buildRouteGraph(routes: PlannedRouteInput[], opts: { snapM?: num
     }
   });
 
-  diagnostics.push(...pairDiagnostics(rs, index, segRoute, snapM));
+  // duplicated and overlapping lines are for the engineer's import report; the matcher only needs the graph
+  if (opts.pairChecks !== false) diagnostics.push(...pairDiagnostics(rs, index, segRoute, snapM));
   for (let e = 0; e < rs.length * 2; e++) {
     const node = nodes[rs[e >> 1].nodeAt[e % 2]];
     if (node.routes.length > 1) continue;

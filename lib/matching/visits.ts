@@ -220,10 +220,11 @@ export function walkedIntervals(
       if (via) add(via.via, via.from, via.to);
       s[i] = direct ?? via?.at ?? toEnd(v.ref, c);
     }
-    let [a, b] = [s[0], s[0]];
+    let a = s[0];
+    let b = s[0];
     for (let i = 1; i < s.length; i++) {
-      if (Math.abs(s[i] - s[i - 1]) > opts.bridgeM) (add(v.ref, a, b), ([a, b] = [s[i], s[i]]));
-      else [a, b] = [Math.min(a, s[i]), Math.max(b, s[i])];
+      if (Math.abs(s[i] - s[i - 1]) > opts.bridgeM) (add(v.ref, a, b), (a = b = s[i]));
+      else (a = Math.min(a, s[i])), (b = Math.max(b, s[i]));
     }
     add(v.ref, a, b);
   });
