@@ -49,6 +49,8 @@ export interface RouteNetwork {
 
 // a walk seldom needs more than a few hundred source nodes; a full clear is cheaper than an LRU at this size
 const CACHE_LIMIT = 4096;
+// …and at most this many settled nodes in all (≈ 6 MB), cleared as a whole like the sources
+const POOL_LIMIT = 1 << 19;
 // the smallest bound a pair's distances are found to: most transitions ask for ~70 m (4 × a 1 Hz step + 50)
 const PAIR_MIN_BOUND_M = 128;
 
@@ -77,8 +79,8 @@ export function makeRouteNetwork(graph: RouteGraph, routes: PlannedRouteInput[])
     (adjNode[fill[e.fromNode]] = e.toNode), (adjLen[fill[e.fromNode]++] = e.lengthM);
     (adjNode[fill[e.toNode]] = e.fromNode), (adjLen[fill[e.toNode]++] = e.lengthM);
   }
-  // about eight slots an edge, at most 2 MB: a walk's neighbourhood of edge pairs stays in them, and in cache
-  const slots = Math.min(1 << 15, Math.max(256, 2 ** Math.ceil(Math.log2(8 * graph.edges.length + 1))));
+  // about 32 slots an edge, at most 8 MB: a walk's neighbourhood of edge pairs stays in them
+  const slots = Math.min(1 << 17, Math.max(256, 2 ** Math.ceil(Math.log2(32 * graph.edges.length + 1))));
   return {
     routeEdges, edges: graph.edges, adjStart, adjNode, adjLen,
     sourceBound: new Float64Array(n).fill(-1), sourceStart: new Int32Array(n), sourceCount: new Int32Array(n),
@@ -180,11 +182,14 @@ function nodeDistance(net: RouteNetwork, from: number, to: number, bound: number
   const searched = net.sourceBound[from];
   let d = searched < 0 ? -1 : cachedDistance(net, from, to);
   if (searched < 0 || (searched < bound && d < 0)) {
-    if (net.cached >= CACHE_LIMIT) (net.sourceBound.fill(-1), (net.cached = 0), (net.poolUsed = 0));
-    if (net.sourceBound[from] < 0) net.cached++;
+    const clear = () => (net.sourceBound.fill(-1), (net.cached = 0), (net.poolUsed = 0));
+    if (net.cached >= CACHE_LIMIT) clear();
     // searching twice as far as asked lets the next few queries from this node hit the cache
     const b = Math.max(bound, 2 * Math.max(searched, 0));
     const n = dijkstra(net, from, b);
+    // the pool is bounded in entries too: in a dense network a search settles hundreds of nodes
+    if (net.poolUsed > 0 && net.poolUsed + n > POOL_LIMIT) clear();
+    if (net.sourceBound[from] < 0) net.cached++;
     if (net.poolUsed + n > net.poolNode.length) {
       const size = Math.max(net.poolUsed + n, 2 * net.poolNode.length);
       const [nodes, dist] = [new Int32Array(size), new Float64Array(size)];
@@ -211,7 +216,13 @@ function nodeDistance(net: RouteNetwork, from: number, to: number, bound: number
 function pairSlot(net: RouteNetwork, ea: number, eb: number, boundM: number): number {
   const P = net.pairs;
   const h = ((Math.imul(ea, 0x9e3779b1) ^ eb) & net.pairMask) << 3;
-  if (P[h] === ea && P[h + 1] === eb && P[h + 2] >= boundM) return h;
+  if (P[h] === ea && P[h + 1] === eb) {
+    if (P[h + 2] >= boundM) return h;
+    // a longer bound: the distances found stay exact, only those beyond the old bound are looked for again
+    P[h + 2] = Math.max(boundM, 2 * P[h + 2]);
+    for (let w = 3; w < 7; w++) if (P[h + w] === Infinity) P[h + w] = NaN;
+    return h;
+  }
   (P[h] = ea), (P[h + 1] = eb), (P[h + 2] = Math.max(boundM, PAIR_MIN_BOUND_M));
   P[h + 3] = P[h + 4] = P[h + 5] = P[h + 6] = NaN;
   return h;
