@@ -23,6 +23,7 @@ import { gridScenario } from '../tests/unit/matching/scenario';
 const FIXES = Number(process.env.BENCH_FIXES ?? 100_000);
 const RUNS = Math.max(1, Number(process.env.BENCH_RUNS ?? 3));
 const WARMUP_FIXES = Number(process.env.BENCH_WARMUP_FIXES ?? 20_000);
+const WARMUP_RUNS = Math.max(1, Number(process.env.BENCH_WARMUP_RUNS ?? 2));
 const NAIVE = Number(process.env.BENCH_NAIVE_FIXES ?? 2_000);
 const TOLERANCE_M = 0.5; // the projects table's default lateral tolerance
 const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
@@ -57,7 +58,7 @@ async function measure(file: string, warm: boolean): Promise<Measured> {
   const read = () => readFixture(file);
   const warmupS: number[] = [];
   if (warm) {
-    for (let k = 0; k < 2; k++) {
+    for (let k = 0; k < WARMUP_RUNS; k++) {
       const { routes, fixes } = read();
       const t = performance.now();
       await reconcileProject(routes, [uploadOf(fixes.slice(0, WARMUP_FIXES))], { toleranceM: TOLERANCE_M });

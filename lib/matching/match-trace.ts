@@ -161,7 +161,7 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
    * Viterbi over layers of the current chain: layer k holds the candidates at[k] … at[k] + n[k] − 1 of fix
    * fx[k]. Returns the chosen candidate of each layer.
    */
-  const solve = (at: ArrayLike<number>, n: ArrayLike<number>, fx: ArrayLike<number>): Int32Array => {
+  const solve = (at: Int32Array, n: Int32Array, fx: Int32Array): Int32Array => {
     const m = fx.length;
     // Newson & Krumm drop transitions whose route is far longer than the straight line between the fixes
     const gc = new Float64Array(m);
@@ -292,7 +292,10 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
     // are placed afterwards, on the route the kept fixes either side of them chose.
     const keep: number[] = [];
     for (let k = 0; k < L; k++) if (kept[k]) keep.push(k);
-    const chosen = solve(keep.map((k) => first[k]), keep.map((k) => first[k + 1] - first[k]), keep.map((k) => chain[k]));
+    // typed layers, as the fallback below passes them: one kind of array keeps the recursion's code monomorphic
+    const [ka0, kn0, kf0] = [new Int32Array(keep.length), new Int32Array(keep.length), new Int32Array(keep.length)];
+    keep.forEach((k, g) => ((ka0[g] = first[k]), (kn0[g] = first[k + 1] - first[k]), (kf0[g] = chain[k])));
+    const chosen = solve(ka0, kn0, kf0);
     keep.forEach((k, g) => placeCandidate(k, chosen[g]));
     for (let g = 0; g < keep.length; g++) {
       const ka = keep[g];
