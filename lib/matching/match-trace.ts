@@ -65,7 +65,9 @@ function spikes(fixes: Fix[], piece: number[], p: Plane, o: ResolvedMatchOptions
   let rx = 0;
   let ry = 0;
   const at = (a: number, b: number, i: number) => {
-    const [ta, tb, ti] = [fixes[a].t, fixes[b].t, fixes[i].t];
+    const ta = fixes[a].t;
+    const tb = fixes[b].t;
+    const ti = fixes[i].t;
     const w = ta !== null && tb !== null && ti !== null && tb > ta ? (ti - ta) / (tb - ta) : 0.5;
     rx = p.x[a] + w * (p.x[b] - p.x[a]);
     ry = p.y[a] + w * (p.y[b] - p.y[a]);
@@ -73,14 +75,17 @@ function spikes(fixes: Fix[], piece: number[], p: Plane, o: ResolvedMatchOptions
   for (let k = 1; k + 1 < piece.length; k++) {
     const i = piece[k];
     at(piece[k - 1], piece[k + 1], i);
-    let [x, y] = [rx, ry];
+    let x = rx;
+    let y = ry;
     if (k >= 2 && k + 2 < piece.length) {
       at(piece[k - 2], piece[k + 2], i);
       x = (x + rx) / 2;
       y = (y + ry) / 2;
     }
     const dev = Math.hypot((p.x[i] - x) * p.kx[i], (p.y[i] - y) * p.ky[i]);
-    const [tp, ti, tn] = [fixes[piece[k - 1]].t, fixes[i].t, fixes[piece[k + 1]].t];
+    const tp = fixes[piece[k - 1]].t;
+    const ti = fixes[i].t;
+    const tn = fixes[piece[k + 1]].t;
     const allow = tp !== null && ti !== null && tn !== null ? o.maxSpeedMps * Math.max(Math.min(ti - tp, tn - ti), 0) : o.gapMetres / 2;
     out[k] = dev > 3.5 * o.sigmaM && dev > allow;
   }
@@ -91,14 +96,14 @@ function spikes(fixes: Fix[], piece: number[], p: Plane, o: ResolvedMatchOptions
 function splitPieces(fixes: Fix[], p: Plane, o: ResolvedMatchOptions): number[][] {
   const pieces: number[][] = [];
   let cur: number[] = [];
-  fixes.forEach((f, i) => {
+  for (let i = 0; i < fixes.length; i++) {
     if (i > 0) {
-      const g = fixes[i - 1];
-      const gap = f.t !== null && g.t !== null ? Math.abs(f.t - g.t) > o.gapSeconds : dist(p, i - 1, i) > o.gapMetres;
+      const [t, u] = [fixes[i].t, fixes[i - 1].t];
+      const gap = t !== null && u !== null ? Math.abs(t - u) > o.gapSeconds : dist(p, i - 1, i) > o.gapMetres;
       if (gap) pieces.push(cur), (cur = []);
     }
     cur.push(i);
-  });
+  }
   if (cur.length > 0) pieces.push(cur);
   return pieces;
 }
@@ -251,13 +256,17 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
         const y = 2 * j + t;
         if (st.route[y] < 0) continue;
         const e = j === span - 1 ? 0 : emissionLogProb(st.distance[y], o.sigmaM);
-        for (let q = 0; q < 2; q++) {
+        // the likelier predecessor first: no transition beats −log β, so the other may need no route distance
+        const first = score[2 * (j - 1) + 1] > score[2 * (j - 1)] ? 1 : 0;
+        for (let r = 0; r < 2; r++) {
+          const q = r === 0 ? first : 1 - first;
           const x = 2 * (j - 1) + q;
-          if (st.route[x] < 0 || score[x] === -Infinity) continue;
+          if (st.route[x] < 0 || score[x] === -Infinity || score[x] - logBeta + e < score[y]) continue;
           const d = routeDistanceBetween(net, st.route[x], st.chainage[x], st.edge[x], st.leg0[x], st.leg1[x], st.route[y], st.chainage[y], st.edge[y], st.leg0[y], st.leg1[y], bound);
           if (d === Infinity) continue;
           const v = score[x] - Math.abs(d - gc) / o.betaM - logBeta + e;
-          if (v > score[y]) (score[y] = v), (back[y] = q);
+          // ties go to state 0, as in index order
+          if (v > score[y] || (v === score[y] && q < back[y])) (score[y] = v), (back[y] = q);
         }
         if (score[y] > -Infinity) reached = true;
       }

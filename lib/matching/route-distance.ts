@@ -43,8 +43,9 @@ export interface RouteNetwork {
    */
   pairMask: number;
   pairs: Float64Array;
-  heapNode: number[];
-  heapKey: number[];
+  /** Dijkstra's binary heap (lazy deletion: at most one entry per relaxation, so 2 × edges + 1 slots) */
+  heapNode: Int32Array;
+  heapKey: Float64Array;
 }
 
 // a walk seldom needs more than a few hundred source nodes; a full clear is cheaper than an LRU at this size
@@ -87,7 +88,7 @@ export function makeRouteNetwork(graph: RouteGraph, routes: PlannedRouteInput[])
     poolNode: new Int32Array(1024), poolDist: new Float64Array(1024), poolUsed: 0, cached: 0,
     seen: new Int32Array(n), done: new Int32Array(n), tentative: new Float64Array(n), settledOrder: new Int32Array(n), searches: 0,
     pairMask: slots - 1, pairs: new Float64Array(8 * slots).fill(-1),
-    heapNode: [], heapKey: [],
+    heapNode: new Int32Array(2 * graph.edges.length + 1), heapKey: new Float64Array(2 * graph.edges.length + 1),
   };
 }
 
@@ -114,12 +115,12 @@ export function edgeAtChainage(net: RouteNetwork, route: number, chainageM: numb
  */
 function dijkstra(net: RouteNetwork, source: number, bound: number): number {
   const run = ++net.searches;
-  const { seen, done, tentative, settledOrder } = net;
-  const [hn, hk] = [net.heapNode, net.heapKey];
-  hn.length = hk.length = 0;
+  const { seen, done, tentative, settledOrder, adjStart, adjNode, adjLen } = net;
+  const hn = net.heapNode;
+  const hk = net.heapKey;
+  let size = 0;
   const push = (node: number, key: number) => {
-    let i = hn.length;
-    hn.push(node), hk.push(key);
+    let i = size++;
     while (i > 0) {
       const p = (i - 1) >> 1;
       if (hk[p] <= key) break;
@@ -129,13 +130,14 @@ function dijkstra(net: RouteNetwork, source: number, bound: number): number {
   };
   const pop = () => {
     const node = hn[0];
-    const [ln, lk] = [hn.pop()!, hk.pop()!];
-    if (hn.length > 0) {
+    size--;
+    if (size > 0) {
+      const [ln, lk] = [hn[size], hk[size]];
       let i = 0;
       for (;;) {
         let c = 2 * i + 1;
-        if (c >= hn.length) break;
-        if (c + 1 < hn.length && hk[c + 1] < hk[c]) c++;
+        if (c >= size) break;
+        if (c + 1 < size && hk[c + 1] < hk[c]) c++;
         if (hk[c] >= lk) break;
         (hn[i] = hn[c]), (hk[i] = hk[c]), (i = c);
       }
@@ -146,14 +148,14 @@ function dijkstra(net: RouteNetwork, source: number, bound: number): number {
   (seen[source] = run), (tentative[source] = 0);
   push(source, 0);
   let settled = 0;
-  while (hn.length > 0) {
+  while (size > 0) {
     const key = hk[0];
     const u = pop();
     if (done[u] === run) continue;
     (done[u] = run), (tentative[u] = key), (settledOrder[settled++] = u);
-    for (let j = net.adjStart[u]; j < net.adjStart[u + 1]; j++) {
-      const v = net.adjNode[j];
-      const d = key + net.adjLen[j];
+    for (let j = adjStart[u]; j < adjStart[u + 1]; j++) {
+      const v = adjNode[j];
+      const d = key + adjLen[j];
       if (d > bound || done[v] === run || (seen[v] === run && d >= tentative[v])) continue;
       (seen[v] = run), (tentative[v] = d);
       push(v, d);
