@@ -85,6 +85,29 @@ export function makeCandidateIndex(routes: PlannedRouteInput[]): CandidateIndex 
   return { routes, lon0, lat0, mx0, my0, xs, ys, cum, routeStart, segRoute, segVertex, tree };
 }
 
+/** The last planarFoot: where along the segment (0…1), the squared ground distance, and the side (+ left). */
+const foot = { t: 0, d2: 0, cross: 0 };
+
+/**
+ * The nearest point of segment a → a + 1 (vertices in the index's frame) to the point (px, py), distances
+ * in ground metres by the point's scale (kx, ky); into `foot`, so that the hot loops allocate nothing.
+ */
+function planarFoot(xs: Float64Array, ys: Float64Array, a: number, px: number, py: number, kx: number, ky: number): void {
+  const ax = (xs[a] - px) * kx;
+  const ay = (ys[a] - py) * ky;
+  const dx = (xs[a + 1] - xs[a]) * kx;
+  const dy = (ys[a + 1] - ys[a]) * ky;
+  const l2 = dx * dx + dy * dy;
+  let t = l2 > 0 ? -(ax * dx + ay * dy) / l2 : 0;
+  t = t < 0 ? 0 : t > 1 ? 1 : t;
+  const fx = ax + t * dx;
+  const fy = ay + t * dy;
+  foot.t = t;
+  foot.d2 = fx * fx + fy * fy;
+  // the point relative to the segment start is (−ax, −ay); cross > 0 puts it left of the direction of travel
+  foot.cross = dx * -ay - dy * -ax;
+}
+
 /** Per-index scratch for the best segment per route, reused across queries (stamped, never cleared). */
 interface Scratch {
   stamp: Int32Array;
@@ -171,16 +194,8 @@ function nearestRoutes(index: CandidateIndex, sc: Scratch, fix: { lon: number; l
         continue;
       }
       const a = segVertex[id];
-      const ax = (xs[a] - px) * kx;
-      const ay = (ys[a] - py) * ky;
-      const dx = (xs[a + 1] - xs[a]) * kx;
-      const dy = (ys[a + 1] - ys[a]) * ky;
-      const l2 = dx * dx + dy * dy;
-      let t = l2 > 0 ? -(ax * dx + ay * dy) / l2 : 0;
-      t = t < 0 ? 0 : t > 1 ? 1 : t;
-      const fx = ax + t * dx;
-      const fy = ay + t * dy;
-      const d2 = fx * fx + fy * fy;
+      planarFoot(xs, ys, a, px, py, kx, ky);
+      const d2 = foot.d2;
       if (d2 > r2) continue;
       const k = segRoute[id];
       if (stamp[k] !== q) {
@@ -189,9 +204,8 @@ function nearestRoutes(index: CandidateIndex, sc: Scratch, fix: { lon: number; l
       } else if (d2 >= bestD2[k]) continue;
       bestD2[k] = d2;
       bestSeg[k] = id;
-      bestT[k] = t;
-      // fix relative to the segment start is (−ax, −ay); cross > 0 puts it left of the direction of travel
-      bestCross[k] = dx * -ay - dy * -ax;
+      bestT[k] = foot.t;
+      bestCross[k] = foot.cross;
     }
     if (top === 0) break;
     level = stack[--top];
@@ -314,17 +328,8 @@ export function projectInFrame(index: CandidateIndex, k: number, px: number, py:
   let bestT = 0;
   let bestCross = 0;
   for (let a = v0; a + 1 < v1; a++) {
-    const ax = (xs[a] - px) * kx;
-    const ay = (ys[a] - py) * ky;
-    const dx = (xs[a + 1] - xs[a]) * kx;
-    const dy = (ys[a + 1] - ys[a]) * ky;
-    const l2 = dx * dx + dy * dy;
-    let t = l2 > 0 ? -(ax * dx + ay * dy) / l2 : 0;
-    t = t < 0 ? 0 : t > 1 ? 1 : t;
-    const fx = ax + t * dx;
-    const fy = ay + t * dy;
-    const d2 = fx * fx + fy * fy;
-    if (d2 < bestD2) (bestD2 = d2), (bestA = a), (bestT = t), (bestCross = dx * -ay - dy * -ax);
+    planarFoot(xs, ys, a, px, py, kx, ky);
+    if (foot.d2 < bestD2) (bestD2 = foot.d2), (bestA = a), (bestT = foot.t), (bestCross = foot.cross);
   }
   if (bestD2 === Infinity) {
     (out.chainageM = 0), (out.offsetM = 0), (out.distanceM = Infinity);

@@ -40,26 +40,16 @@ export function viterbi(
  */
 export function viterbiLayers(counts: ArrayLike<number>, emissions: Float64Array, transitions: (layer: number, out: Float64Array) => void): ViterbiResult {
   let trans = new Float64Array(0);
-  return recurse(counts, emissions, (k, pm, m, prev, cur, back, base) => {
-    if (trans.length < pm * m) trans = new Float64Array(pm * m);
-    transitions(k, trans);
-    let reachable = false;
-    for (let j = 0; j < m; j++) {
-      const e = emissions[base + j];
-      let best = -Infinity;
-      let from = -1;
-      if (e !== -Infinity) {
-        for (let i = 0; i < pm; i++) {
-          if (prev[i] === -Infinity) continue;
-          const s = prev[i] + trans[i * m + j];
-          if (s > best) (best = s), (from = i);
-        }
-      }
-      cur[j] = best + e;
-      back[base + j] = from;
-      if (from >= 0 && cur[j] !== -Infinity) reachable = true;
+  let filled = -1;
+  // the pruned recursion with no bound on a transition asks for every one: the layer's matrix, filled once
+  return viterbiPruned(counts, emissions, Infinity, (k, i, j) => {
+    if (filled !== k) {
+      const size = counts[k - 1] * counts[k];
+      if (trans.length < size) trans = new Float64Array(size);
+      transitions(k, trans);
+      filled = k;
     }
-    return reachable;
+    return trans[i * counts[k] + j];
   });
 }
 
