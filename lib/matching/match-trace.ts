@@ -204,14 +204,14 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
   };
   const searched = (k: number) => first[k + 1] > first[k];
 
+  // between's scratch, grown as needed: positions on the two routes, two a layer, with their scores
+  let st = { route: new Int32Array(0), chainage: new Float64Array(0), offset: new Float64Array(0), distance: new Float64Array(0), edge: new Int32Array(0), leg0: new Float64Array(0), leg1: new Float64Array(0), score: new Float64Array(0), back: new Int8Array(0) };
   /**
    * The skipped fixes between kept layers ka and kb when the kept ones chose different routes (a turn at a
    * junction): Viterbi over their positions on just those two routes (their candidates there, or, for a fix
    * never searched, its projection), both ends fixed. False, with nothing placed, when a searched fix has a
    * candidate on neither or the two routes do not connect within reach.
    */
-  // between's scratch, grown as needed: positions on the two routes, two a layer, with their scores
-  let st = { route: new Int32Array(0), chainage: new Float64Array(0), offset: new Float64Array(0), distance: new Float64Array(0), edge: new Int32Array(0), leg0: new Float64Array(0), leg1: new Float64Array(0), score: new Float64Array(0), back: new Int8Array(0) };
   const between = (ka: number, kb: number, ca: number, cb: number): boolean => {
     const [r1, r2] = [cands.route[ca], cands.route[cb]];
     const span = kb - ka + 1;

@@ -57,6 +57,22 @@ function rtk(seed: number, truthOffset: (c: number) => number, from = 0, to = LE
 const lengthOf = (drafts: ReturnType<typeof buildRouteSections>, status: string) => drafts.filter((d) => d.status === status).reduce((n, d) => n + (d.toChainageM - d.fromChainageM), 0);
 
 describe('as-built sections of one route', () => {
+  it('counts a stretch a walk is known to have crossed without a fix on it built, on the plan (a short crossing)', () => {
+    // truth: the interval the caller inferred (walkedIntervals' crossing rule), 40–46.5 m of the route
+    const crossed: RouteObservations = { uploadId: 'walk', sigmaM: 3.5, surveyGrade: false, laidOn: '2026-11-04', fixes: [], intervals: [[40, 46.5]] };
+    const drafts = buildRouteSections(plan, [crossed], { toleranceM: 0.5 });
+    const built = drafts.filter((d) => d.status !== 'not_built');
+    expect(built).toHaveLength(1);
+    expect(built[0].status).toBe('as_planned');
+    // sections are built from 1 m bins, a bin counted when its middle is within half a metre of the interval
+    expect(Math.abs(built[0].fromChainageM - 40)).toBeLessThanOrEqual(1);
+    expect(Math.abs(built[0].toChainageM - 46.5)).toBeLessThanOrEqual(1);
+    expect(built[0].sourceUploadIds).toEqual(['walk']);
+    expect(built[0].maxOffsetM).toBe(0);
+    // the rest of the route is not built; the pieces cover it end to end
+    expect(drafts.reduce((n, d) => n + (d.toChainageM - d.fromChainageM), 0)).toBeCloseTo(LENGTH, 6);
+  });
+
   it('leaves a route walked as planned as_planned: 99 % of its length over 80 noisy walks', () => {
     let asPlanned = 0;
     let clean = 0;
