@@ -188,7 +188,10 @@ function smoothBins(route: LonLat[], length: number, sources: RouteObservations[
     // the most accurate source that saw this metre wins; the others are not counted again
     let best = -1;
     for (let k = 0; k < sources.length; k++) {
-      if (!covered[k].some(([a, b]) => c >= a - 0.5 && c <= b + 0.5)) continue;
+      const spans = covered[k];
+      let inside = false;
+      for (let q = 0; !inside && q < spans.length; q++) inside = c >= spans[q][0] - 0.5 && c <= spans[q][1] + 0.5;
+      if (!inside) continue;
       if (best < 0 || sources[k].sigmaM < sources[best].sigmaM) best = k;
     }
     if (best < 0) {
@@ -200,7 +203,8 @@ function smoothBins(route: LonLat[], length: number, sources: RouteObservations[
     const { chainage, offset, t } = columns[best];
     const slide = (slides[best] ??= { inner: new SortedWindow(offset), ring: new SortedWindow(offset), times: new WindowExtremes(t) });
     const w = s.surveyGrade ? Math.max(1, o.windowM / 10) : o.windowM;
-    const [n0, n1] = [windowStart(chainage, c, w), windowEnd(chainage, c, w)];
+    const n0 = windowStart(chainage, c, w);
+    const n1 = windowEnd(chainage, c, w);
     let count = n1 - n0;
     let centre: number;
     if (count > 0) {
@@ -220,8 +224,10 @@ function smoothBins(route: LonLat[], length: number, sources: RouteObservations[
       // the GNSS bias drifts over a minute or so: measure the offset against its wider neighbourhood,
       // and allow for how far the bias can wander within that neighbourhood's time span
       // the ring around the window, not the window itself, so that a detour does not pull its own baseline
-      const [w0, w1] = [windowStart(chainage, c, 4 * o.windowM), windowEnd(chainage, c, 4 * o.windowM)];
-      const [r0, r1] = [windowStart(chainage, c, 2 * o.windowM), windowEnd(chainage, c, 2 * o.windowM)];
+      const w0 = windowStart(chainage, c, 4 * o.windowM);
+      const w1 = windowEnd(chainage, c, 4 * o.windowM);
+      const r0 = windowStart(chainage, c, 2 * o.windowM);
+      const r1 = windowEnd(chainage, c, 2 * o.windowM);
       const ringSize = r0 - w0 + (w1 - r1);
       let basisSize: number;
       slide.ring.moveTo(w0, r0, r1, w1);

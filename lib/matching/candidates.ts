@@ -10,9 +10,20 @@ const RAD = Math.PI / 180;
 
 /** Metres per degree of longitude and of latitude at a latitude (WGS 84 radii of curvature). */
 export function metresPerDegree(lat: number): { mx: number; my: number } {
+  return { mx: metresPerDegreeLon(lat), my: metresPerDegreeLat(lat) };
+}
+
+/** metresPerDegree's mx alone (a number, not an object: the matcher asks once a fix). */
+export function metresPerDegreeLon(lat: number): number {
+  const s = Math.sin(lat * RAD);
+  return ((WGS84.a / Math.sqrt(1 - E2 * s * s)) * Math.cos(lat * RAD) * RAD) || 1e-9;
+}
+
+/** metresPerDegree's my alone. */
+export function metresPerDegreeLat(lat: number): number {
   const s = Math.sin(lat * RAD);
   const w = 1 - E2 * s * s;
-  return { mx: ((WGS84.a / Math.sqrt(w)) * Math.cos(lat * RAD) * RAD) || 1e-9, my: ((WGS84.a * (1 - E2)) / (w * Math.sqrt(w))) * RAD };
+  return ((WGS84.a * (1 - E2)) / (w * Math.sqrt(w))) * RAD;
 }
 
 /**
@@ -147,10 +158,9 @@ function nearestRoutes(index: CandidateIndex, sc: Scratch, fix: { lon: number; l
   const tree = index.tree!;
   const q = ++sc.query;
   const { xs, ys, segRoute, segVertex } = index;
-  const { mx, my } = metresPerDegree(fix.lat);
   // ground metres per frame unit at the fix: the frame's scale is only exact at its own centre
-  const kx = mx / index.mx0;
-  const ky = my / index.my0;
+  const kx = metresPerDegreeLon(fix.lat) / index.mx0;
+  const ky = metresPerDegreeLat(fix.lat) / index.my0;
   const px = (((((fix.lon - index.lon0) % 360) + 540) % 360) - 180) * index.mx0;
   const py = (fix.lat - index.lat0) * index.my0;
   const r2 = radiusM * radiusM;

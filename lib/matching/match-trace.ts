@@ -1,6 +1,6 @@
-import { appendCandidates, CandidateColumns, makeCandidateIndex, metresPerDegree, projectInFrame, type CandidateIndex } from './candidates';
+import { appendCandidates, CandidateColumns, makeCandidateIndex, metresPerDegreeLat, metresPerDegreeLon, projectInFrame, type CandidateIndex } from './candidates';
 import { resolveMatchOptions, type Fix, type MatchOptions, type MatchResult, type ResolvedMatchOptions } from './match-types';
-import { locatePositions, makeRouteNetwork, routeDistanceBetween, type PositionColumns, type RouteNetwork } from './route-distance';
+import { locatePositions, makeRouteNetwork, positionDistance, type PositionColumns, type RouteNetwork } from './route-distance';
 import type { PlannedRouteInput, RouteGraph } from './types';
 import { viterbiPruned } from './viterbi';
 
@@ -41,15 +41,19 @@ function toPlane(fixes: Fix[], lon0: number, lat0: number, mx0: number, my0: num
   const p: Plane = { x: new Float64Array(n), y: new Float64Array(n), kx: new Float64Array(n), ky: new Float64Array(n) };
   for (let i = 0; i < n; i++) {
     const f = fixes[i];
-    const { mx, my } = metresPerDegree(f.lat);
     p.x[i] = (((((f.lon - lon0) % 360) + 540) % 360) - 180) * mx0;
     p.y[i] = (f.lat - lat0) * my0;
-    (p.kx[i] = mx / mx0), (p.ky[i] = my / my0);
+    (p.kx[i] = metresPerDegreeLon(f.lat) / mx0), (p.ky[i] = metresPerDegreeLat(f.lat) / my0);
   }
   return p;
 }
 
-const dist = (p: Plane, i: number, j: number) => Math.hypot((p.x[i] - p.x[j]) * p.kx[i], (p.y[i] - p.y[j]) * p.ky[i]);
+// (hot paths avoid Math.hypot and array destructuring: V8 boxes the one's result and may allocate the other)
+const dist = (p: Plane, i: number, j: number) => {
+  const dx = (p.x[i] - p.x[j]) * p.kx[i];
+  const dy = (p.y[i] - p.y[j]) * p.ky[i];
+  return Math.sqrt(dx * dx + dy * dy);
+};
 
 /**
  * Isolated spikes of one piece (indices into fixes, in order). A fix is a spike when it lies far from where
@@ -61,28 +65,31 @@ const dist = (p: Plane, i: number, j: number) => Math.hypot((p.x[i] - p.x[j]) * 
  */
 function spikes(fixes: Fix[], piece: number[], p: Plane, o: ResolvedMatchOptions): boolean[] {
   const out = piece.map(() => false);
-  // the time-interpolated position between fixes a and b at fix i's time (halfway without times)
-  let rx = 0;
-  let ry = 0;
-  const at = (a: number, b: number, i: number) => {
+  // the time-interpolated position between fixes a and b at fix i's time (halfway without times), as a
+  // weight: a closure setting captured numbers would box each of them
+  const weight = (a: number, b: number, i: number) => {
     const ta = fixes[a].t;
     const tb = fixes[b].t;
     const ti = fixes[i].t;
-    const w = ta !== null && tb !== null && ti !== null && tb > ta ? (ti - ta) / (tb - ta) : 0.5;
-    rx = p.x[a] + w * (p.x[b] - p.x[a]);
-    ry = p.y[a] + w * (p.y[b] - p.y[a]);
+    return ta !== null && tb !== null && ti !== null && tb > ta ? (ti - ta) / (tb - ta) : 0.5;
   };
   for (let k = 1; k + 1 < piece.length; k++) {
     const i = piece[k];
-    at(piece[k - 1], piece[k + 1], i);
-    let x = rx;
-    let y = ry;
+    let a = piece[k - 1];
+    let b = piece[k + 1];
+    let w = weight(a, b, i);
+    let x = p.x[a] + w * (p.x[b] - p.x[a]);
+    let y = p.y[a] + w * (p.y[b] - p.y[a]);
     if (k >= 2 && k + 2 < piece.length) {
-      at(piece[k - 2], piece[k + 2], i);
-      x = (x + rx) / 2;
-      y = (y + ry) / 2;
+      a = piece[k - 2];
+      b = piece[k + 2];
+      w = weight(a, b, i);
+      x = (x + (p.x[a] + w * (p.x[b] - p.x[a]))) / 2;
+      y = (y + (p.y[a] + w * (p.y[b] - p.y[a]))) / 2;
     }
-    const dev = Math.hypot((p.x[i] - x) * p.kx[i], (p.y[i] - y) * p.ky[i]);
+    const ex = (p.x[i] - x) * p.kx[i];
+    const ey = (p.y[i] - y) * p.ky[i];
+    const dev = Math.sqrt(ex * ex + ey * ey);
     const tp = fixes[piece[k - 1]].t;
     const ti = fixes[i].t;
     const tn = fixes[piece[k + 1]].t;
@@ -98,7 +105,8 @@ function splitPieces(fixes: Fix[], p: Plane, o: ResolvedMatchOptions): number[][
   let cur: number[] = [];
   for (let i = 0; i < fixes.length; i++) {
     if (i > 0) {
-      const [t, u] = [fixes[i].t, fixes[i - 1].t];
+      const t = fixes[i].t;
+      const u = fixes[i - 1].t;
       const gap = t !== null && u !== null ? Math.abs(t - u) > o.gapSeconds : dist(p, i - 1, i) > o.gapMetres;
       if (gap) pieces.push(cur), (cur = []);
     }
@@ -177,12 +185,11 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
     const emissions = new Float64Array(total);
     for (let k = 0, e = 0; k < m; k++) for (let j = 0; j < n[k]; j++) emissions[e++] = emissionLogProb(cands.distance[at[k] + j], o.sigmaM);
     const betaM = o.betaM;
-    const { route, chainage } = cands;
-    const { edge, leg0, leg1 } = pos;
     // route distances are the costly part: asked for only where a transition can still change the best path
     const { path } = viterbiPruned(n, emissions, -logBeta, (k, i, j) => {
-      const [x, y] = [at[k - 1] + i, at[k] + j];
-      const d = routeDistanceBetween(net, route[x], chainage[x], edge[x], leg0[x], leg1[x], route[y], chainage[y], edge[y], leg0[y], leg1[y], bound[k]);
+      const x = at[k - 1] + i;
+      const y = at[k] + j;
+      const d = positionDistance(net, pos, x, y, bound[k]);
       return d === Infinity ? -Infinity : -Math.abs(d - gc[k]) / betaM - logBeta;
     });
     for (let k = 0; k < m; k++) path[k] += at[k];
@@ -195,7 +202,10 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
   const place = (k: number, route: number, chainageM: number, offsetM: number, distanceM: number) => {
     (placed.route[k] = route), (placed.chainage[k] = chainageM), (placed.offset[k] = offsetM), (placed.distance[k] = distanceM);
   };
-  const placeCandidate = (k: number, c: number) => place(k, cands.route[c], cands.chainage[c], cands.offset[c], cands.distance[c]);
+  // (column to column, so that no number crosses a call)
+  const placeCandidate = (k: number, c: number) => {
+    (placed.route[k] = cands.route[c]), (placed.chainage[k] = cands.chainage[c]), (placed.offset[k] = cands.offset[c]), (placed.distance[k] = cands.distance[c]);
+  };
   const foot = { chainageM: 0, offsetM: 0, distanceM: 0 };
   const project = (i: number, route: number) => projectInFrame(index, route, plane.x[i], plane.y[i], plane.kx[i], plane.ky[i], foot);
   const placeOn = (k: number, route: number) => {
@@ -213,7 +223,8 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
    * candidate on neither or the two routes do not connect within reach.
    */
   const between = (ka: number, kb: number, ca: number, cb: number): boolean => {
-    const [r1, r2] = [cands.route[ca], cands.route[cb]];
+    const r1 = cands.route[ca];
+    const r2 = cands.route[cb];
     const span = kb - ka + 1;
     // two states a layer at most (one position per route): state s of layer j is at 2j + s
     const size = 2 * span;
@@ -262,7 +273,7 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
           const q = r === 0 ? first : 1 - first;
           const x = 2 * (j - 1) + q;
           if (st.route[x] < 0 || score[x] === -Infinity || score[x] - logBeta + e < score[y]) continue;
-          const d = routeDistanceBetween(net, st.route[x], st.chainage[x], st.edge[x], st.leg0[x], st.leg1[x], st.route[y], st.chainage[y], st.edge[y], st.leg0[y], st.leg1[y], bound);
+          const d = positionDistance(net, st, x, y, bound);
           if (d === Infinity) continue;
           const v = score[x] - Math.abs(d - gc) / o.betaM - logBeta + e;
           // ties go to state 0, as in index order

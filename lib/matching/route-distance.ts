@@ -132,7 +132,8 @@ function dijkstra(net: RouteNetwork, source: number, bound: number): number {
     const node = hn[0];
     size--;
     if (size > 0) {
-      const [ln, lk] = [hn[size], hk[size]];
+      const ln = hn[size];
+      const lk = hk[size];
       let i = 0;
       for (;;) {
         let c = 2 * i + 1;
@@ -235,7 +236,8 @@ function pairDistance(net: RouteNetwork, h: number, which: number): number {
   const P = net.pairs;
   let d = P[h + 3 + which];
   if (d !== d) {
-    const [A, B] = [net.edges[P[h]], net.edges[P[h + 1]]];
+    const A = net.edges[P[h]];
+    const B = net.edges[P[h + 1]];
     d = P[h + 3 + which] = nodeDistance(net, which < 2 ? A.fromNode : A.toNode, which % 2 === 0 ? B.fromNode : B.toNode, P[h + 2]);
   }
   return d;
@@ -249,33 +251,25 @@ function via(net: RouteNetwork, h: number, which: number, best: number, boundM: 
   return d <= rest ? Math.min(best, start + d + end) : best;
 }
 
-/**
- * How far a position lies from its edge's from node and to node along the route (≥ 0): the first and last
- * legs of a path that leaves the route by either end of the edge.
- * `edgeLegs(net, e, 12.5)` → `[12.5 − edge start, edge end − 12.5]`
- */
-export function edgeLegs(net: RouteNetwork, e: number, chainageM: number): [number, number] {
-  const E = net.edges[e];
-  return [Math.max(chainageM - E.fromChainageM, 0), Math.max(E.toChainageM - chainageM, 0)];
-}
 
 /**
- * routeDistanceM for positions whose edges (edgeAtChainage) and legs along them (edgeLegs) the caller
- * already knows: the matcher works them out once a candidate, not once a transition.
- * `routeDistanceBetween(net, 0, 10, e0, 10, 30, 0, 25, e0, 25, 15, 100)` → 15
+ * Network distance between positions x and y of `p` (routeDistanceM for positions whose edges and legs
+ * locatePositions has found): the matcher asks with indices, so that no number crosses a call.
+ * `positionDistance(net, cols, 0, 1, 100)` → 15 for positions 10 m and 25 m along one route
  */
-export function routeDistanceBetween(
-  net: RouteNetwork,
-  routeA: number, chainageA: number, ea: number, a0: number, a1: number,
-  routeB: number, chainageB: number, eb: number, b0: number, b1: number,
-  boundM: number,
-): number {
-  if (routeA === routeB) {
-    const d = Math.abs(chainageA - chainageB);
+export function positionDistance(net: RouteNetwork, p: PositionColumns, x: number, y: number, boundM: number): number {
+  if (p.route[x] === p.route[y]) {
+    const d = Math.abs(p.chainage[x] - p.chainage[y]);
     return d <= boundM ? d : Infinity;
   }
+  const ea = p.edge[x];
+  const eb = p.edge[y];
   if (ea < 0 || eb < 0) return Infinity;
   const h = pairSlot(net, ea, eb, boundM);
+  const a0 = p.leg0[x];
+  const a1 = p.leg1[x];
+  const b0 = p.leg0[y];
+  const b1 = p.leg1[y];
   let best = via(net, h, 0, Infinity, boundM, a0, b0);
   best = via(net, h, 1, best, boundM, a0, b1);
   best = via(net, h, 2, best, boundM, a1, b0);
@@ -283,7 +277,7 @@ export function routeDistanceBetween(
   return best <= boundM ? best : Infinity;
 }
 
-/** Positions on the plan in flat columns with their edges and legs (edgeAtChainage, edgeLegs): a trace's candidates. */
+/** Positions on the plan in flat columns with their edges (edgeAtChainage) and legs to the edge's ends: a trace's candidates. */
 export interface PositionColumns {
   route: Int32Array;
   chainage: Float64Array;
@@ -302,26 +296,19 @@ export function locatePositions(net: RouteNetwork, p: PositionColumns, from: num
     const e = (p.edge[c] = edgeAtChainage(net, p.route[c], p.chainage[c]));
     if (e < 0) continue;
     const E = net.edges[e];
-    // as edgeLegs
+    // how far the position lies from the edge's from node and to node along the route: a path's first and last legs
     p.leg0[c] = Math.max(p.chainage[c] - E.fromChainageM, 0);
     p.leg1[c] = Math.max(E.toChainageM - p.chainage[c], 0);
   }
 }
 
 /**
- * routeDistanceBetween from each of the positions a … a + na − 1 to each of b … b + nb − 1, row-major into
+ * positionDistance from each of the positions a … a + na − 1 to each of b … b + nb − 1, row-major into
  * `out`: the matcher asks for one layer's transitions in one call.
  * `routeDistanceMatrix(net, cols, 0, 2, 2, 3, 70, out)` → out[0 … 5] = distances from positions 0, 1 to 2, 3, 4
  */
 export function routeDistanceMatrix(net: RouteNetwork, p: PositionColumns, a: number, na: number, b: number, nb: number, boundM: number, out: Float64Array): void {
-  const { route, chainage, edge, leg0, leg1 } = p;
-  for (let i = 0; i < na; i++) {
-    const x = a + i;
-    for (let j = 0; j < nb; j++) {
-      const y = b + j;
-      out[i * nb + j] = routeDistanceBetween(net, route[x], chainage[x], edge[x], leg0[x], leg1[x], route[y], chainage[y], edge[y], leg0[y], leg1[y], boundM);
-    }
-  }
+  for (let i = 0; i < na; i++) for (let j = 0; j < nb; j++) out[i * nb + j] = positionDistance(net, p, a + i, b + j, boundM);
 }
 
 /**
@@ -331,8 +318,7 @@ export function routeDistanceMatrix(net: RouteNetwork, p: PositionColumns, a: nu
  * `routeDistanceM(net, { route: 0, chainageM: 10 }, { route: 0, chainageM: 25 }, 100)` → 15
  */
 export function routeDistanceM(net: RouteNetwork, a: RoutePosition, b: RoutePosition, boundM: number): number {
-  const [ea, eb] = a.route === b.route ? [-1, -1] : [edgeAtChainage(net, a.route, a.chainageM), edgeAtChainage(net, b.route, b.chainageM)];
-  const [a0, a1] = ea < 0 ? [0, 0] : edgeLegs(net, ea, a.chainageM);
-  const [b0, b1] = eb < 0 ? [0, 0] : edgeLegs(net, eb, b.chainageM);
-  return routeDistanceBetween(net, a.route, a.chainageM, ea, a0, a1, b.route, b.chainageM, eb, b0, b1, boundM);
+  const p: PositionColumns = { route: Int32Array.of(a.route, b.route), chainage: Float64Array.of(a.chainageM, b.chainageM), edge: new Int32Array(2), leg0: new Float64Array(2), leg1: new Float64Array(2) };
+  locatePositions(net, p, 0, 2);
+  return positionDistance(net, p, 0, 1, boundM);
 }

@@ -13,32 +13,36 @@
 export class SortedWindow {
   readonly sorted: Float64Array;
   size = 0;
-  private bounds = [0, 0, 0, 0];
+  private a0 = 0;
+  private a1 = 0;
+  private b0 = 0;
+  private b1 = 0;
 
   constructor(private readonly values: Float64Array) {
     this.sorted = new Float64Array(values.length);
   }
 
-  private has(i: number, [a0, a1, b0, b1]: number[]): boolean {
-    return (i >= a0 && i < a1) || (i >= b0 && i < b1);
-  }
-
   /** The window becomes [a0, a1) ∪ [b0, b1); each bound at or beyond where it was. */
   moveTo(a0: number, a1: number, b0: number, b1: number): void {
-    const old = this.bounds;
-    const next = [a0, a1, b0, b1];
-    for (let k = 0; k < 4; k++) if (next[k] < old[k]) throw new RangeError('SortedWindow: a bound moved back');
+    const o0 = this.a0;
+    const o1 = this.a1;
+    const o2 = this.b0;
+    const o3 = this.b1;
+    if (a0 < o0 || a1 < o1 || b0 < o2 || b1 < o3) throw new RangeError('SortedWindow: a bound moved back');
     // only indices a bound passed over can have come in or gone out: walk those stretches, each index once
     let done = -1;
     for (let k = 0; k < 4; k++) {
-      for (let i = Math.max(old[k], done + 1); i < next[k]; i++) {
-        const [was, is] = [this.has(i, old), this.has(i, next)];
+      const from = k === 0 ? o0 : k === 1 ? o1 : k === 2 ? o2 : o3;
+      const to = k === 0 ? a0 : k === 1 ? a1 : k === 2 ? b0 : b1;
+      for (let i = from > done + 1 ? from : done + 1; i < to; i++) {
+        const was = (i >= o0 && i < o1) || (i >= o2 && i < o3);
+        const is = (i >= a0 && i < a1) || (i >= b0 && i < b1);
         if (was && !is) this.remove(this.values[i]);
         else if (is && !was) this.insert(this.values[i]);
         done = i;
       }
     }
-    this.bounds = next;
+    (this.a0 = a0), (this.a1 = a1), (this.b0 = b0), (this.b1 = b1);
   }
 
   /** first position whose value is ≥ v (lower) or > v (upper) */
