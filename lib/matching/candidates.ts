@@ -317,11 +317,10 @@ export function appendCandidates(index: CandidateIndex, fix: { lon: number; lat:
  * `projectOntoRoute(index, 0, { lon: 13.405, lat: 52.52 })` → `{ chainageM: 40.2, offsetM: -2.9, distanceM: 2.9 }`
  */
 export function projectOntoRoute(index: CandidateIndex, k: number, fix: { lon: number; lat: number }): { chainageM: number; offsetM: number; distanceM: number } {
-  const { mx, my } = metresPerDegree(fix.lat);
   const px = (((((fix.lon - index.lon0) % 360) + 540) % 360) - 180) * index.mx0;
   const py = (fix.lat - index.lat0) * index.my0;
   const out = { chainageM: 0, offsetM: 0, distanceM: 0 };
-  projectInFrame(index, k, px, py, mx / index.mx0, my / index.my0, out);
+  projectInFrame(index, k, px, py, metresPerDegreeLon(fix.lat) / index.mx0, metresPerDegreeLat(fix.lat) / index.my0, out);
   return out;
 }
 

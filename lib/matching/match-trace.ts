@@ -150,8 +150,9 @@ export function prepareMatchNetwork(routes: PlannedRouteInput[], graph: RouteGra
 
 /**
  * Matches a trace onto the planned routes: drops isolated spikes, splits at gaps, finds candidates within
- * the search radius, runs Viterbi per stretch, and reports each matched fix's route, chainage and signed
- * lateral offset. ≥ 3 consecutive fixes with no route in reach are an unmatched run (an unplanned stretch);
+ * the search radius, runs Viterbi per stretch over the fixes the 2σ thinning keeps (the others placed on
+ * their neighbours' route afterwards), and reports each matched fix's route, chainage and signed lateral
+ * offset. ≥ 3 consecutive fixes with no route in reach are an unmatched run (an unplanned stretch);
  * 1–2 such fixes are outliers. Fixes keep the given order, so survey points (t null) follow it too.
  * `matchTrace(fixes, routes, buildRouteGraph(routes), { sigmaM: 4 })` → `{ matched: [{ seq: 0, ref: 'N1', chainageM: 12.3, offsetM: 0.4, … }], unmatched: [], outliers: [], pieces: 1 }`
  */

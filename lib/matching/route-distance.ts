@@ -251,7 +251,6 @@ function via(net: RouteNetwork, h: number, which: number, best: number, boundM: 
   return d <= rest ? Math.min(best, start + d + end) : best;
 }
 
-
 /**
  * Network distance between positions x and y of `p` (routeDistanceM for positions whose edges and legs
  * locatePositions has found): the matcher asks with indices, so that no number crosses a call.

@@ -47,7 +47,8 @@ export class SortedWindow {
 
   /** first position whose value is ≥ v (lower) or > v (upper) */
   private search(v: number, upper: boolean): number {
-    let [lo, hi] = [0, this.size];
+    let lo = 0;
+    let hi = this.size;
     const s = this.sorted;
     while (lo < hi) {
       const mid = (lo + hi) >> 1;
@@ -108,7 +109,8 @@ export class WindowExtremes {
     for (let i = this.lo; i < lo; i++) if (v[i] === v[i]) this.count--;
     while (this.minHead < this.minTail && this.mins[this.minHead] < lo) this.minHead++;
     while (this.maxHead < this.maxTail && this.maxs[this.maxHead] < lo) this.maxHead++;
-    [this.lo, this.hi] = [lo, hi];
+    this.lo = lo;
+    this.hi = hi;
   }
 
   /** Infinity when the window holds no number */

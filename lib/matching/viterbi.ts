@@ -54,12 +54,13 @@ export function viterbiLayers(counts: ArrayLike<number>, emissions: Float64Array
 }
 
 /**
- * viterbiLayers with each transition asked for only when it can matter: no transition is more likely than
- * `maxTransition` (for Newson & Krumm's exponential, −log β), so once a state's best predecessor so far
- * beats what any less likely predecessor could reach even with that transition, the rest are not asked.
- * Predecessors are tried most likely first. The result is viterbiLayers' own, ties included (the lowest
- * predecessor index wins); only the work differs. `transition(k, i, j)` is the log probability from state
- * i of layer k − 1 to state j of layer k, ≤ maxTransition.
+ * The recursion behind viterbiLayers, with each transition asked for only when it can matter: no transition
+ * is more likely than `maxTransition` (for Newson & Krumm's exponential, −log β), so once a state's best
+ * predecessor so far beats what any less likely predecessor could reach even with that transition, the rest
+ * are not asked. Predecessors are tried most likely first; ties go to the lowest predecessor index, as in
+ * index order, so the path is that of the full recursion (maxTransition = Infinity asks for every one).
+ * `transition(k, i, j)` is the log probability from state i of layer k − 1 to state j of layer k,
+ * ≤ maxTransition. A layer nothing reaches starts a new chain.
  * `viterbiPruned([2, 2], Float64Array.of(0, -5, -5, 0), 0, () => 0).path` → `Int32Array [0, 1]`
  */
 export function viterbiPruned(
@@ -67,49 +68,6 @@ export function viterbiPruned(
   emissions: Float64Array,
   maxTransition: number,
   transition: (layer: number, from: number, to: number) => number,
-): ViterbiResult {
-  let order = new Int32Array(0);
-  return recurse(counts, emissions, (k, pm, m, prev, cur, back, base) => {
-    if (order.length < pm) order = new Int32Array(pm);
-    // the previous layer's reachable states, most likely first (ties: lower index first)
-    let live = 0;
-    for (let i = 0; i < pm; i++) {
-      if (prev[i] === -Infinity) continue;
-      let at = live++;
-      for (; at > 0 && prev[order[at - 1]] < prev[i]; at--) order[at] = order[at - 1];
-      order[at] = i;
-    }
-    let reachable = false;
-    for (let j = 0; j < m; j++) {
-      const e = emissions[base + j];
-      let best = -Infinity;
-      let from = -1;
-      if (e !== -Infinity) {
-        for (let r = 0; r < live; r++) {
-          const i = order[r];
-          // no transition can lift this predecessor (or any after it) above the best so far
-          if (prev[i] + maxTransition < best) break;
-          const s = prev[i] + transition(k, i, j);
-          if (s > best || (s === best && s > -Infinity && i < from)) (best = s), (from = i);
-        }
-      }
-      cur[j] = best + e;
-      back[base + j] = from;
-      if (from >= 0 && cur[j] !== -Infinity) reachable = true;
-    }
-    return reachable;
-  });
-}
-
-/**
- * The recursion both variants share: `step` fills layer k's scores (cur) and best predecessors (back, at
- * base) from the previous layer's scores and says whether any state was reached; a layer nothing reaches
- * starts a new chain.
- */
-function recurse(
-  counts: ArrayLike<number>,
-  emissions: Float64Array,
-  step: (k: number, pm: number, m: number, prev: Float64Array, cur: Float64Array, back: Int32Array, base: number) => boolean,
 ): ViterbiResult {
   const n = counts.length;
   const offset = new Int32Array(n + 1);
@@ -123,6 +81,8 @@ function recurse(
   const back = new Int32Array(offset[n]);
   let prev = new Float64Array(widest);
   let cur = new Float64Array(widest);
+  // the previous layer's reachable states, most likely first
+  const order = new Int32Array(widest);
   const chainStarts: number[] = [];
   /** the best final state of the chain ending just before each chain start */
   const chainEnds: number[] = [];
@@ -135,7 +95,34 @@ function recurse(
   for (let k = 0; k < n; k++) {
     const m = counts[k];
     const base = offset[k];
-    const reachable = k > 0 && step(k, counts[k - 1], m, prev, cur, back, base);
+    let reachable = false;
+    if (k > 0) {
+      const pm = counts[k - 1];
+      let live = 0;
+      for (let i = 0; i < pm; i++) {
+        if (prev[i] === -Infinity) continue;
+        let at = live++;
+        for (; at > 0 && prev[order[at - 1]] < prev[i]; at--) order[at] = order[at - 1];
+        order[at] = i;
+      }
+      for (let j = 0; j < m; j++) {
+        const e = emissions[base + j];
+        let best = -Infinity;
+        let from = -1;
+        if (e !== -Infinity) {
+          for (let r = 0; r < live; r++) {
+            const i = order[r];
+            // no transition can lift this predecessor (or any after it) above the best so far
+            if (prev[i] + maxTransition < best) break;
+            const s = prev[i] + transition(k, i, j);
+            if (s > best || (s === best && s > -Infinity && i < from)) (best = s), (from = i);
+          }
+        }
+        cur[j] = best + e;
+        back[base + j] = from;
+        if (from >= 0 && cur[j] !== -Infinity) reachable = true;
+      }
+    }
     if (!reachable) {
       if (k > 0) {
         const end = argmax(prev, counts[k - 1]);
@@ -145,7 +132,9 @@ function recurse(
       chainStarts.push(k);
       for (let j = 0; j < m; j++) (cur[j] = emissions[base + j]), (back[base + j] = -1);
     }
-    [prev, cur] = [cur, prev];
+    const swap = prev;
+    prev = cur;
+    cur = swap;
   }
   const path = new Int32Array(n);
   if (n === 0) return { path, chainStarts, logProb: 0 };
