@@ -23,7 +23,7 @@ import { gridScenario } from '../tests/unit/matching/scenario';
 const FIXES = Number(process.env.BENCH_FIXES ?? 100_000);
 const RUNS = Math.max(1, Number(process.env.BENCH_RUNS ?? 3));
 const WARMUP_FIXES = Number(process.env.BENCH_WARMUP_FIXES ?? 20_000);
-const WARMUP_RUNS = Math.max(1, Number(process.env.BENCH_WARMUP_RUNS ?? 2));
+const WARMUP_RUNS = Math.max(1, Number(process.env.BENCH_WARMUP_RUNS ?? 4));
 const NAIVE = Number(process.env.BENCH_NAIVE_FIXES ?? 2_000);
 const TOLERANCE_M = 0.5; // the projects table's default lateral tolerance
 const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
@@ -37,7 +37,6 @@ interface Fixture {
 }
 /** What one measuring process reports. */
 interface Measured {
-  searchS: number;
   wholeS: number;
   prepareS: number;
   matchS: number;
@@ -53,6 +52,29 @@ const uploadOf = (fixes: Fix[]): UploadTraces => ({ uploadId: 'bench', sigmaM: 4
 // the search reconcileProject's matcher runs: its σ covers the source's noise and the tolerated departure
 const searchOptions = () => resolveMatchOptions({ sigmaM: Math.hypot(uploadOf([]).sigmaM, Math.max(TOLERANCE_M, 1)) });
 
+/**
+ * The candidate search on its own, in a process of its own (its index and columns stay out of the whole
+ * match's memory): warmed up the same way, then timed over every fix.
+ */
+function measureSearch(file: string): { searchS: number; perFix: number } {
+  const run = (fixes: Fix[], index: ReturnType<typeof makeCandidateIndex>) => {
+    const o = searchOptions();
+    const columns = new CandidateColumns();
+    let found = 0;
+    for (const f of fixes) {
+      found += appendCandidates(index, f, o.searchRadiusM, o.maxCandidates, columns);
+      columns.length = 0;
+    }
+    return found;
+  };
+  const { routes, fixes } = readFixture(file);
+  const index = makeCandidateIndex(routes);
+  for (let k = 0; k < WARMUP_RUNS; k++) run(fixes.slice(0, WARMUP_FIXES), index);
+  const t0 = performance.now();
+  const found = run(fixes, index);
+  return { searchS: (performance.now() - t0) / 1000, perFix: found / fixes.length };
+}
+
 /** One measuring process: optional warm-up on the first WARMUP_FIXES fixes, then the whole upload once. */
 async function measure(file: string, warm: boolean): Promise<Measured> {
   const read = () => readFixture(file);
@@ -65,21 +87,6 @@ async function measure(file: string, warm: boolean): Promise<Measured> {
       warmupS.push((performance.now() - t) / 1000);
     }
   }
-  // the candidate search on its own, on its own copy of the same fixes (not part of the whole match below)
-  const search = () => {
-    const { routes, fixes } = read();
-    const o = searchOptions();
-    const index = makeCandidateIndex(routes);
-    const columns = new CandidateColumns();
-    let found = 0;
-    const t0 = performance.now();
-    for (const f of fixes) {
-      found += appendCandidates(index, f, o.searchRadiusM, o.maxCandidates, columns);
-      columns.length = 0;
-    }
-    return { searchS: (performance.now() - t0) / 1000, perFix: found / fixes.length };
-  };
-  const { searchS, perFix } = search();
   const plan = read();
   const t = performance.now();
   const { drafts, stats } = await reconcileProject(plan.routes, [uploadOf(plan.fixes)], { toleranceM: TOLERANCE_M, timings: true });
@@ -87,9 +94,9 @@ async function measure(file: string, warm: boolean): Promise<Measured> {
   const built = drafts.filter((d) => d.status !== 'not_built').reduce((n, d) => n + d.lengthM, 0);
   const tm = stats.timingsMs!;
   return {
-    searchS, wholeS, prepareS: tm.prepareMs / 1000, matchS: tm.matchMs / 1000, visitsS: tm.visitsMs / 1000, sectionsS: tm.sectionsMs / 1000,
+    wholeS, prepareS: tm.prepareMs / 1000, matchS: tm.matchMs / 1000, visitsS: tm.visitsMs / 1000, sectionsS: tm.sectionsMs / 1000,
     warmupS, peakRssMB: process.resourceUsage().maxRSS / 1024,
-    summary: `matched ${stats.matched}, outliers ${stats.outliers}, unplanned runs ${stats.unplannedRuns}, pieces ${stats.pieces}; ${drafts.length} sections, ${(built / 1000).toFixed(2)} km built; ${perFix.toFixed(2)} candidates a fix`,
+    summary: `matched ${stats.matched}, outliers ${stats.outliers}, unplanned runs ${stats.unplannedRuns}, pieces ${stats.pieces}; ${drafts.length} sections, ${(built / 1000).toFixed(2)} km built`,
   };
 }
 
@@ -98,6 +105,10 @@ async function main() {
     // the generator's own memory (~90 MB) stays out of the measuring processes
     const gs = gridScenario(11, { blocks: 7, fixes: FIXES });
     writeFileSync(process.env.BENCH_FIXTURE_TO, JSON.stringify({ routes: gs.routes, totalLengthM: gs.totalLengthM, fixes: gs.handheld.map((h) => h.fix) } satisfies Fixture));
+    return;
+  }
+  if (process.env.BENCH_SEARCH) {
+    process.stdout.write(`${JSON.stringify(measureSearch(process.env.BENCH_SEARCH))}\n`);
     return;
   }
   if (process.env.BENCH_MEASURE) {
@@ -114,19 +125,20 @@ async function main() {
   const runs: Measured[] = [];
   for (let r = 0; r < RUNS; r++) runs.push(JSON.parse(child({ BENCH_MEASURE: file, BENCH_WARM: '1' })) as Measured);
   const cold = JSON.parse(child({ BENCH_MEASURE: file, BENCH_WARM: '0' })) as Measured;
+  const searches = Array.from({ length: RUNS }, () => JSON.parse(child({ BENCH_SEARCH: file })) as { searchS: number; perFix: number });
   rmSync(dir, { recursive: true });
 
   const n = fixes.length;
   const o = searchOptions();
-  console.log(`\nabsolute figures (this machine), medians of ${RUNS} processes, each warmed up twice on ${WARMUP_FIXES.toLocaleString('en')} of the fixes`);
-  line(`candidate search (${o.searchRadiusM.toFixed(1)} m, ≤ ${o.maxCandidates}), on its own`, median(runs.map((m) => m.searchS)), n);
+  console.log(`\nabsolute figures (this machine), medians of ${RUNS} processes, each warmed up ${WARMUP_RUNS} times on ${WARMUP_FIXES.toLocaleString('en')} of the fixes`);
+  line(`candidate search (${o.searchRadiusM.toFixed(1)} m, ≤ ${o.maxCandidates}), on its own`, median(searches.map((m) => m.searchS)), n);
   line('graph and candidate index (buildRouteGraph, prepareMatchNetwork)', median(runs.map((m) => m.prepareS)), n);
   line('Viterbi: matchTrace (thinning, candidates, transitions, recursion)', median(runs.map((m) => m.matchS)), n);
   line('visits (junction hops, route ends, walked intervals)', median(runs.map((m) => m.visitsS)), n);
   line('section building (buildRouteSections, every route)', median(runs.map((m) => m.sectionsS)), n);
   line('whole match: reconcileProject', median(runs.map((m) => m.wholeS)), n);
   console.log(`  (whole match in the ${RUNS} processes: ${range(runs.map((m) => m.wholeS))} s; warm-up runs on ${WARMUP_FIXES.toLocaleString('en')} fixes: ${range(runs.flatMap((m) => m.warmupS))} s)`);
-  console.log(runs[0].summary);
+  console.log(`${runs[0].summary}; ${searches[0].perFix.toFixed(2)} candidates a fix`);
   console.log(`peak RSS of a measuring process, start to end: ${range(runs.map((m) => m.peakRssMB), 0)} MB`);
   line('\nwhole match in a fresh process, no warm-up (the code compiled as it runs)', cold.wholeS, n);
   console.log(`peak RSS of that process: ${cold.peakRssMB.toFixed(0)} MB`);
@@ -143,7 +155,7 @@ async function main() {
   console.log(`\nnaive baseline, on a ${NAIVE.toLocaleString('en')}-fix subset: @turf/nearest-point-on-line onto every route`);
   line('nearest route by brute force', naive, NAIVE);
   const perFix = (s: number) => naive / NAIVE / (s / n);
-  console.log(`(checksum ${sink.toFixed(1)} m; the candidate search above is ${perFix(median(runs.map((m) => m.searchS))).toFixed(0)}× faster per fix, the whole match ${perFix(median(runs.map((m) => m.wholeS))).toFixed(0)}×)`);
+  console.log(`(checksum ${sink.toFixed(1)} m; the candidate search above is ${perFix(median(searches.map((m) => m.searchS))).toFixed(0)}× faster per fix, the whole match ${perFix(median(runs.map((m) => m.wholeS))).toFixed(0)}×)`);
 }
 
 main().catch((e) => {

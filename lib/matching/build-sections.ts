@@ -102,10 +102,44 @@ interface SortedFixes {
   t: Float64Array;
 }
 
+/**
+ * Indices 0 … n − 1 in ascending order of keys, equal keys in index order (what a stable sort by key gives):
+ * a bottom-up merge sort of indices, since a comparator sort of the fix objects costs a call a comparison.
+ */
+export function stableOrder(keys: Float64Array): Int32Array {
+  const n = keys.length;
+  let a = new Int32Array(n);
+  let b = new Int32Array(n);
+  for (let i = 0; i < n; i++) a[i] = i;
+  for (let width = 1; width < n; width *= 2) {
+    for (let lo = 0; lo < n; lo += 2 * width) {
+      const mid = Math.min(lo + width, n);
+      const hi = Math.min(lo + 2 * width, n);
+      let i = lo;
+      let j = mid;
+      let k = lo;
+      // the left run's element first unless the right one is strictly smaller: stable
+      while (i < mid && j < hi) b[k++] = keys[a[j]] < keys[a[i]] ? a[j++] : a[i++];
+      while (i < mid) b[k++] = a[i++];
+      while (j < hi) b[k++] = a[j++];
+    }
+    const t = a;
+    a = b;
+    b = t;
+  }
+  return a;
+}
+
 function sortedColumns(fixes: RouteObservations['fixes']): SortedFixes {
   const n = fixes.length;
+  const keys = new Float64Array(n);
+  for (let i = 0; i < n; i++) keys[i] = fixes[i].chainageM;
+  const order = stableOrder(keys);
   const out: SortedFixes = { chainage: new Float64Array(n), offset: new Float64Array(n), t: new Float64Array(n) };
-  fixes.forEach((f, i) => ((out.chainage[i] = f.chainageM), (out.offset[i] = f.offsetM), (out.t[i] = f.t ?? NaN)));
+  for (let i = 0; i < n; i++) {
+    const f = fixes[order[i]];
+    (out.chainage[i] = f.chainageM), (out.offset[i] = f.offsetM), (out.t[i] = f.t ?? NaN);
+  }
   return out;
 }
 
@@ -177,9 +211,9 @@ function medianInPlace(xs: Float64Array, n: number): number {
 function smoothBins(route: LonLat[], length: number, sources: RouteObservations[], o: Required<SectionOptions>): Bin[] {
   const nb = Math.max(1, Math.ceil(length));
   const covered = sources.map((s) => seen(s, o));
-  const sorted = sources.map((s) => [...s.fixes].sort((a, b) => a.chainageM - b.chainageM));
-  const columns = sorted.map(sortedColumns);
-  const scratch = new Float64Array(Math.max(1, ...sorted.map((f) => f.length)));
+  // each source's fixes by chainage, as columns
+  const columns = sources.map((s) => sortedColumns(s.fixes));
+  const scratch = new Float64Array(Math.max(1, ...sources.map((s) => s.fixes.length)));
   // per source, made when first used: its window, its ring and the ring's time span, slid metre by metre
   const slides = columns.map(() => null as null | { inner: SortedWindow; ring: SortedWindow; times: WindowExtremes });
   const bins: Bin[] = [];
@@ -199,7 +233,6 @@ function smoothBins(route: LonLat[], length: number, sources: RouteObservations[
       continue;
     }
     const s = sources[best];
-    const fx = sorted[best];
     const { chainage, offset, t } = columns[best];
     const slide = (slides[best] ??= { inner: new SortedWindow(offset), ring: new SortedWindow(offset), times: new WindowExtremes(t) });
     const w = s.surveyGrade ? Math.max(1, o.windowM / 10) : o.windowM;
@@ -213,7 +246,9 @@ function smoothBins(route: LonLat[], length: number, sources: RouteObservations[
     } else {
       // a stretch the walk is known to have crossed without a fix on it (a short road crossing): on the plan;
       // else the nearest fix
-      centre = fx.length === 0 ? 0 : fx.reduce((p, f) => (Math.abs(f.chainageM - c) < Math.abs(p.chainageM - c) ? f : p)).offsetM;
+      let near = 0;
+      for (let q = 1; q < chainage.length; q++) if (Math.abs(chainage[q] - c) < Math.abs(chainage[near] - c)) near = q;
+      centre = chainage.length === 0 ? 0 : offset[near];
       count = 1;
     }
     let anomaly = centre;
@@ -260,8 +295,11 @@ function smoothBins(route: LonLat[], length: number, sources: RouteObservations[
     while (j < bins.length && bins[j].deviates === bins[i].deviates && bins[j].source === bins[i].source) j++;
     if (bins[i].deviates) {
       const s = sources[bins[i].source];
-      const run = sorted[bins[i].source].filter((f) => f.chainageM >= i && f.chainageM <= j);
-      const anomalies = run.map((f) => f.offsetM - bins[Math.min(bins.length - 1, Math.max(0, Math.floor(f.chainageM)))].baseline);
+      const { chainage, offset } = columns[bins[i].source];
+      const anomalies: number[] = [];
+      for (let q = 0; q < chainage.length; q++) {
+        if (chainage[q] >= i && chainage[q] <= j) anomalies.push(offset[q] - bins[Math.min(bins.length - 1, Math.max(0, Math.floor(chainage[q])))].baseline);
+      }
       const m = anomalies.length ? trimmedMean(anomalies) : 0;
       const rb = Math.max(...bins.slice(i, j).map((b) => b.residualBias));
       const seRun = Math.sqrt(((TRIM_EFFICIENCY * s.sigmaM) ** 2) / Math.max(1, anomalies.length) + rb * rb);

@@ -6,7 +6,10 @@ import type { LonLat } from './types';
 export function localLinear(xs: number[], i: number, lo: number, hi: number): number {
   const n = hi - lo + 1;
   if (n < 3) return xs.slice(lo, hi + 1).reduce((a, b) => a + b, 0) / n;
-  let [st, sx, stt, stx] = [0, 0, 0, 0];
+  let st = 0;
+  let sx = 0;
+  let stt = 0;
+  let stx = 0;
   for (let k = lo; k <= hi; k++) (st += k), (sx += xs[k]), (stt += k * k), (stx += k * xs[k]);
   const slope = (n * stx - st * sx) / (n * stt - st * st);
   return (sx - slope * st) / n + slope * i;

@@ -162,28 +162,48 @@ export function walkedIntervals(
   graph: RouteGraph,
   opts: { k: number; bridgeM: number; minFixes: number; nearM: number; lengthOf: (ref: string) => number; apart?: (seqA: number, seqB: number) => boolean },
 ): Map<string, [number, number][]> {
-  // junctions by route: where each route meets others, at which chainage on it
-  const joins = new Map<string, { node: Map<string, number>; at: number }[]>();
+  // junctions by route: where each route meets others, at which chainage on it. A node's routes are kept
+  // once each, in first-seen order with their last chainage (a route meeting itself at a node: its far end)
+  const nodeRefs: string[][] = [];
+  const nodeAts: number[][] = [];
+  const joins = new Map<string, { node: number; at: number }[]>();
   for (const n of graph.nodes) {
-    const node = new Map(n.routes.map((r) => [r.ref, r.chainageM]));
-    for (const r of n.routes) (joins.get(r.ref) ?? joins.set(r.ref, []).get(r.ref)!).push({ node, at: r.chainageM });
+    const refs: string[] = [];
+    const ats: number[] = [];
+    for (const r of n.routes) {
+      const i = refs.indexOf(r.ref);
+      if (i < 0) refs.push(r.ref), ats.push(r.chainageM);
+      else ats[i] = r.chainageM;
+    }
+    const id = nodeRefs.push(refs) - 1;
+    nodeAts.push(ats);
+    for (const r of n.routes) (joins.get(r.ref) ?? joins.set(r.ref, []).get(r.ref)!).push({ node: id, at: r.chainageM });
   }
+  const none: { node: number; at: number }[] = [];
   /** the chainage on `ref` nearest `c` (within bridgeM) where `other` joins it */
   const junction = (ref: string, other: string, c: number): number | undefined => {
     let best: number | undefined;
-    for (const j of joins.get(ref) ?? []) if (j.node.has(other) && Math.abs(j.at - c) <= opts.bridgeM && (best === undefined || Math.abs(j.at - c) < Math.abs(best - c))) best = j.at;
+    for (const j of joins.get(ref) ?? none) if (nodeRefs[j.node].includes(other) && Math.abs(j.at - c) <= opts.bridgeM && (best === undefined || Math.abs(j.at - c) < Math.abs(best - c))) best = j.at;
     return best;
   };
   /** a route joining `ref` near c and `other` near cOther: where on `ref`, and the stretch of it walked across */
   const across = (ref: string, c: number, other: string, cOther: number): { at: number; via: string; from: number; to: number } | undefined => {
     let best: { at: number; via: string; from: number; to: number; cost: number } | undefined;
-    for (const j of joins.get(ref) ?? []) {
+    for (const j of joins.get(ref) ?? none) {
       if (Math.abs(j.at - c) > opts.bridgeM) continue;
-      for (const [via, viaAt] of j.node) {
+      const refs = nodeRefs[j.node];
+      for (let r = 0; r < refs.length; r++) {
+        const via = refs[r];
+        const viaAt = nodeAts[j.node][r];
         if (via === ref || via === other) continue;
         const far = junction(via, other, viaAt);
-        const onOther = far === undefined ? undefined : [...(joins.get(via) ?? [])].find((x) => x.at === far)?.node.get(other);
-        if (far === undefined || onOther === undefined || Math.abs(onOther - cOther) > opts.bridgeM) continue;
+        if (far === undefined) continue;
+        // the other route's chainage at the first of via's junctions at that chainage
+        const at = (joins.get(via) ?? none).find((x) => x.at === far);
+        const k = at ? nodeRefs[at.node].indexOf(other) : -1;
+        if (k < 0) continue;
+        const onOther = nodeAts[at!.node][k];
+        if (Math.abs(onOther - cOther) > opts.bridgeM) continue;
         const cost = Math.abs(j.at - c) + Math.abs(onOther - cOther) + Math.abs(far - viaAt);
         if (!best || cost < best.cost) best = { at: j.at, via, from: Math.min(viaAt, far), to: Math.max(viaAt, far), cost };
       }

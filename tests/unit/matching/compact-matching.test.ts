@@ -5,6 +5,7 @@ import { locatePositions, makeRouteNetwork, routeDistanceM, routeDistanceMatrix,
 import { viterbi, viterbiLayers, viterbiPruned } from '@/lib/matching/viterbi';
 import { SortedWindow, WindowExtremes } from '@/lib/matching/sliding-window';
 import { seqLookup } from '@/lib/matching/reconcile-project';
+import { stableOrder } from '@/lib/matching/build-sections';
 import { gridScenario, mulberry32, streetScenario } from './scenario';
 
 // The matcher keeps a long trace's candidates in typed columns, finds a layer's route distances at once behind
@@ -154,6 +155,18 @@ describe('sliding windows', () => {
       expect(x.count).toBe(nums.length);
       expect(x.min()).toBe(nums.length ? Math.min(...nums) : Infinity);
       expect(x.max()).toBe(nums.length ? Math.max(...nums) : -Infinity);
+    }
+  });
+});
+
+describe('stableOrder', () => {
+  it('orders indices as the engine\'s stable sort by key does (ECMAScript 2019 requires Array.prototype.sort to be stable), ties and -0 included', () => {
+    const rnd = mulberry32(7);
+    for (const n of [0, 1, 2, 3, 17, 64, 1000, 4097]) {
+      // few distinct keys, so that most comparisons are ties; a walk back and forth gives runs both ways
+      const keys = Float64Array.from({ length: n }, (_, i) => (i % 5 === 0 ? -0 : Math.round(rnd() * 40) / 4 - (i % 3)));
+      const expected = Array.from({ length: n }, (_, i) => i).sort((a, b) => keys[a] - keys[b]);
+      expect([...stableOrder(keys)]).toEqual(expected);
     }
   });
 });
