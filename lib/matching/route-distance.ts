@@ -179,19 +179,31 @@ function cachedDistance(net: RouteNetwork, from: number, to: number): number {
   return -1;
 }
 
-/** Shortest distance between two nodes if it is ≤ bound, else Infinity; cached per source node. */
-function nodeDistance(net: RouteNetwork, from: number, to: number, bound: number): number {
-  if (from === to) return 0;
+/** Forgets every cached search (a closure over net inside nodeDistanceInto would allocate a context a call). */
+function clearSources(net: RouteNetwork): void {
+  net.sourceBound.fill(-1);
+  net.cached = 0;
+  net.poolUsed = 0;
+}
+
+/**
+ * Shortest distance between two nodes if it is ≤ bound, else Infinity, cached per source node, written to
+ * net.pairs[at], the pair's slot, so that no number crosses the call.
+ */
+function nodeDistanceInto(net: RouteNetwork, from: number, to: number, bound: number, at: number): void {
+  if (from === to) {
+    net.pairs[at] = 0;
+    return;
+  }
   const searched = net.sourceBound[from];
   let d = searched < 0 ? -1 : cachedDistance(net, from, to);
   if (searched < 0 || (searched < bound && d < 0)) {
-    const clear = () => (net.sourceBound.fill(-1), (net.cached = 0), (net.poolUsed = 0));
-    if (net.cached >= CACHE_LIMIT) clear();
+    if (net.cached >= CACHE_LIMIT) clearSources(net);
     // searching twice as far as asked lets the next few queries from this node hit the cache
     const b = Math.max(bound, 2 * Math.max(searched, 0));
     const n = dijkstra(net, from, b);
     // the pool is bounded in entries too: in a dense network a search settles hundreds of nodes
-    if (net.poolUsed > 0 && net.poolUsed + n > POOL_LIMIT) clear();
+    if (net.poolUsed > 0 && net.poolUsed + n > POOL_LIMIT) clearSources(net);
     if (net.sourceBound[from] < 0) net.cached++;
     if (net.poolUsed + n > net.poolNode.length) {
       const size = Math.max(net.poolUsed + n, 2 * net.poolNode.length);
@@ -200,15 +212,15 @@ function nodeDistance(net: RouteNetwork, from: number, to: number, bound: number
       [net.poolNode, net.poolDist] = [nodes, dist];
     }
     // a new search from a node supersedes its old one, which stays in the pool until the next clear
-    const at = net.poolUsed;
-    const sortedNodes = net.poolNode.subarray(at, at + n);
+    const first = net.poolUsed;
+    const sortedNodes = net.poolNode.subarray(first, first + n);
     sortedNodes.set(net.settledOrder.subarray(0, n));
     sortedNodes.sort();
-    for (let i = 0; i < n; i++) net.poolDist[at + i] = net.tentative[sortedNodes[i]];
-    (net.poolUsed += n), (net.sourceBound[from] = b), (net.sourceStart[from] = at), (net.sourceCount[from] = n);
+    for (let i = 0; i < n; i++) net.poolDist[first + i] = net.tentative[sortedNodes[i]];
+    (net.poolUsed += n), (net.sourceBound[from] = b), (net.sourceStart[from] = first), (net.sourceCount[from] = n);
     d = cachedDistance(net, from, to);
   }
-  return d >= 0 && d <= bound ? d : Infinity;
+  net.pairs[at] = d >= 0 && d <= bound ? d : Infinity;
 }
 
 /**
@@ -231,23 +243,22 @@ function pairSlot(net: RouteNetwork, ea: number, eb: number, boundM: number): nu
   return h;
 }
 
-/** Node distance `which` (0: from–from, 1: from–to, 2: to–from, 3: to–to) of the pair in slot h. */
-function pairDistance(net: RouteNetwork, h: number, which: number): number {
+/** Node distance `which` (0: from–from, 1: from–to, 2: to–from, 3: to–to) of the pair in slot h, found if not yet in net.pairs[h + 3 + which]. */
+function pairDistance(net: RouteNetwork, h: number, which: number): void {
   const P = net.pairs;
-  let d = P[h + 3 + which];
-  if (d !== d) {
+  if (P[h + 3 + which] !== P[h + 3 + which]) {
     const A = net.edges[P[h]];
     const B = net.edges[P[h + 1]];
-    d = P[h + 3 + which] = nodeDistance(net, which < 2 ? A.fromNode : A.toNode, which % 2 === 0 ? B.fromNode : B.toNode, P[h + 2]);
+    nodeDistanceInto(net, which < 2 ? A.fromNode : A.toNode, which % 2 === 0 ? B.fromNode : B.toNode, P[h + 2], h + 3 + which);
   }
-  return d;
 }
 
-/** best after the path start → d → end, if it fits under min(bound, best) (nodeDistance's rule: d ≤ the rest). */
+/** best after the path start → d → end, if it fits under min(bound, best) (nodeDistanceInto's rule: d ≤ the rest). */
 function via(net: RouteNetwork, h: number, which: number, best: number, boundM: number, start: number, end: number): number {
   const rest = Math.min(boundM, best) - start - end;
   if (rest < 0) return best;
-  const d = pairDistance(net, h, which);
+  pairDistance(net, h, which);
+  const d = net.pairs[h + 3 + which];
   return d <= rest ? Math.min(best, start + d + end) : best;
 }
 

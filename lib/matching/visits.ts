@@ -40,8 +40,9 @@ export function foldJunctionHops(
   let out: MatchedFix[] | null = null;
   let folded = 0;
   for (let v = 1; v + 1 < visits.length; v++) {
-    const [prev, hop, next] = [visits[v - 1], visits[v], visits[v + 1]];
-    if (prev.ref !== next.ref || hop.end - hop.start > opts.maxFixes) continue;
+    const prev = visits[v - 1];
+    const hop = visits[v];
+    if (prev.ref !== visits[v + 1].ref || hop.end - hop.start > opts.maxFixes) continue;
     const back: MatchedFix[] = [];
     for (let i = hop.start; i < hop.end; i++) {
       const m = matched[i];
@@ -229,11 +230,11 @@ export function walkedIntervals(
   const snapped = smooth.map((s) => [...s]);
   visits.forEach((v, n) => {
     const s = snapped[n];
-    const ends: [number, Visit | undefined, number | undefined][] = [
-      [0, visits[n - 1], smooth[n - 1]?.at(-1)],
-      [s.length - 1, visits[n + 1], smooth[n + 1]?.[0]],
-    ];
-    for (const [i, other, cOther] of ends) {
+    // the visit's first fix meets the visit before, its last the one after
+    for (let end = 0; end < 2; end++) {
+      const i = end === 0 ? 0 : s.length - 1;
+      const other = end === 0 ? visits[n - 1] : visits[n + 1];
+      const cOther = end === 0 ? smooth[n - 1]?.[smooth[n - 1].length - 1] : smooth[n + 1]?.[0];
       const c = smooth[n][i];
       const direct = other && other.ref !== v.ref ? junction(v.ref, other.ref, c) : undefined;
       const via = other && other.ref !== v.ref && direct === undefined ? across(v.ref, c, other.ref, cOther!) : undefined;
