@@ -1,12 +1,13 @@
 // node --import tsx scripts/bench-match.ts — the reconciliation job's service function (reconcileProject: HMM
 // map matching, then the sections of every route) on a generated ~30 km / 2,000-route network and one upload of
 // 100,000 handheld fixes, then a naive baseline (@turf/nearest-point-on-line onto every route) in the same run.
-//   BENCH_FIXES=100000 BENCH_RUNS=3 BENCH_WARMUP_FIXES=20000 BENCH_NAIVE_FIXES=2000
+//   BENCH_FIXES=100000 BENCH_RUNS=3 BENCH_WARMUP_FIXES=20000 BENCH_WARMUP_RUNS=4 BENCH_NAIVE_FIXES=2000
 //
 // Each measured run is a process of its own, as a job worker is: it reads the plan and the fixes (here from
 // a JSON file; the job reads them from the database), warms up on a smaller upload over the same network
-// (BENCH_WARMUP_FIXES, twice: V8 compiles and optimises the code as it runs), then reconciles the whole upload
-// once. Its peak RSS is that process's, start to end. One more process reconciles the whole upload cold.
+// (BENCH_WARMUP_FIXES, BENCH_WARMUP_RUNS = 4 times: V8 compiles and optimises the code as it runs; the warm-up
+// times, printed in order, show it settle by the third or fourth), then reconciles the whole upload once.
+// Its peak RSS is that process's, start to end. One more process reconciles the whole upload cold.
 import { execFileSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -46,6 +47,7 @@ interface Measured {
   peakRssMB: number;
   summary: string;
 }
+const warmupFile = (file: string) => file.replace(/\.json$/, '-warmup.json');
 const readFixture = (file: string) => JSON.parse(readFileSync(file, 'utf8')) as Fixture;
 const uploadOf = (fixes: Fix[]): UploadTraces => ({ uploadId: 'bench', sigmaM: 4, surveyGrade: false, laidOn: null, traces: [fixes] });
 
@@ -81,9 +83,9 @@ async function measure(file: string, warm: boolean): Promise<Measured> {
   const warmupS: number[] = [];
   if (warm) {
     for (let k = 0; k < WARMUP_RUNS; k++) {
-      const { routes, fixes } = read();
+      const { routes, fixes } = readFixture(warmupFile(file));
       const t = performance.now();
-      await reconcileProject(routes, [uploadOf(fixes.slice(0, WARMUP_FIXES))], { toleranceM: TOLERANCE_M });
+      await reconcileProject(routes, [uploadOf(fixes)], { toleranceM: TOLERANCE_M });
       warmupS.push((performance.now() - t) / 1000);
     }
   }
@@ -104,7 +106,10 @@ async function main() {
   if (process.env.BENCH_FIXTURE_TO) {
     // the generator's own memory (~90 MB) stays out of the measuring processes
     const gs = gridScenario(11, { blocks: 7, fixes: FIXES });
-    writeFileSync(process.env.BENCH_FIXTURE_TO, JSON.stringify({ routes: gs.routes, totalLengthM: gs.totalLengthM, fixes: gs.handheld.map((h) => h.fix) } satisfies Fixture));
+    const fixes = gs.handheld.map((h) => h.fix);
+    writeFileSync(process.env.BENCH_FIXTURE_TO, JSON.stringify({ routes: gs.routes, totalLengthM: gs.totalLengthM, fixes } satisfies Fixture));
+    // the warm-up upload on its own: a warm-up reads just what it matches, as a job reads just its upload
+    writeFileSync(warmupFile(process.env.BENCH_FIXTURE_TO), JSON.stringify({ routes: gs.routes, totalLengthM: gs.totalLengthM, fixes: fixes.slice(0, WARMUP_FIXES) } satisfies Fixture));
     return;
   }
   if (process.env.BENCH_SEARCH) {
@@ -137,7 +142,7 @@ async function main() {
   line('visits (junction hops, route ends, walked intervals)', median(runs.map((m) => m.visitsS)), n);
   line('section building (buildRouteSections, every route)', median(runs.map((m) => m.sectionsS)), n);
   line('whole match: reconcileProject', median(runs.map((m) => m.wholeS)), n);
-  console.log(`  (whole match in the ${RUNS} processes: ${range(runs.map((m) => m.wholeS))} s; warm-up runs on ${WARMUP_FIXES.toLocaleString('en')} fixes: ${range(runs.flatMap((m) => m.warmupS))} s)`);
+  console.log(`  (whole match in the ${RUNS} processes: ${range(runs.map((m) => m.wholeS))} s; their warm-ups on ${WARMUP_FIXES.toLocaleString('en')} fixes, in order: ${runs.map((m) => m.warmupS.map((x) => x.toFixed(2)).join(', ')).join(' | ')} s)`);
   console.log(`${runs[0].summary}; ${searches[0].perFix.toFixed(2)} candidates a fix`);
   console.log(`peak RSS of a measuring process, start to end: ${range(runs.map((m) => m.peakRssMB), 0)} MB`);
   line('\nwhole match in a fresh process, no warm-up (the code compiled as it runs)', cold.wholeS, n);
