@@ -164,7 +164,7 @@ export function walkedIntervals(
   opts: { k: number; bridgeM: number; minFixes: number; nearM: number; lengthOf: (ref: string) => number; apart?: (seqA: number, seqB: number) => boolean },
 ): Map<string, [number, number][]> {
   // junctions by route: where each route meets others, at which chainage on it. A node's routes are kept
-  // once each, in first-seen order with their last chainage (a route meeting itself at a node: its far end)
+  // once each, in first-seen order with their last-listed chainage (as a Map keyed by ref keeps them)
   const nodeRefs: string[][] = [];
   const nodeAts: number[][] = [];
   const joins = new Map<string, { node: number; at: number }[]>();
