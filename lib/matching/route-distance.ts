@@ -253,15 +253,6 @@ function pairDistance(net: RouteNetwork, h: number, which: number): void {
   }
 }
 
-/** best after the path start → d → end, if it fits under min(bound, best) (nodeDistanceInto's rule: d ≤ the rest). */
-function via(net: RouteNetwork, h: number, which: number, best: number, boundM: number, start: number, end: number): number {
-  const rest = Math.min(boundM, best) - start - end;
-  if (rest < 0) return best;
-  pairDistance(net, h, which);
-  const d = net.pairs[h + 3 + which];
-  return d <= rest ? Math.min(best, start + d + end) : best;
-}
-
 /**
  * Network distance between positions x and y of `p` (routeDistanceM for positions whose edges and legs
  * locatePositions has found): the matcher asks with indices, so that no number crosses a call.
@@ -276,14 +267,24 @@ export function positionDistance(net: RouteNetwork, p: PositionColumns, x: numbe
   const eb = p.edge[y];
   if (ea < 0 || eb < 0) return Infinity;
   const h = pairSlot(net, ea, eb, boundM);
+  const P = net.pairs;
   const a0 = p.leg0[x];
   const a1 = p.leg1[x];
   const b0 = p.leg0[y];
   const b1 = p.leg1[y];
-  let best = via(net, h, 0, Infinity, boundM, a0, b0);
-  best = via(net, h, 1, best, boundM, a0, b1);
-  best = via(net, h, 2, best, boundM, a1, b0);
-  best = via(net, h, 3, best, boundM, a1, b1);
+  // the four paths leg → node distance → leg (0: from–from, 1: from–to, 2: to–from, 3: to–to); a node
+  // distance is looked for only when its path can still be the shortest under the bound (it is exact up
+  // to the rest). One loop, not a helper a path: a number a helper returns would be boxed.
+  let best = Infinity;
+  for (let which = 0; which < 4; which++) {
+    const start = which < 2 ? a0 : a1;
+    const end = which % 2 === 0 ? b0 : b1;
+    const rest = Math.min(boundM, best) - start - end;
+    if (rest < 0) continue;
+    pairDistance(net, h, which);
+    const d = P[h + 3 + which];
+    if (d <= rest) best = Math.min(best, start + d + end);
+  }
   return best <= boundM ? best : Infinity;
 }
 

@@ -25,19 +25,24 @@ function unionFind(n: number) {
 }
 
 /** Nearest point of a planar polyline to p: its distance, and how far along (of how long) it lies. */
-function nearestPlanar(xy: XY[], [px, py]: XY): { distance: number; along: number; length: number } {
-  let best = { distance: Infinity, along: 0, length: 0 };
+function nearestPlanar(xy: XY[], p: XY): { distance: number; along: number; length: number } {
+  const px = p[0];
+  const py = p[1];
+  let distance = Infinity;
+  let along = 0;
   let base = 0;
   for (let i = 0; i + 1 < xy.length; i++) {
-    const [[ax, ay], [bx, by]] = [xy[i], xy[i + 1]];
-    const [dx, dy] = [bx - ax, by - ay];
+    const ax = xy[i][0];
+    const ay = xy[i][1];
+    const dx = xy[i + 1][0] - ax;
+    const dy = xy[i + 1][1] - ay;
     const l2 = dx * dx + dy * dy;
     const t = l2 > 0 ? Math.min(Math.max(((px - ax) * dx + (py - ay) * dy) / l2, 0), 1) : 0;
     const d = Math.hypot(ax + t * dx - px, ay + t * dy - py);
-    if (d < best.distance) best = { distance: d, along: base + t * Math.sqrt(l2), length: 0 };
+    if (d < distance) (distance = d), (along = base + t * Math.sqrt(l2));
     base += Math.sqrt(l2);
   }
-  return { ...best, length: base };
+  return { distance, along, length: base };
 }
 
 /** duplicate: each line within snapM of the other everywhere; overlap: both run within snapM of each other for > 1 m. */
@@ -68,7 +73,8 @@ function pairDiagnostics(rs: Route[], index: Flatbush, segRoute: number[], snapM
   return out;
 }
 
-const distinctPositions = (coords: LonLat[]) => new Set(coords.map(([x, y]) => `${x},${y}`)).size;
+/** whether the line has at least two distinct positions */
+const twoPositions = (coords: LonLat[]) => coords.some((c) => c[0] !== coords[0][0] || c[1] !== coords[0][1]);
 
 /**
  * Joins the planned routes into a graph. Endpoints within `snapM` of each other become one node; an
@@ -98,17 +104,20 @@ export function buildRouteGraph(routes: PlannedRouteInput[], opts: { snapM?: num
   }
   const valid: { input: PlannedRouteInput; lengthM: number }[] = [];
   for (const r of kept.values()) {
-    const [lengthM, distinct] = [lineLengthM(r.coords), distinctPositions(r.coords)];
-    if (distinct >= 2 && lengthM >= 0.01) valid.push({ input: r, lengthM });
+    const two = twoPositions(r.coords);
+    const lengthM = two ? lineLengthM(r.coords) : 0;
+    if (two && lengthM >= 0.01) valid.push({ input: r, lengthM });
     else {
-      const why = distinct < 2 ? 'has fewer than 2 distinct positions' : `is ${lengthM.toFixed(3)} m long`;
+      const why = !two ? 'has fewer than 2 distinct positions' : `is ${lengthM.toFixed(3)} m long`;
       diagnostics.push({ kind: 'zero_length', refs: [r.ref], position: r.coords[0] ?? [0, 0], message: `${r.ref} ${why}; it is left out of the graph` });
     }
   }
   if (valid.length === 0) return { nodes: [], edges: [], diagnostics };
 
   let [minLon, minLat, maxLon, maxLat] = [Infinity, Infinity, -Infinity, -Infinity];
-  for (const r of valid) for (const [x, y] of r.input.coords) [minLon, minLat, maxLon, maxLat] = [Math.min(minLon, x), Math.min(minLat, y), Math.max(maxLon, x), Math.max(maxLat, y)];
+  for (const r of valid) {
+    for (const c of r.input.coords) (minLon = Math.min(minLon, c[0])), (minLat = Math.min(minLat, c[1])), (maxLon = Math.max(maxLon, c[0])), (maxLat = Math.max(maxLat, c[1]));
+  }
   const frame = localFrame([(minLon + maxLon) / 2, (minLat + maxLat) / 2]);
   const rs: Route[] = valid.map(({ input, lengthM }) => ({ input, xy: input.coords.map(frame.toXY), lengthM, nodeAt: [-1, -1] }));
 
@@ -118,7 +127,8 @@ export function buildRouteGraph(routes: PlannedRouteInput[], opts: { snapM?: num
   rs.forEach((r, k) => r.xy.slice(1).forEach((_, i) => (segRoute.push(k), segStart.push(i))));
   const index = new Flatbush(segRoute.length);
   for (let s = 0; s < segRoute.length; s++) {
-    const [p, q] = [rs[segRoute[s]].xy[segStart[s]], rs[segRoute[s]].xy[segStart[s] + 1]];
+    const p = rs[segRoute[s]].xy[segStart[s]];
+    const q = rs[segRoute[s]].xy[segStart[s] + 1];
     index.add(Math.min(p[0], q[0]), Math.min(p[1], q[1]), Math.max(p[0], q[0]), Math.max(p[1], q[1]));
   }
   index.finish();
@@ -130,16 +140,20 @@ export function buildRouteGraph(routes: PlannedRouteInput[], opts: { snapM?: num
   const uf = unionFind(rs.length * 2);
   const hits: { e: number; route: number; chainageM: number; distanceM: number }[] = [];
   for (let e = 0; e < rs.length * 2; e++) {
-    const [x, y] = endXY(e);
-    const candidates = new Set(near(x, y, snapM).map((s) => segRoute[s]));
+    const exy = endXY(e);
+    const x = exy[0];
+    const y = exy[1];
+    // the routes with a segment in reach, once each, in the index's order
+    const candidates = new Set<number>();
+    for (const seg of near(x, y, snapM)) candidates.add(segRoute[seg]);
     for (const k of candidates) {
       const other = rs[k];
-      for (const f of [2 * k, 2 * k + 1]) {
-        const [fx, fy] = endXY(f);
-        if (f !== e && Math.hypot(fx - x, fy - y) <= snapM) uf.union(e, f);
+      for (let f = 2 * k; f <= 2 * k + 1; f++) {
+        const fxy = endXY(f);
+        if (f !== e && Math.hypot(fxy[0] - x, fxy[1] - y) <= snapM) uf.union(e, f);
       }
       if (k === e >> 1) continue;
-      const foot = nearestPlanar(other.xy, [x, y]);
+      const foot = nearestPlanar(other.xy, exy);
       if (foot.distance > snapM) continue;
       // a foot within snapM of the other route's end joins that end: no sliver edges shorter than snapM
       if (foot.along <= snapM || foot.along >= foot.length - snapM) {
