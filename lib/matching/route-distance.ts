@@ -13,6 +13,14 @@ export interface RoutePosition {
 export interface RouteNetwork {
   /** graph edge indices of each route, by chainage; empty for routes the graph left out */
   routeEdges: number[][];
+  /** the same lists flat (route k's edges are routeEdgeList[routeEdgeStart[k] … routeEdgeStart[k + 1] − 1]), with each edge's chainages: the hot lookups read no objects */
+  routeEdgeStart: Int32Array;
+  routeEdgeList: Int32Array;
+  edgeFrom: Float64Array;
+  edgeTo: Float64Array;
+  /** each edge's from and to node */
+  edgeFromNode: Int32Array;
+  edgeToNode: Int32Array;
   edges: RouteGraph['edges'];
   adjStart: Int32Array;
   adjNode: Int32Array;
@@ -68,6 +76,13 @@ export function makeRouteNetwork(graph: RouteGraph, routes: PlannedRouteInput[])
     if (k !== undefined) routeEdges[k].push(i);
   });
   for (const list of routeEdges) list.sort((a, b) => graph.edges[a].fromChainageM - graph.edges[b].fromChainageM);
+  const routeEdgeStart = new Int32Array(routes.length + 1);
+  routeEdges.forEach((list, k) => (routeEdgeStart[k + 1] = routeEdgeStart[k] + list.length));
+  const routeEdgeList = Int32Array.from(routeEdges.flat());
+  const edgeFrom = Float64Array.from(graph.edges, (e) => e.fromChainageM);
+  const edgeTo = Float64Array.from(graph.edges, (e) => e.toChainageM);
+  const edgeFromNode = Int32Array.from(graph.edges, (e) => e.fromNode);
+  const edgeToNode = Int32Array.from(graph.edges, (e) => e.toNode);
   const n = graph.nodes.length;
   const degree = new Int32Array(n + 1);
   for (const e of graph.edges) degree[e.fromNode]++, degree[e.toNode]++;
@@ -83,7 +98,7 @@ export function makeRouteNetwork(graph: RouteGraph, routes: PlannedRouteInput[])
   // about 32 slots an edge, at most 8 MB: a walk's neighbourhood of edge pairs stays in them
   const slots = Math.min(1 << 17, Math.max(256, 2 ** Math.ceil(Math.log2(32 * graph.edges.length + 1))));
   return {
-    routeEdges, edges: graph.edges, adjStart, adjNode, adjLen,
+    routeEdges, routeEdgeStart, routeEdgeList, edgeFrom, edgeTo, edgeFromNode, edgeToNode, edges: graph.edges, adjStart, adjNode, adjLen,
     sourceBound: new Float64Array(n).fill(-1), sourceStart: new Int32Array(n), sourceCount: new Int32Array(n),
     poolNode: new Int32Array(1024), poolDist: new Float64Array(1024), poolUsed: 0, cached: 0,
     seen: new Int32Array(n), done: new Int32Array(n), tentative: new Float64Array(n), settledOrder: new Int32Array(n), searches: 0,
@@ -97,13 +112,14 @@ export function makeRouteNetwork(graph: RouteGraph, routes: PlannedRouteInput[])
  * `edgeAtChainage(net, 0, 12.5)` → the index in net.edges of routes[0]'s edge around 12.5 m
  */
 export function edgeAtChainage(net: RouteNetwork, route: number, chainageM: number): number {
-  const list = net.routeEdges[route];
-  if (!list || list.length === 0) return -1;
-  let lo = 0;
-  let hi = list.length - 1;
+  if (!(route >= 0 && route < net.routeEdgeStart.length - 1)) return -1;
+  const list = net.routeEdgeList;
+  let lo = net.routeEdgeStart[route];
+  let hi = net.routeEdgeStart[route + 1] - 1;
+  if (hi < lo) return -1;
   while (lo < hi) {
     const mid = (lo + hi + 1) >> 1;
-    if (net.edges[list[mid]].fromChainageM <= chainageM) lo = mid;
+    if (net.edgeFrom[list[mid]] <= chainageM) lo = mid;
     else hi = mid - 1;
   }
   return list[lo];
@@ -247,9 +263,9 @@ function pairSlot(net: RouteNetwork, ea: number, eb: number, boundM: number): nu
 function pairDistance(net: RouteNetwork, h: number, which: number): void {
   const P = net.pairs;
   if (P[h + 3 + which] !== P[h + 3 + which]) {
-    const A = net.edges[P[h]];
-    const B = net.edges[P[h + 1]];
-    nodeDistanceInto(net, which < 2 ? A.fromNode : A.toNode, which % 2 === 0 ? B.fromNode : B.toNode, P[h + 2], h + 3 + which);
+    const a = P[h];
+    const b = P[h + 1];
+    nodeDistanceInto(net, which < 2 ? net.edgeFromNode[a] : net.edgeToNode[a], which % 2 === 0 ? net.edgeFromNode[b] : net.edgeToNode[b], P[h + 2], h + 3 + which);
   }
 }
 
@@ -306,10 +322,9 @@ export function locatePositions(net: RouteNetwork, p: PositionColumns, from: num
   for (let c = from; c < to; c++) {
     const e = (p.edge[c] = edgeAtChainage(net, p.route[c], p.chainage[c]));
     if (e < 0) continue;
-    const E = net.edges[e];
     // how far the position lies from the edge's from node and to node along the route: a path's first and last legs
-    p.leg0[c] = Math.max(p.chainage[c] - E.fromChainageM, 0);
-    p.leg1[c] = Math.max(E.toChainageM - p.chainage[c], 0);
+    p.leg0[c] = Math.max(p.chainage[c] - net.edgeFrom[e], 0);
+    p.leg1[c] = Math.max(net.edgeTo[e] - p.chainage[c], 0);
   }
 }
 
