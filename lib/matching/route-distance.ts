@@ -51,6 +51,15 @@ export interface RouteNetwork {
    */
   pairMask: number;
   pairs: Float64Array;
+  /**
+   * Node pairs, direct-mapped like the edge pairs: from, to (keys, 2 a slot), and what is known of their
+   * distance, which stays true whatever the caches forget: the exact distance (≥ 0), or −1 with the bound
+   * it is known to exceed. One probe instead of a binary search in the source's settled nodes.
+   */
+  nodeMask: number;
+  nodeKeys: Int32Array;
+  nodeDist: Float64Array;
+  nodeBound: Float64Array;
   /** Dijkstra's binary heap (lazy deletion: at most one entry per relaxation, so 2 × edges + 1 slots) */
   heapNode: Int32Array;
   heapKey: Float64Array;
@@ -103,6 +112,7 @@ export function makeRouteNetwork(graph: RouteGraph, routes: PlannedRouteInput[])
     poolNode: new Int32Array(1024), poolDist: new Float64Array(1024), poolUsed: 0, cached: 0,
     seen: new Int32Array(n), done: new Int32Array(n), tentative: new Float64Array(n), settledOrder: new Int32Array(n), searches: 0,
     pairMask: slots - 1, pairs: new Float64Array(8 * slots).fill(-1),
+    nodeMask: slots - 1, nodeKeys: new Int32Array(2 * slots).fill(-1), nodeDist: new Float64Array(slots), nodeBound: new Float64Array(slots),
     heapNode: new Int32Array(2 * graph.edges.length + 1), heapKey: new Float64Array(2 * graph.edges.length + 1),
   };
 }
@@ -211,6 +221,14 @@ function nodeDistanceInto(net: RouteNetwork, from: number, to: number, bound: nu
     net.pairs[at] = 0;
     return;
   }
+  const slot = (Math.imul(from, 0x9e3779b1) ^ to) & net.nodeMask;
+  if (net.nodeKeys[2 * slot] === from && net.nodeKeys[2 * slot + 1] === to) {
+    const known = net.nodeDist[slot];
+    if (known >= 0 || net.nodeBound[slot] >= bound) {
+      net.pairs[at] = known >= 0 && known <= bound ? known : Infinity;
+      return;
+    }
+  }
   const searched = net.sourceBound[from];
   let d = searched < 0 ? -1 : cachedDistance(net, from, to);
   if (searched < 0 || (searched < bound && d < 0)) {
@@ -236,6 +254,7 @@ function nodeDistanceInto(net: RouteNetwork, from: number, to: number, bound: nu
     (net.poolUsed += n), (net.sourceBound[from] = b), (net.sourceStart[from] = first), (net.sourceCount[from] = n);
     d = cachedDistance(net, from, to);
   }
+  (net.nodeKeys[2 * slot] = from), (net.nodeKeys[2 * slot + 1] = to), (net.nodeDist[slot] = d), (net.nodeBound[slot] = net.sourceBound[from]);
   net.pairs[at] = d >= 0 && d <= bound ? d : Infinity;
 }
 
