@@ -1,4 +1,4 @@
-import { cumulativeChainage, lineLengthM, localFrame, pointAtChainage } from './chainage';
+import { cumulativeChainage, lineLengthM, localFrame, pathLengthM, pointAtChainage } from './chainage';
 import type { RouteObservations, SectionDraft, SectionOptions, SectionStatus } from './section-types';
 import { SortedWindow, WindowExtremes } from './sliding-window';
 import type { LonLat } from './types';
@@ -381,7 +381,7 @@ export function buildRouteSections(route: { ref: string; coords: LonLat[] }, sou
       toChainageM: to,
       status,
       coords,
-      lengthM: lineLengthM(coords),
+      lengthM: pathLengthM(coords),
       maxOffsetM: offsets.length ? Math.max(...offsets) : 0,
       p95OffsetM: quantile(offsets, 0.95),
       accuracyM,

@@ -80,6 +80,17 @@ export function lineLengthM(coords: LonLat[]): number {
   return coords.length < 2 ? 0 : cachedCumulative(coords)[coords.length - 1];
 }
 
+/**
+ * lineLengthM's sum (the same segments in the same order, so the same number) without keeping it: for a
+ * line made once and measured once, such as a section's as-built line, a cache entry is only garbage.
+ * `pathLengthM([[0, 0], [1, 0]])` → 111319.4908
+ */
+export function pathLengthM(coords: LonLat[]): number {
+  let sum = 0;
+  for (let i = 1; i < coords.length; i++) sum += distanceM(coords[i - 1], coords[i]);
+  return sum;
+}
+
 /** The segment holding chainage `s`: the last i with cum[i] <= s, below the last vertex. */
 function segmentAt(cum: readonly number[], s: number): number {
   let lo = 0;

@@ -1,7 +1,7 @@
 import geodesic from 'geographiclib-geodesic';
 import { afterAll, describe, expect, it } from 'vitest';
 import { closeDb, getDb } from '@/db/client';
-import { cumulativeChainage, lineLengthM, pointAtChainage, projectOntoLine } from '@/lib/matching/chainage';
+import { cumulativeChainage, lineLengthM, pathLengthM, pointAtChainage, projectOntoLine } from '@/lib/matching/chainage';
 import type { LonLat } from '@/lib/matching/types';
 import { mulberry32 } from '@/lib/records/seeded-random';
 
@@ -46,6 +46,18 @@ describe('lineLengthM', () => {
     // GeographicLib documentation example [published]: WGS 84 inverse (−41.32, 174.81) → (40.96, −5.50),
     // s12 = 19 959 679.26735382 m
     expect(Math.abs(lineLengthM([[174.81, -41.32], [-5.5, 40.96]]) - 19_959_679.26735382)).toBeLessThan(0.001);
+  });
+
+  it('pathLengthM, the uncached sum, is the same number as lineLengthM and as GeographicLib\'s segment distances summed in order', () => {
+    for (const [i, [, origin]] of CITIES.entries()) {
+      const coords = streetLine(origin, 3 + i * 7, 200 + i);
+      let sum = 0;
+      for (let k = 1; k < coords.length; k++) sum += WGS84.Inverse(coords[k - 1][1], coords[k - 1][0], coords[k][1], coords[k][0]).s12!;
+      expect(pathLengthM(coords)).toBe(sum);
+      expect(pathLengthM(coords)).toBe(lineLengthM(coords));
+    }
+    expect(pathLengthM([])).toBe(0);
+    expect(pathLengthM([[13.4, 52.5]])).toBe(0);
   });
 
   it('gives 1° of longitude on the equator', () => {
