@@ -1,7 +1,7 @@
 // node --import tsx scripts/bench-match.ts — the reconciliation job's service function (reconcileProject: HMM
 // map matching, then the sections of every route) on a generated ~30 km / 2,000-route network and one upload of
 // 100,000 handheld fixes, then a naive baseline (@turf/nearest-point-on-line onto every route) in the same run.
-//   BENCH_FIXES=100000 BENCH_RUNS=3 BENCH_WARMUP_FIXES=20000 BENCH_WARMUP_RUNS=4 BENCH_NAIVE_FIXES=2000
+//   BENCH_FIXES=100000 BENCH_RUNS=5 BENCH_WARMUP_FIXES=20000 BENCH_WARMUP_RUNS=4 BENCH_NAIVE_FIXES=2000
 //
 // Each measured run is a process of its own, as a job worker is: it reads the plan and the fixes (here from
 // a JSON file; the job reads them from the database), warms up on a smaller upload over the same network
@@ -22,7 +22,7 @@ import type { PlannedRouteInput } from '../lib/matching/types';
 import { gridScenario } from '../tests/unit/matching/scenario';
 
 const FIXES = Number(process.env.BENCH_FIXES ?? 100_000);
-const RUNS = Math.max(1, Number(process.env.BENCH_RUNS ?? 3));
+const RUNS = Math.max(1, Number(process.env.BENCH_RUNS ?? 5));
 const WARMUP_FIXES = Number(process.env.BENCH_WARMUP_FIXES ?? 20_000);
 const WARMUP_RUNS = Math.max(1, Number(process.env.BENCH_WARMUP_RUNS ?? 4));
 const NAIVE = Number(process.env.BENCH_NAIVE_FIXES ?? 2_000);
