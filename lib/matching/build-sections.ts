@@ -91,8 +91,8 @@ const margin = (s: RouteObservations, o: Required<SectionOptions>) => (s.surveyG
 const seen = (s: RouteObservations, o: Required<SectionOptions>) => s.intervals ?? observedIntervals(s.fixes, o.bridgeM, margin(s, o));
 
 /**
- * Fixes sorted by chainage, as columns: each bin's windows are then index ranges found by binary search.
- * The ranges hold exactly the fixes that `Math.abs(chainage − c) <= w` keeps, in the same order, since
+ * Fixes sorted by chainage, as columns: each bin's windows are then index ranges, their bounds walked
+ * forward as the bins go. The ranges hold exactly the fixes that `Math.abs(chainage − c) <= w` keeps, in the same order, since
  * that distance falls monotonically towards c on either side.
  */
 interface SortedFixes {
@@ -143,28 +143,20 @@ function sortedColumns(fixes: RouteObservations['fixes']): SortedFixes {
   return out;
 }
 
-/** First index whose chainage is not more than w below c. */
-function windowStart(ch: Float64Array, c: number, w: number): number {
-  let lo = 0;
-  let hi = ch.length;
-  while (lo < hi) {
-    const mid = (lo + hi) >> 1;
-    if (ch[mid] < c && Math.abs(ch[mid] - c) > w) lo = mid + 1;
-    else hi = mid;
-  }
-  return lo;
+/**
+ * First index whose chainage is not more than w below c, walked on from `p`, the answer for a smaller c:
+ * the bins ask with c rising metre by metre, and the answer never moves back (c − chainage only grows
+ * with c, under rounding too), so each index is passed once per source.
+ */
+function windowStart(ch: Float64Array, c: number, w: number, p: number): number {
+  while (p < ch.length && ch[p] < c && Math.abs(ch[p] - c) > w) p++;
+  return p;
 }
 
-/** First index whose chainage is more than w above c. */
-function windowEnd(ch: Float64Array, c: number, w: number): number {
-  let lo = 0;
-  let hi = ch.length;
-  while (lo < hi) {
-    const mid = (lo + hi) >> 1;
-    if (ch[mid] > c && Math.abs(ch[mid] - c) > w) hi = mid;
-    else lo = mid + 1;
-  }
-  return lo;
+/** First index whose chainage is more than w above c, walked on from `p`, the answer for a smaller c. */
+function windowEnd(ch: Float64Array, c: number, w: number, p: number): number {
+  while (p < ch.length && !(ch[p] > c && Math.abs(ch[p] - c) > w)) p++;
+  return p;
 }
 
 /** trimmedMean of the first `n` values of an ascending array: the same sum in the same order. */
@@ -215,7 +207,8 @@ function smoothBins(route: LonLat[], length: number, sources: RouteObservations[
   const columns = sources.map((s) => sortedColumns(s.fixes));
   const scratch = new Float64Array(Math.max(1, ...sources.map((s) => s.fixes.length)));
   // per source, made when first used: its window, its ring and the ring's time span, slid metre by metre
-  const slides = columns.map(() => null as null | { inner: SortedWindow; ring: SortedWindow; times: WindowExtremes });
+  // and the six window bounds it last found (inner, outer ring and inner ring: start and end each)
+  const slides = columns.map(() => null as null | { inner: SortedWindow; ring: SortedWindow; times: WindowExtremes; at: Int32Array });
   const bins: Bin[] = [];
   for (let i = 0; i < nb; i++) {
     const c = Math.min(length, i + 0.5);
@@ -234,10 +227,11 @@ function smoothBins(route: LonLat[], length: number, sources: RouteObservations[
     }
     const s = sources[best];
     const { chainage, offset, t } = columns[best];
-    const slide = (slides[best] ??= { inner: new SortedWindow(offset), ring: new SortedWindow(offset), times: new WindowExtremes(t) });
+    const slide = (slides[best] ??= { inner: new SortedWindow(offset), ring: new SortedWindow(offset), times: new WindowExtremes(t), at: new Int32Array(6) });
+    const at = slide.at;
     const w = s.surveyGrade ? Math.max(1, o.windowM / 10) : o.windowM;
-    const n0 = windowStart(chainage, c, w);
-    const n1 = windowEnd(chainage, c, w);
+    const n0 = (at[0] = windowStart(chainage, c, w, at[0]));
+    const n1 = (at[1] = windowEnd(chainage, c, w, at[1]));
     let count = n1 - n0;
     let centre: number;
     if (count > 0) {
@@ -259,10 +253,10 @@ function smoothBins(route: LonLat[], length: number, sources: RouteObservations[
       // the GNSS bias drifts over a minute or so: measure the offset against its wider neighbourhood,
       // and allow for how far the bias can wander within that neighbourhood's time span
       // the ring around the window, not the window itself, so that a detour does not pull its own baseline
-      const w0 = windowStart(chainage, c, 4 * o.windowM);
-      const w1 = windowEnd(chainage, c, 4 * o.windowM);
-      const r0 = windowStart(chainage, c, 2 * o.windowM);
-      const r1 = windowEnd(chainage, c, 2 * o.windowM);
+      const w0 = (at[2] = windowStart(chainage, c, 4 * o.windowM, at[2]));
+      const w1 = (at[3] = windowEnd(chainage, c, 4 * o.windowM, at[3]));
+      const r0 = (at[4] = windowStart(chainage, c, 2 * o.windowM, at[4]));
+      const r1 = (at[5] = windowEnd(chainage, c, 2 * o.windowM, at[5]));
       const ringSize = r0 - w0 + (w1 - r1);
       let basisSize: number;
       slide.ring.moveTo(w0, r0, r1, w1);

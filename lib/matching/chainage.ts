@@ -44,14 +44,21 @@ export function distanceM(a: LonLat, b: LonLat): number {
 // A route's chainages are asked for again and again in one reconciliation (graph, candidate index, sections),
 // each time with GeographicLib: they are kept per coordinate array, with a copy of its values that must
 // still match, so an array changed in place is measured afresh.
-const chainageCache = new WeakMap<LonLat[], { values: Float64Array; cum: number[] }>();
+const chainageCache = new WeakMap<LonLat[], ChainageEntry>();
 
-function cachedCumulative(coords: LonLat[]): readonly number[] {
+interface ChainageEntry {
+  values: Float64Array;
+  cum: number[];
+  /** each segment's geodesic (GeographicLib InverseLine), made when a position on it is first asked for */
+  lines: (ReturnType<typeof WGS84.InverseLine> | undefined)[];
+}
+
+function cachedEntry(coords: LonLat[]): ChainageEntry {
   const hit = chainageCache.get(coords);
   if (hit && hit.values.length === 2 * coords.length) {
     let same = true;
     for (let i = 0; same && i < coords.length; i++) same = hit.values[2 * i] === coords[i][0] && hit.values[2 * i + 1] === coords[i][1];
-    if (same) return hit.cum;
+    if (same) return hit;
   }
   const cum = new Array<number>(coords.length);
   const values = new Float64Array(2 * coords.length);
@@ -61,9 +68,12 @@ function cachedCumulative(coords: LonLat[]): readonly number[] {
     cum[i] = sum;
     (values[2 * i] = coords[i][0]), (values[2 * i + 1] = coords[i][1]);
   }
-  chainageCache.set(coords, { values, cum });
-  return cum;
+  const entry: ChainageEntry = { values, cum, lines: [] };
+  chainageCache.set(coords, entry);
+  return entry;
 }
+
+const cachedCumulative = (coords: LonLat[]): readonly number[] => cachedEntry(coords).cum;
 
 /**
  * Metres from the start at each vertex, e.g. `cumulativeChainage([[0, 0], [1, 0]])` → `[0, 111319.49]`.
@@ -103,10 +113,7 @@ function segmentAt(cum: readonly number[], s: number): number {
   return lo;
 }
 
-function positionOnSegment(a: LonLat, b: LonLat, s: number): LonLat {
-  const p = WGS84.InverseLine(a[1], a[0], b[1], b[0]).Position(s);
-  return [p.lon2 ?? a[0], p.lat2 ?? a[1]];
-}
+
 
 /**
  * The position `chainageM` metres along the line, on the geodesic of its segment; clamped to the ends.
@@ -115,11 +122,16 @@ function positionOnSegment(a: LonLat, b: LonLat, s: number): LonLat {
 export function pointAtChainage(coords: LonLat[], chainageM: number): LonLat {
   if (coords.length === 0) throw new RangeError('pointAtChainage needs at least one position');
   if (coords.length === 1 || chainageM <= 0) return [coords[0][0], coords[0][1]];
-  const cum = cachedCumulative(coords);
+  const entry = cachedEntry(coords);
+  const cum = entry.cum;
   const last = coords.length - 1;
   if (chainageM >= cum[last]) return [coords[last][0], coords[last][1]];
   const i = segmentAt(cum, chainageM);
-  return positionOnSegment(coords[i], coords[i + 1], chainageM - cum[i]);
+  const [a, b] = [coords[i], coords[i + 1]];
+  // the segment's geodesic, solved once however many positions are asked for on it
+  const line = (entry.lines[i] ??= WGS84.InverseLine(a[1], a[0], b[1], b[0]));
+  const p = line.Position(chainageM - cum[i]);
+  return [p.lon2 ?? a[0], p.lat2 ?? a[1]];
 }
 
 export interface Projection {
