@@ -4,13 +4,22 @@ import type { LonLat } from './types';
 
 /** Local linear fit of x over positions lo…hi (inclusive), evaluated at i: unbiased at a run's ends, unlike a moving average. */
 export function localLinear(xs: number[], i: number, lo: number, hi: number): number {
+  return localLinearFrom(xs, 0, i, lo, hi);
+}
+
+/** localLinear over the values xs[base …] (a stretch of a longer column): the same arithmetic, no copy. */
+export function localLinearFrom(xs: ArrayLike<number>, base: number, i: number, lo: number, hi: number): number {
   const n = hi - lo + 1;
-  if (n < 3) return xs.slice(lo, hi + 1).reduce((a, b) => a + b, 0) / n;
+  if (n < 3) {
+    let sum = 0;
+    for (let k = lo; k <= hi; k++) sum += xs[base + k];
+    return sum / n;
+  }
   let st = 0;
   let sx = 0;
   let stt = 0;
   let stx = 0;
-  for (let k = lo; k <= hi; k++) (st += k), (sx += xs[k]), (stt += k * k), (stx += k * xs[k]);
+  for (let k = lo; k <= hi; k++) (st += k), (sx += xs[base + k]), (stt += k * k), (stx += k * xs[base + k]);
   const slope = (n * stx - st * sx) / (n * stt - st * st);
   return (sx - slope * st) / n + slope * i;
 }

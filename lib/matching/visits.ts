@@ -1,5 +1,5 @@
 import { lineLengthM, localFrame } from './chainage';
-import { localLinear } from './unplanned-line';
+import { localLinearFrom } from './unplanned-line';
 import type { Fix, MatchedFix } from './match-types';
 import type { LonLat, PlannedRouteInput, RouteGraph } from './types';
 
@@ -221,31 +221,35 @@ export function walkedIntervals(
     parts.push({ ref: v.ref, start, end: v.end });
     return parts;
   }).filter((v) => v.end - v.start >= opts.minFixes);
-  const smooth = visits.map((v) => {
-    const cs = matched.slice(v.start, v.end).map((m) => m.chainageM);
-    return cs.map((_, i) => localLinear(cs, i, Math.max(0, i - opts.k), Math.min(cs.length - 1, i + opts.k)));
-  });
+  // each visit's chainages smoothed, in one column by matched index (visits do not overlap)
+  const chain = new Float64Array(matched.length);
+  for (let q = 0; q < matched.length; q++) chain[q] = matched[q].chainageM;
+  const smooth = new Float64Array(matched.length);
+  for (const v of visits) {
+    const len = v.end - v.start;
+    for (let i = 0; i < len; i++) smooth[v.start + i] = localLinearFrom(chain, v.start, i, Math.max(0, i - opts.k), Math.min(len - 1, i + opts.k));
+  }
   const out = new Map<string, [number, number][]>();
   const add = (ref: string, a: number, b: number) => (out.get(ref) ?? out.set(ref, []).get(ref)!).push([a, b]);
-  const snapped = smooth.map((s) => [...s]);
+  const snapped = smooth.slice();
   visits.forEach((v, n) => {
-    const s = snapped[n];
+    const last = v.end - 1;
     // the visit's first fix meets the visit before, its last the one after
     for (let end = 0; end < 2; end++) {
-      const i = end === 0 ? 0 : s.length - 1;
+      const i = end === 0 ? v.start : last;
       const other = end === 0 ? visits[n - 1] : visits[n + 1];
-      const cOther = end === 0 ? smooth[n - 1]?.[smooth[n - 1].length - 1] : smooth[n + 1]?.[0];
-      const c = smooth[n][i];
+      const cOther = other === undefined ? undefined : end === 0 ? smooth[other.end - 1] : smooth[other.start];
+      const c = smooth[i];
       const direct = other && other.ref !== v.ref ? junction(v.ref, other.ref, c) : undefined;
       const via = other && other.ref !== v.ref && direct === undefined ? across(v.ref, c, other.ref, cOther!) : undefined;
       if (via) add(via.via, via.from, via.to);
-      s[i] = direct ?? via?.at ?? toEnd(v.ref, c);
+      snapped[i] = direct ?? via?.at ?? toEnd(v.ref, c);
     }
-    let a = s[0];
-    let b = s[0];
-    for (let i = 1; i < s.length; i++) {
-      if (Math.abs(s[i] - s[i - 1]) > opts.bridgeM) (add(v.ref, a, b), (a = b = s[i]));
-      else (a = Math.min(a, s[i])), (b = Math.max(b, s[i]));
+    let a = snapped[v.start];
+    let b = snapped[v.start];
+    for (let i = v.start + 1; i <= last; i++) {
+      if (Math.abs(snapped[i] - snapped[i - 1]) > opts.bridgeM) (add(v.ref, a, b), (a = b = snapped[i]));
+      else (a = Math.min(a, snapped[i])), (b = Math.max(b, snapped[i]));
     }
     add(v.ref, a, b);
   });
