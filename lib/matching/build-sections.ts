@@ -92,8 +92,8 @@ const seen = (s: RouteObservations, o: Required<SectionOptions>) => s.intervals 
 
 /**
  * Fixes sorted by chainage, as columns: each bin's windows are then index ranges, their bounds walked
- * forward as the bins go. The ranges hold exactly the fixes that `Math.abs(chainage − c) <= w` keeps, in the same order, since
- * that distance falls monotonically towards c on either side.
+ * forward as the bins go. The ranges hold exactly the fixes that `Math.abs(chainage − c) <= w` keeps, in
+ * the same order, since that distance falls monotonically towards c on either side.
  */
 interface SortedFixes {
   chainage: Float64Array;
