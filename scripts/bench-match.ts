@@ -77,9 +77,8 @@ function measureSearch(file: string): { searchS: number; perFix: number } {
   return { searchS: (performance.now() - t0) / 1000, perFix: found / fixes.length };
 }
 
-/** One measuring process: optional warm-up on the first WARMUP_FIXES fixes, then the whole upload once. */
+/** One measuring process: optional warm-up on the warm-up upload (the first WARMUP_FIXES fixes), then the whole upload once. */
 async function measure(file: string, warm: boolean): Promise<Measured> {
-  const read = () => readFixture(file);
   const warmupS: number[] = [];
   if (warm) {
     for (let k = 0; k < WARMUP_RUNS; k++) {
@@ -89,7 +88,7 @@ async function measure(file: string, warm: boolean): Promise<Measured> {
       warmupS.push((performance.now() - t) / 1000);
     }
   }
-  const plan = read();
+  const plan = readFixture(file);
   const t = performance.now();
   const { drafts, stats } = await reconcileProject(plan.routes, [uploadOf(plan.fixes)], { toleranceM: TOLERANCE_M, timings: true });
   const wholeS = (performance.now() - t) / 1000;

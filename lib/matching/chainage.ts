@@ -113,8 +113,6 @@ function segmentAt(cum: readonly number[], s: number): number {
   return lo;
 }
 
-
-
 /**
  * The position `chainageM` metres along the line, on the geodesic of its segment; clamped to the ends.
  * `pointAtChainage([[0, 0], [1, 0]], 111319.4908 / 2)` → `[0.5, 0]`

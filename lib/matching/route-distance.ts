@@ -11,9 +11,11 @@ export interface RoutePosition {
  * by chainage, and bounded Dijkstra results cached per source node.
  */
 export interface RouteNetwork {
-  /** graph edge indices of each route, by chainage; empty for routes the graph left out */
-  routeEdges: number[][];
-  /** the same lists flat (route k's edges are routeEdgeList[routeEdgeStart[k] … routeEdgeStart[k + 1] − 1]), with each edge's chainages: the hot lookups read no objects */
+  /**
+   * graph edge indices of each route, by chainage, flat: route k's are routeEdgeList[routeEdgeStart[k] …
+   * routeEdgeStart[k + 1] − 1], none for routes the graph left out; with each edge's chainages, so that the
+   * hot lookups read no objects
+   */
   routeEdgeStart: Int32Array;
   routeEdgeList: Int32Array;
   edgeFrom: Float64Array;
@@ -74,7 +76,7 @@ const PAIR_MIN_BOUND_M = 128;
 
 /**
  * Prepares `graph` (built from the same routes, in any order) for routeDistanceM.
- * `makeRouteNetwork(buildRouteGraph(routes), routes).routeEdges[0]` → the edges of routes[0], by chainage
+ * `edgeAtChainage(makeRouteNetwork(buildRouteGraph(routes), routes), 0, 0)` → the first edge of routes[0]
  */
 export function makeRouteNetwork(graph: RouteGraph, routes: PlannedRouteInput[]): RouteNetwork {
   const byRef = new Map<string, number>();
@@ -109,7 +111,7 @@ export function makeRouteNetwork(graph: RouteGraph, routes: PlannedRouteInput[])
   // table stays in the processor's cache
   const slots = Math.min(1 << 14, Math.max(256, 2 ** Math.ceil(Math.log2(32 * graph.edges.length + 1))));
   return {
-    routeEdges, routeEdgeStart, routeEdgeList, edgeFrom, edgeTo, edgeFromNode, edgeToNode, edges: graph.edges, adjStart, adjNode, adjLen,
+    routeEdgeStart, routeEdgeList, edgeFrom, edgeTo, edgeFromNode, edgeToNode, edges: graph.edges, adjStart, adjNode, adjLen,
     sourceBound: new Float64Array(n).fill(-1), sourceStart: new Int32Array(n), sourceCount: new Int32Array(n),
     poolNode: new Int32Array(1024), poolDist: new Float64Array(1024), poolUsed: 0, cached: 0,
     seen: new Int32Array(n), done: new Int32Array(n), tentative: new Float64Array(n), settledOrder: new Int32Array(n), searches: 0,
