@@ -23,6 +23,11 @@ export interface RouteNetwork {
   /** each edge's from and to node */
   edgeFromNode: Int32Array;
   edgeToNode: Int32Array;
+  /**
+   * 1 for a node only one edge meets (a crossing's far end): a path between two edges never runs through
+   * it, since leaving it means going back along its one edge
+   */
+  deadEnd: Uint8Array;
   edges: RouteGraph['edges'];
   adjStart: Int32Array;
   adjNode: Int32Array;
@@ -99,6 +104,7 @@ export function makeRouteNetwork(graph: RouteGraph, routes: PlannedRouteInput[])
   for (const e of graph.edges) degree[e.fromNode]++, degree[e.toNode]++;
   const adjStart = new Int32Array(n + 1);
   for (let i = 0; i < n; i++) adjStart[i + 1] = adjStart[i] + degree[i];
+  const deadEnd = Uint8Array.from(degree.subarray(0, n), (d) => (d === 1 ? 1 : 0));
   const fill = adjStart.slice(0, n);
   const adjNode = new Int32Array(adjStart[n]);
   const adjLen = new Float64Array(adjStart[n]);
@@ -111,7 +117,7 @@ export function makeRouteNetwork(graph: RouteGraph, routes: PlannedRouteInput[])
   // table stays in the processor's cache
   const slots = Math.min(1 << 14, Math.max(256, 2 ** Math.ceil(Math.log2(32 * graph.edges.length + 1))));
   return {
-    routeEdgeStart, routeEdgeList, edgeFrom, edgeTo, edgeFromNode, edgeToNode, edges: graph.edges, adjStart, adjNode, adjLen,
+    routeEdgeStart, routeEdgeList, edgeFrom, edgeTo, edgeFromNode, edgeToNode, deadEnd, edges: graph.edges, adjStart, adjNode, adjLen,
     sourceBound: new Float64Array(n).fill(-1), sourceStart: new Int32Array(n), sourceCount: new Int32Array(n),
     poolNode: new Int32Array(1024), poolDist: new Float64Array(1024), poolUsed: 0, cached: 0,
     seen: new Int32Array(n), done: new Int32Array(n), tentative: new Float64Array(n), settledOrder: new Int32Array(n), searches: 0,
@@ -314,8 +320,15 @@ export function positionDistance(net: RouteNetwork, p: PositionColumns, x: numbe
   // the four paths leg → node distance → leg (0: from–from, 1: from–to, 2: to–from, 3: to–to); a node
   // distance is looked for only when its path can still be the shortest under the bound (it is exact up
   // to the rest). One loop, not a helper a path: a number a helper returns would be boxed.
+  // a path through a dead end (x's or y's) is never the shortest: the edge's other end is nearer along it
+  const dead = net.deadEnd;
+  const af = dead[net.edgeFromNode[ea]];
+  const at = dead[net.edgeToNode[ea]];
+  const bf = dead[net.edgeFromNode[eb]];
+  const bt = dead[net.edgeToNode[eb]];
   let best = Infinity;
   for (let which = 0; which < 4; which++) {
+    if ((which < 2 ? af : at) + (which % 2 === 0 ? bf : bt) > 0) continue;
     const start = which < 2 ? a0 : a1;
     const end = which % 2 === 0 ? b0 : b1;
     const rest = Math.min(boundM, best) - start - end;

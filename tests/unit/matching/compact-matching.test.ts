@@ -66,6 +66,68 @@ describe('route distances a layer at a time', () => {
     expect(finite).toBeGreaterThan(1000);
   });
 
+  it('routeDistanceM equals a plain Dijkstra with both positions spliced into their edges, dead ends and all', () => {
+    // the reference: the graph as listed (no dead-end shortcut, no caches), each position a node of its own
+    // joined to its edge's two ends by its legs, textbook Dijkstra with a linear scan for the nearest node
+    const gs = gridScenario(6, { blocks: 4, fixes: 10 });
+    const graph = buildRouteGraph(gs.routes);
+    const net = makeRouteNetwork(graph, gs.routes);
+    const refIndex = new Map(gs.routes.map((r, i) => [r.ref, i]));
+    const degree = new Map<number, number>();
+    for (const e of graph.edges) for (const v of [e.fromNode, e.toNode]) degree.set(v, (degree.get(v) ?? 0) + 1);
+    const base = new Map<number, [number, number][]>();
+    const link = (adj: Map<number, [number, number][]>, u: number, v: number, w: number) => {
+      adj.set(u, [...(adj.get(u) ?? []), [v, w]]);
+      adj.set(v, [...(adj.get(v) ?? []), [u, w]]);
+    };
+    for (const e of graph.edges) link(base, e.fromNode, e.toNode, e.lengthM);
+    const plain = (ea: number, ca: number, eb: number, cb: number): number => {
+      const extra = new Map<number, [number, number][]>();
+      const [A, B] = [-1, -2];
+      for (const [node, e, c] of [[A, graph.edges[ea], ca], [B, graph.edges[eb], cb]] as const) {
+        link(extra, node, e.fromNode, c - e.fromChainageM);
+        link(extra, node, e.toNode, e.toChainageM - c);
+      }
+      // the queue: [distance, node] kept sorted by distance (binary insertion)
+      const queue: [number, number][] = [[0, A]];
+      const done = new Set<number>();
+      while (queue.length > 0) {
+        const [d, u] = queue.shift()!;
+        if (done.has(u)) continue;
+        if (u === B) return d;
+        done.add(u);
+        for (const [v, w] of [...(base.get(u) ?? []), ...(extra.get(u) ?? [])]) {
+          if (done.has(v)) continue;
+          let lo = 0;
+          for (let hi = queue.length; lo < hi; ) {
+            const mid = (lo + hi) >> 1;
+            if (queue[mid][0] <= d + w) lo = mid + 1;
+            else hi = mid;
+          }
+          queue.splice(lo, 0, [d + w, v]);
+        }
+      }
+      return Infinity;
+    };
+    const rng = mulberry32(9);
+    let deadEnds = 0;
+    let compared = 0;
+    for (let t = 0; t < 300; t++) {
+      const [ea, eb] = [Math.floor(rng() * graph.edges.length), Math.floor(rng() * graph.edges.length)];
+      const [a, b] = [graph.edges[ea], graph.edges[eb]];
+      if (a.ref === b.ref) continue;
+      const ca = a.fromChainageM + rng() * (a.toChainageM - a.fromChainageM);
+      const cb = b.fromChainageM + rng() * (b.toChainageM - b.fromChainageM);
+      const got = routeDistanceM(net, { route: refIndex.get(a.ref)!, chainageM: ca }, { route: refIndex.get(b.ref)!, chainageM: cb }, 1e6);
+      expect(got).toBeCloseTo(plain(ea, ca, eb, cb), 9);
+      if ([a.fromNode, a.toNode, b.fromNode, b.toNode].some((v) => degree.get(v) === 1)) deadEnds++;
+      compared++;
+    }
+    expect(compared).toBeGreaterThan(250);
+    // most pairs have a crossing's far end among their edges' nodes: the shortcut past dead ends is exercised
+    expect(deadEnds).toBeGreaterThan(100);
+  });
+
   it('routeDistanceM across a junction is the legs to it plus nothing: both sides of one street corner', () => {
     const sc = streetScenario(3);
     const net = makeRouteNetwork(buildRouteGraph(sc.routes), sc.routes);
