@@ -1,6 +1,6 @@
 import { appendCandidates, CandidateColumns, makeCandidateIndex, metresPerDegreeLat, metresPerDegreeLon, projectInFrame, type CandidateIndex } from './candidates';
 import { resolveMatchOptions, type Fix, type MatchOptions, type MatchResult, type ResolvedMatchOptions } from './match-types';
-import { locatePositions, makeRouteNetwork, positionDistance, type PositionColumns, type RouteNetwork } from './route-distance';
+import { locatePositions, makeRouteNetwork, positionDistanceInto, type PositionColumns, type RouteNetwork } from './route-distance';
 import type { PlannedRouteInput, RouteGraph } from './types';
 import { viterbiPruned } from './viterbi';
 
@@ -187,11 +187,10 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
     for (let k = 0, e = 0; k < m; k++) for (let j = 0; j < n[k]; j++) emissions[e++] = emissionLogProb(cands.distance[at[k] + j], o.sigmaM);
     const betaM = o.betaM;
     // route distances are the costly part: asked for only where a transition can still change the best path
-    const { path } = viterbiPruned(n, emissions, -logBeta, (k, i, j) => {
-      const x = at[k - 1] + i;
-      const y = at[k] + j;
-      const d = positionDistance(net, pos, x, y, bound[k]);
-      return d === Infinity ? -Infinity : -Math.abs(d - gc[k]) / betaM - logBeta;
+    const { path } = viterbiPruned(n, emissions, -logBeta, (k, i, j, out) => {
+      positionDistanceInto(net, pos, at[k - 1] + i, at[k] + j, bound, k);
+      const d = net.distance[0];
+      out[0] = d === Infinity ? -Infinity : -Math.abs(d - gc[k]) / betaM - logBeta;
     });
     for (let k = 0; k < m; k++) path[k] += at[k];
     return path;
@@ -215,7 +214,9 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
   };
   const searched = (k: number) => first[k + 1] > first[k];
 
-  // between's scratch, grown as needed: positions on the two routes, two a layer, with their scores
+  // between's scratch, grown as needed: positions on the two routes, two a layer, with their scores, and
+  // the bound of the step being scored
+  const stepBound = new Float64Array(1);
   let st = { route: new Int32Array(0), chainage: new Float64Array(0), offset: new Float64Array(0), distance: new Float64Array(0), edge: new Int32Array(0), leg0: new Float64Array(0), leg1: new Float64Array(0), score: new Float64Array(0), back: new Int8Array(0) };
   /**
    * The skipped fixes between kept layers ka and kb when the kept ones chose different routes (a turn at a
@@ -262,7 +263,7 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
     for (let j = 1; j < span; j++) {
       const k = ka + j;
       const gc = dist(plane, chain[k - 1], chain[k]);
-      const bound = 4 * gc + 50;
+      stepBound[0] = 4 * gc + 50;
       let reached = false;
       for (let t = 0; t < 2; t++) {
         const y = 2 * j + t;
@@ -274,7 +275,8 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
           const q = r === 0 ? first : 1 - first;
           const x = 2 * (j - 1) + q;
           if (st.route[x] < 0 || score[x] === -Infinity || score[x] - logBeta + e < score[y]) continue;
-          const d = positionDistance(net, st, x, y, bound);
+          positionDistanceInto(net, st, x, y, stepBound, 0);
+          const d = net.distance[0];
           if (d === Infinity) continue;
           const v = score[x] - Math.abs(d - gc) / o.betaM - logBeta + e;
           // ties go to state 0, as in index order

@@ -70,6 +70,8 @@ export interface RouteNetwork {
   /** Dijkstra's binary heap (lazy deletion: at most one entry per relaxation, so 2 × edges + 1 slots) */
   heapNode: Int32Array;
   heapKey: Float64Array;
+  /** where positionDistanceInto writes its answer */
+  distance: Float64Array;
 }
 
 // a walk seldom needs more than a few hundred source nodes; a full clear is cheaper than an LRU at this size
@@ -124,6 +126,7 @@ export function makeRouteNetwork(graph: RouteGraph, routes: PlannedRouteInput[])
     pairMask: slots - 1, pairs: new Float64Array(8 * slots).fill(-1),
     nodeMask: slots - 1, nodeKeys: new Int32Array(2 * slots).fill(-1), nodeDist: new Float64Array(slots), nodeBound: new Float64Array(slots),
     heapNode: new Int32Array(2 * graph.edges.length + 1), heapKey: new Float64Array(2 * graph.edges.length + 1),
+    distance: new Float64Array(1),
   };
 }
 
@@ -223,10 +226,12 @@ function clearSources(net: RouteNetwork): void {
 }
 
 /**
- * Shortest distance between two nodes if it is ≤ bound, else Infinity, cached per source node, written to
- * net.pairs[at], the pair's slot, so that no number crosses the call.
+ * Shortest distance between two nodes if it is ≤ the bound net.pairs[boundAt], else Infinity, cached per
+ * source node, written to net.pairs[at], the pair's slot: no number crosses the call (V8 boxes a number
+ * passed to or returned from a call it does not inline, an allocation each).
  */
-function nodeDistanceInto(net: RouteNetwork, from: number, to: number, bound: number, at: number): void {
+function nodeDistanceInto(net: RouteNetwork, from: number, to: number, boundAt: number, at: number): void {
+  const bound = net.pairs[boundAt];
   if (from === to) {
     net.pairs[at] = 0;
     return;
@@ -294,23 +299,38 @@ function pairDistance(net: RouteNetwork, h: number, which: number): void {
   if (P[h + 3 + which] !== P[h + 3 + which]) {
     const a = P[h];
     const b = P[h + 1];
-    nodeDistanceInto(net, which < 2 ? net.edgeFromNode[a] : net.edgeToNode[a], which % 2 === 0 ? net.edgeFromNode[b] : net.edgeToNode[b], P[h + 2], h + 3 + which);
+    nodeDistanceInto(net, which < 2 ? net.edgeFromNode[a] : net.edgeToNode[a], which % 2 === 0 ? net.edgeFromNode[b] : net.edgeToNode[b], h + 2, h + 3 + which);
   }
 }
 
 /**
  * Network distance between positions x and y of `p` (routeDistanceM for positions whose edges and legs
- * locatePositions has found): the matcher asks with indices, so that no number crosses a call.
+ * locatePositions has found).
  * `positionDistance(net, cols, 0, 1, 100)` → 15 for positions 10 m and 25 m along one route
  */
 export function positionDistance(net: RouteNetwork, p: PositionColumns, x: number, y: number, boundM: number): number {
+  positionDistanceInto(net, p, x, y, Float64Array.of(boundM), 0);
+  return net.distance[0];
+}
+
+/**
+ * positionDistance bounded by bounds[b], written to net.distance[0], for the matcher's hot loops: it asks
+ * with indices and reads the answer from a column, so that no number crosses a call (V8 boxes a number
+ * passed to or returned from a call it does not inline, an allocation each).
+ */
+export function positionDistanceInto(net: RouteNetwork, p: PositionColumns, x: number, y: number, bounds: Float64Array, b: number): void {
+  const boundM = bounds[b];
   if (p.route[x] === p.route[y]) {
     const d = Math.abs(p.chainage[x] - p.chainage[y]);
-    return d <= boundM ? d : Infinity;
+    net.distance[0] = d <= boundM ? d : Infinity;
+    return;
   }
   const ea = p.edge[x];
   const eb = p.edge[y];
-  if (ea < 0 || eb < 0) return Infinity;
+  if (ea < 0 || eb < 0) {
+    net.distance[0] = Infinity;
+    return;
+  }
   const h = pairSlot(net, ea, eb, boundM);
   const P = net.pairs;
   const a0 = p.leg0[x];
@@ -337,7 +357,7 @@ export function positionDistance(net: RouteNetwork, p: PositionColumns, x: numbe
     const d = P[h + 3 + which];
     if (d <= rest) best = Math.min(best, start + d + end);
   }
-  return best <= boundM ? best : Infinity;
+  net.distance[0] = best <= boundM ? best : Infinity;
 }
 
 /** Positions on the plan in flat columns with their edges (edgeAtChainage) and legs to the edge's ends: a trace's candidates. */

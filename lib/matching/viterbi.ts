@@ -42,14 +42,14 @@ export function viterbiLayers(counts: ArrayLike<number>, emissions: Float64Array
   let trans = new Float64Array(0);
   let filled = -1;
   // the pruned recursion with no bound on a transition asks for every one: the layer's matrix, filled once
-  return viterbiPruned(counts, emissions, Infinity, (k, i, j) => {
+  return viterbiPruned(counts, emissions, Infinity, (k, i, j, out) => {
     if (filled !== k) {
       const size = counts[k - 1] * counts[k];
       if (trans.length < size) trans = new Float64Array(size);
       transitions(k, trans);
       filled = k;
     }
-    return trans[i * counts[k] + j];
+    out[0] = trans[i * counts[k] + j];
   });
 }
 
@@ -59,15 +59,16 @@ export function viterbiLayers(counts: ArrayLike<number>, emissions: Float64Array
  * predecessor so far beats what any less likely predecessor could reach even with that transition, the rest
  * are not asked. Predecessors are tried most likely first; ties go to the lowest predecessor index, as in
  * index order, so the path is that of the full recursion (maxTransition = Infinity asks for every one).
- * `transition(k, i, j)` is the log probability from state i of layer k − 1 to state j of layer k,
- * ≤ maxTransition. A layer nothing reaches starts a new chain.
- * `viterbiPruned([2, 2], Float64Array.of(0, -5, -5, 0), 0, () => 0).path` → `Int32Array [0, 1]`
+ * `transition(k, i, j, out)` sets out[0] to the log probability from state i of layer k − 1 to state j of
+ * layer k, ≤ maxTransition (written, not returned: a number returned from a call is boxed, one allocation a
+ * transition). A layer nothing reaches starts a new chain.
+ * `viterbiPruned([2, 2], Float64Array.of(0, -5, -5, 0), 0, (k, i, j, out) => (out[0] = 0)).path` → `Int32Array [0, 1]`
  */
 export function viterbiPruned(
   counts: ArrayLike<number>,
   emissions: Float64Array,
   maxTransition: number,
-  transition: (layer: number, from: number, to: number) => number,
+  transition: (layer: number, from: number, to: number, out: Float64Array) => void,
 ): ViterbiResult {
   const n = counts.length;
   const offset = new Int32Array(n + 1);
@@ -87,6 +88,7 @@ export function viterbiPruned(
   /** the best final state of the chain ending just before each chain start */
   const chainEnds: number[] = [];
   let logProb = 0;
+  const asked = new Float64Array(1);
   const argmax = (a: Float64Array, m: number) => {
     let b = 0;
     for (let j = 1; j < m; j++) if (a[j] > a[b]) b = j;
@@ -114,7 +116,8 @@ export function viterbiPruned(
             const i = order[r];
             // no transition can lift this predecessor (or any after it) above the best so far
             if (prev[i] + maxTransition < best) break;
-            const s = prev[i] + transition(k, i, j);
+            transition(k, i, j, asked);
+            const s = prev[i] + asked[0];
             if (s > best || (s === best && s > -Infinity && i < from)) (best = s), (from = i);
           }
         }

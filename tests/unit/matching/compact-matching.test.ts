@@ -159,7 +159,7 @@ describe('viterbiLayers', () => {
       const plain = viterbi(counts, (k, j) => em[k][j], (k, i, j) => tr[k][i * counts[k] + j]);
       expect([...plain.path]).toEqual(best.path);
       // transitions are all ≤ 0 here: the pruned recursion may skip those that cannot win, never the winner
-      const pruned = viterbiPruned(counts, Float64Array.from(em.flat()), 0, (k, i, j) => tr[k][i * counts[k] + j]);
+      const pruned = viterbiPruned(counts, Float64Array.from(em.flat()), 0, (k, i, j, out) => (out[0] = tr[k][i * counts[k] + j]));
       expect([...pruned.path]).toEqual(best.path);
     }
   });
@@ -174,7 +174,7 @@ describe('viterbiLayers', () => {
       const em = counts.map((m) => Array.from({ length: m }, () => -Math.round(12 * rng())));
       const tr = counts.map((m, k) => Array.from({ length: k > 0 ? counts[k - 1] * m : 0 }, () => (rng() < 0.1 ? -Infinity : -Math.log(3) - Math.round(4 * rng()))));
       const full = viterbiLayers(counts, Float64Array.from(em.flat()), (k, out) => out.set(tr[k]));
-      const pruned = viterbiPruned(counts, Float64Array.from(em.flat()), -Math.log(3), (k, i, j) => (asked++, tr[k][i * counts[k] + j]));
+      const pruned = viterbiPruned(counts, Float64Array.from(em.flat()), -Math.log(3), (k, i, j, out) => (asked++, (out[0] = tr[k][i * counts[k] + j])));
       all += tr.reduce((n, t) => n + t.length, 0);
       expect([...pruned.path]).toEqual([...full.path]);
       expect(pruned.chainStarts).toEqual(full.chainStarts);
