@@ -1,18 +1,37 @@
 /**
  * Order statistics of a window sliding forward over a column of values: the section builder asks for a
  * trimmed mean and a median once a metre, and the windows of neighbouring metres share nearly all their
- * fixes. Instead of sorting each window afresh, the window's values are kept sorted and only the values that
- * enter or leave it are inserted or removed (a binary search and a memmove each).
+ * fixes. Instead of sorting each window afresh, the window's values are kept sorted; a move gathers the
+ * values that leave and those that enter, sorts the few of each, and merges them into the sorted values in
+ * one pass (one pass a move, not a binary search and a memmove a value).
  */
+
+/** Sorts the first n values of a in place: insertion sort for the handful a metre brings, else the engine's. */
+function sortFew(a: Float64Array, n: number): void {
+  if (n > 32) {
+    a.subarray(0, n).sort();
+    return;
+  }
+  for (let i = 1; i < n; i++) {
+    const v = a[i];
+    let j = i;
+    for (; j > 0 && a[j - 1] > v; j--) a[j] = a[j - 1];
+    a[j] = v;
+  }
+}
 
 /**
  * The values[i] for i in [a0, a1) ∪ [b0, b1), kept sorted, for windows whose four bounds never move back
- * (a0 ≤ a1 ≤ b0 ≤ b1). `sorted` holds them in ascending order, `size` how many.
+ * (a0 ≤ a1 ≤ b0 ≤ b1). `sorted` holds them in ascending order, `size` how many (read it after each move: a
+ * move writes the merge into a second array and swaps the two).
  * `const w = new SortedWindow(Float64Array.of(3, 1, 2)); w.moveTo(0, 3, 3, 3); w.sorted.subarray(0, w.size)` → `[1, 2, 3]`
  */
 export class SortedWindow {
-  readonly sorted: Float64Array;
+  sorted: Float64Array;
   size = 0;
+  private spare: Float64Array;
+  private entering: Float64Array;
+  private leaving: Float64Array;
   private a0 = 0;
   private a1 = 0;
   private b0 = 0;
@@ -20,6 +39,9 @@ export class SortedWindow {
 
   constructor(private readonly values: Float64Array) {
     this.sorted = new Float64Array(values.length);
+    this.spare = new Float64Array(values.length);
+    this.entering = new Float64Array(values.length);
+    this.leaving = new Float64Array(values.length);
   }
 
   /** The window becomes [a0, a1) ∪ [b0, b1); each bound at or beyond where it was. */
@@ -30,6 +52,9 @@ export class SortedWindow {
     const o3 = this.b1;
     if (a0 < o0 || a1 < o1 || b0 < o2 || b1 < o3) throw new RangeError('SortedWindow: a bound moved back');
     // only indices a bound passed over can have come in or gone out: walk those stretches, each index once
+    const { values, entering, leaving } = this;
+    let nIn = 0;
+    let nOut = 0;
     let done = -1;
     for (let k = 0; k < 4; k++) {
       const from = k === 0 ? o0 : k === 1 ? o1 : k === 2 ? o2 : o3;
@@ -37,39 +62,40 @@ export class SortedWindow {
       for (let i = from > done + 1 ? from : done + 1; i < to; i++) {
         const was = (i >= o0 && i < o1) || (i >= o2 && i < o3);
         const is = (i >= a0 && i < a1) || (i >= b0 && i < b1);
-        if (was && !is) this.remove(this.values[i]);
-        else if (is && !was) this.insert(this.values[i]);
+        if (was && !is) leaving[nOut++] = values[i];
+        else if (is && !was) entering[nIn++] = values[i];
         done = i;
       }
     }
     (this.a0 = a0), (this.a1 = a1), (this.b0 = b0), (this.b1 = b1);
-  }
-
-  /** first position whose value is ≥ v (lower) or > v (upper) */
-  private search(v: number, upper: boolean): number {
-    let lo = 0;
-    let hi = this.size;
-    const s = this.sorted;
-    while (lo < hi) {
-      const mid = (lo + hi) >> 1;
-      if (s[mid] < v || (upper && s[mid] === v)) lo = mid + 1;
-      else hi = mid;
+    if (nIn === 0 && nOut === 0) return;
+    sortFew(entering, nIn);
+    sortFew(leaving, nOut);
+    // merge: the kept values with the entering ones, each leaving value taken out once where it stands
+    const from = this.sorted;
+    const to = this.spare;
+    const n = this.size;
+    let i = 0;
+    let e = 0;
+    let l = 0;
+    let w = 0;
+    while (i < n) {
+      const v = from[i];
+      if (l < nOut && leaving[l] <= v) {
+        if (leaving[l] !== v) throw new RangeError(`SortedWindow: ${leaving[l]} is not in the window`);
+        l++;
+        i++;
+        continue;
+      }
+      while (e < nIn && entering[e] < v) to[w++] = entering[e++];
+      to[w++] = v;
+      i++;
     }
-    return lo;
-  }
-
-  private insert(v: number): void {
-    const at = this.search(v, true);
-    this.sorted.copyWithin(at + 1, at, this.size);
-    this.sorted[at] = v;
-    this.size++;
-  }
-
-  private remove(v: number): void {
-    const at = this.search(v, false);
-    if (at >= this.size || this.sorted[at] !== v) throw new RangeError(`SortedWindow: ${v} is not in the window`);
-    this.sorted.copyWithin(at, at + 1, this.size);
-    this.size--;
+    if (l < nOut) throw new RangeError(`SortedWindow: ${leaving[l]} is not in the window`);
+    while (e < nIn) to[w++] = entering[e++];
+    this.sorted = to;
+    this.spare = from;
+    this.size = w;
   }
 }
 
