@@ -132,13 +132,19 @@ export function stableOrder(keys: Float64Array): Int32Array {
 
 function sortedColumns(fixes: RouteObservations['fixes']): SortedFixes {
   const n = fixes.length;
+  // the objects read once, in their order (a read in chainage order jumps about the heap), then permuted as columns
   const keys = new Float64Array(n);
-  for (let i = 0; i < n; i++) keys[i] = fixes[i].chainageM;
+  const offsets = new Float64Array(n);
+  const times = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    const f = fixes[i];
+    (keys[i] = f.chainageM), (offsets[i] = f.offsetM), (times[i] = f.t ?? NaN);
+  }
   const order = stableOrder(keys);
   const out: SortedFixes = { chainage: new Float64Array(n), offset: new Float64Array(n), t: new Float64Array(n) };
   for (let i = 0; i < n; i++) {
-    const f = fixes[order[i]];
-    (out.chainage[i] = f.chainageM), (out.offset[i] = f.offsetM), (out.t[i] = f.t ?? NaN);
+    const j = order[i];
+    (out.chainage[i] = keys[j]), (out.offset[i] = offsets[j]), (out.t[i] = times[j]);
   }
   return out;
 }
