@@ -168,8 +168,10 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
   const cands = new CandidateColumns();
   // the candidates as positions: each one's graph edge and its legs to the edge's from and to node, found once
   const pos: PositionColumns = { route: cands.route, chainage: cands.chainage, edge: new Int32Array(cands.route.length), leg0: new Float64Array(cands.route.length), leg1: new Float64Array(cands.route.length) };
-  let chain: number[] = [];
-  let first: number[] = [0];
+  // the current chain's fixes (indices into fixes), chainLength of them: typed, each as long as the trace
+  const chain = new Int32Array(fixes.length);
+  let chainLength = 0;
+  const first = new Int32Array(fixes.length + 1);
 
   /**
    * Viterbi over layers of the current chain: layer k holds the candidates at[k] … at[k] + n[k] − 1 of fix
@@ -197,7 +199,7 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
   };
 
   // per layer of the current chain: whether it is kept for the recursion, and where it was placed
-  let kept: boolean[] = [];
+  const kept = new Uint8Array(fixes.length);
   const placed = { route: new Int32Array(64), chainage: new Float64Array(64), offset: new Float64Array(64), distance: new Float64Array(64) };
   const place = (k: number, route: number, chainageM: number, offsetM: number, distanceM: number) => {
     (placed.route[k] = route), (placed.chainage[k] = chainageM), (placed.offset[k] = offsetM), (placed.distance[k] = distanceM);
@@ -303,7 +305,7 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
   };
 
   const runChain = () => {
-    const L = chain.length;
+    const L = chainLength;
     if (L === 0) return;
     const tailEnd = cands.length;
     if (placed.route.length < L) {
@@ -360,7 +362,7 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
     // the fix that closed the chain may have its candidates in already: they start the next chain
     const [end, tail] = [first[L], tailEnd - first[L]];
     for (const col of [cands.route, cands.chainage, cands.distance, cands.offset, pos.edge, pos.leg0, pos.leg1]) col.copyWithin(0, end, end + tail);
-    (chain = []), (first = [0]), (kept = []), (cands.length = tail);
+    (chainLength = 0), (first[0] = 0), (cands.length = tail);
   };
 
   /** Edges and legs for the n candidates from `at` on, the position columns grown to the candidates'. */
@@ -390,14 +392,12 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
     };
     piece.forEach((i, k) => {
       if (spike[k]) return void outlierAt.push(i);
-      const d = lastKept >= 0 && chain.length > 0 ? dist(plane, lastKept, i) : Infinity;
+      const d = lastKept >= 0 && chainLength > 0 ? dist(plane, lastKept, i) : Infinity;
       const keepIt = !(d < o.thinM);
       // a skipped fix this close to a kept one has a route within the search radius (triangle inequality):
       // it is surely matched, and its candidates are only looked for if the recursion needs them
       if (!keepIt && far.length === 0 && lastNear + d <= o.searchRadiusM) {
-        chain.push(i);
-        kept.push(false);
-        first.push(cands.length);
+        (chain[chainLength] = i), (kept[chainLength] = 0), (first[++chainLength] = cands.length);
         return;
       }
       const at = cands.length;
@@ -406,11 +406,9 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
       if (n === 0) return void far.push(i);
       if (far.length > 0) closeFar();
       located(at, n);
-      const keepNow = keepIt || chain.length === 0;
+      const keepNow = keepIt || chainLength === 0;
       if (keepNow) (lastKept = i), (lastNear = cands.distance[at]);
-      chain.push(i);
-      kept.push(keepNow);
-      first.push(cands.length);
+      (chain[chainLength] = i), (kept[chainLength] = keepNow ? 1 : 0), (first[++chainLength] = cands.length);
     });
     closeFar();
     runChain();
