@@ -183,16 +183,23 @@ export async function reconcileProject(
   }
   const observations: RouteObservationSeries[] = [];
   for (const [ref, list] of [...byRoute].sort((a, b) => a[0].localeCompare(b[0]))) {
-    const perUpload = new Map<string, RouteObservationSeries>();
+    // per upload, its traces' fixes on the route: the arrays made at their full size, then filled
+    const sizes = new Map<string, number>();
+    for (const o of list) sizes.set(o.uploadId, (sizes.get(o.uploadId) ?? 0) + o.fixes.length);
+    const perUpload = new Map<string, RouteObservationSeries & { filled: number }>();
     for (const o of list) {
-      const series = perUpload.get(o.uploadId) ?? { ref, uploadId: o.uploadId, chainageM: [], offsetM: [] };
-      for (const f of o.fixes) {
-        series.chainageM.push(f.chainageM);
-        series.offsetM.push(f.offsetM);
+      let series = perUpload.get(o.uploadId);
+      if (!series) {
+        const n = sizes.get(o.uploadId)!;
+        series = { ref, uploadId: o.uploadId, chainageM: new Array<number>(n), offsetM: new Array<number>(n), filled: 0 };
+        perUpload.set(o.uploadId, series);
       }
-      perUpload.set(o.uploadId, series);
+      for (const f of o.fixes) {
+        series.chainageM[series.filled] = f.chainageM;
+        series.offsetM[series.filled++] = f.offsetM;
+      }
     }
-    observations.push(...perUpload.values());
+    for (const { ref: r, uploadId, chainageM, offsetM } of perUpload.values()) observations.push({ ref: r, uploadId, chainageM, offsetM });
   }
   if (opts.timings) stats.timingsMs = timingsMs;
   return { drafts, stats, observations };
