@@ -71,7 +71,8 @@ export class SortedWindow {
     if (nIn === 0 && nOut === 0) return;
     sortFew(entering, nIn);
     sortFew(leaving, nOut);
-    // merge: the kept values with the entering ones, each leaving value taken out once where it stands
+    // merge: the kept values with the entering ones, each leaving value taken out once where it stands; the
+    // kept values between two changes are copied by a loop with one test a value
     const from = this.sorted;
     const to = this.spare;
     const n = this.size;
@@ -79,20 +80,20 @@ export class SortedWindow {
     let e = 0;
     let l = 0;
     let w = 0;
-    while (i < n) {
-      const v = from[i];
-      if (l < nOut && leaving[l] <= v) {
-        if (leaving[l] !== v) throw new RangeError(`SortedWindow: ${leaving[l]} is not in the window`);
-        l++;
-        i++;
-        continue;
+    while (l < nOut || e < nIn) {
+      const out = l < nOut ? leaving[l] : Infinity;
+      const into = e < nIn ? entering[e] : Infinity;
+      if (out <= into) {
+        while (i < n && from[i] < out) to[w++] = from[i++];
+        if (!(i < n && from[i] === out)) throw new RangeError(`SortedWindow: ${out} is not in the window`);
+        (i++), l++;
+      } else {
+        // an entering value goes after the kept values equal to it
+        while (i < n && from[i] <= into) to[w++] = from[i++];
+        (to[w++] = into), e++;
       }
-      while (e < nIn && entering[e] < v) to[w++] = entering[e++];
-      to[w++] = v;
-      i++;
     }
-    if (l < nOut) throw new RangeError(`SortedWindow: ${leaving[l]} is not in the window`);
-    while (e < nIn) to[w++] = entering[e++];
+    while (i < n) to[w++] = from[i++];
     this.sorted = to;
     this.spare = from;
     this.size = w;
