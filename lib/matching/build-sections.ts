@@ -1,5 +1,6 @@
 import { cumulativeChainage, lineLengthM, localFrame, pathLengthM, pointAtChainage } from './chainage';
 import type { RouteObservations, SectionDraft, SectionOptions, SectionStatus } from './section-types';
+import { Scratch } from './scratch';
 import { SortedWindow, WindowExtremes } from './sliding-window';
 import type { LonLat } from './types';
 
@@ -106,10 +107,10 @@ interface SortedFixes {
  * Indices 0 … n − 1 in ascending order of keys, equal keys in index order (what a stable sort by key gives):
  * a bottom-up merge sort of indices, since a comparator sort of the fix objects costs a call a comparison.
  */
-export function stableOrder(keys: Float64Array): Int32Array {
+export function stableOrder(keys: Float64Array, scratch?: Scratch): Int32Array {
   const n = keys.length;
-  let a = new Int32Array(n);
-  let b = new Int32Array(n);
+  let a = scratch ? scratch.i32(n) : new Int32Array(n);
+  let b = scratch ? scratch.i32(n) : new Int32Array(n);
   for (let i = 0; i < n; i++) a[i] = i;
   for (let width = 1; width < n; width *= 2) {
     for (let lo = 0; lo < n; lo += 2 * width) {
@@ -130,18 +131,18 @@ export function stableOrder(keys: Float64Array): Int32Array {
   return a;
 }
 
-function sortedColumns(fixes: RouteObservations['fixes']): SortedFixes {
+function sortedColumns(fixes: RouteObservations['fixes'], scratch: Scratch): SortedFixes {
   const n = fixes.length;
   // the objects read once, in their order (a read in chainage order jumps about the heap), then permuted as columns
-  const keys = new Float64Array(n);
-  const offsets = new Float64Array(n);
-  const times = new Float64Array(n);
+  const keys = scratch.f64(n);
+  const offsets = scratch.f64(n);
+  const times = scratch.f64(n);
   for (let i = 0; i < n; i++) {
     const f = fixes[i];
     (keys[i] = f.chainageM), (offsets[i] = f.offsetM), (times[i] = f.t ?? NaN);
   }
-  const order = stableOrder(keys);
-  const out: SortedFixes = { chainage: new Float64Array(n), offset: new Float64Array(n), t: new Float64Array(n) };
+  const order = stableOrder(keys, scratch);
+  const out: SortedFixes = { chainage: scratch.f64(n), offset: scratch.f64(n), t: scratch.f64(n) };
   for (let i = 0; i < n; i++) {
     const j = order[i];
     (out.chainage[i] = keys[j]), (out.offset[i] = offsets[j]), (out.t[i] = times[j]);
@@ -206,12 +207,16 @@ function medianInPlace(xs: Float64Array, n: number): number {
   return xs[k];
 }
 
+// the columns of one route's smoothing at a time (smoothBins runs route by route, start to end without a pause)
+const routeScratch = new Scratch();
+
 function smoothBins(route: LonLat[], length: number, sources: RouteObservations[], o: Required<SectionOptions>): Bin[] {
   const nb = Math.max(1, Math.ceil(length));
   const covered = sources.map((s) => seen(s, o));
+  routeScratch.reset();
   // each source's fixes by chainage, as columns
-  const columns = sources.map((s) => sortedColumns(s.fixes));
-  const scratch = new Float64Array(Math.max(1, ...sources.map((s) => s.fixes.length)));
+  const columns = sources.map((s) => sortedColumns(s.fixes, routeScratch));
+  const scratch = routeScratch.f64(Math.max(1, ...sources.map((s) => s.fixes.length)));
   // per source, made when first used: its window, its ring and the ring's time span, slid metre by metre
   // and the six window bounds it last found (inner, outer ring and inner ring: start and end each)
   const slides = columns.map(() => null as null | { inner: SortedWindow; ring: SortedWindow; times: WindowExtremes; at: Int32Array });
@@ -233,7 +238,7 @@ function smoothBins(route: LonLat[], length: number, sources: RouteObservations[
     }
     const s = sources[best];
     const { chainage, offset, t } = columns[best];
-    const slide = (slides[best] ??= { inner: new SortedWindow(offset), ring: new SortedWindow(offset), times: new WindowExtremes(t), at: new Int32Array(6) });
+    const slide = (slides[best] ??= { inner: new SortedWindow(offset, routeScratch), ring: new SortedWindow(offset, routeScratch), times: new WindowExtremes(t, routeScratch), at: new Int32Array(6) });
     const at = slide.at;
     const w = s.surveyGrade ? Math.max(1, o.windowM / 10) : o.windowM;
     const n0 = (at[0] = windowStart(chainage, c, w, at[0]));

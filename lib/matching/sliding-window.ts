@@ -1,3 +1,5 @@
+import { Scratch } from './scratch';
+
 /**
  * Order statistics of a window sliding forward over a column of values: the section builder asks for a
  * trimmed mean and a median once a metre, and the windows of neighbouring metres share nearly all their
@@ -37,11 +39,14 @@ export class SortedWindow {
   private b0 = 0;
   private b1 = 0;
 
-  constructor(private readonly values: Float64Array) {
-    this.sorted = new Float64Array(values.length);
-    this.spare = new Float64Array(values.length);
-    this.entering = new Float64Array(values.length);
-    this.leaving = new Float64Array(values.length);
+  /** its four columns from `scratch` when given (see Scratch), else its own */
+  constructor(private readonly values: Float64Array, scratch?: Scratch) {
+    const n = values.length;
+    const take = (): Float64Array => (scratch ? scratch.f64(n) : new Float64Array(n));
+    this.sorted = take();
+    this.spare = take();
+    this.entering = take();
+    this.leaving = take();
   }
 
   /** The window becomes [a0, a1) ∪ [b0, b1); each bound at or beyond where it was. */
@@ -116,9 +121,10 @@ export class WindowExtremes {
   private maxHead = 0;
   private maxTail = 0;
 
-  constructor(private readonly values: Float64Array) {
-    this.mins = new Int32Array(values.length);
-    this.maxs = new Int32Array(values.length);
+  /** its two queues from `scratch` when given (see Scratch), else its own */
+  constructor(private readonly values: Float64Array, scratch?: Scratch) {
+    this.mins = scratch ? scratch.i32(values.length) : new Int32Array(values.length);
+    this.maxs = scratch ? scratch.i32(values.length) : new Int32Array(values.length);
   }
 
   moveTo(lo: number, hi: number): void {

@@ -4,6 +4,7 @@ import { buildRouteGraph } from '@/lib/matching/route-graph';
 import { locatePositions, makeRouteNetwork, routeDistanceM, routeDistanceMatrix, type PositionColumns } from '@/lib/matching/route-distance';
 import { viterbi, viterbiLayers, viterbiPruned } from '@/lib/matching/viterbi';
 import { SortedWindow, WindowExtremes } from '@/lib/matching/sliding-window';
+import { Scratch } from '@/lib/matching/scratch';
 import { seqLookup } from '@/lib/matching/reconcile-project';
 import { stableOrder } from '@/lib/matching/build-sections';
 import { gridScenario, mulberry32, streetScenario } from './scenario';
@@ -184,12 +185,33 @@ describe('viterbiLayers', () => {
   });
 });
 
+describe('Scratch', () => {
+  it('hands out views that do not overlap, stay valid when its buffer grows, and are handed out again after reset', () => {
+    const s = new Scratch();
+    const a = s.f64(3000);
+    const b = s.f64(3000); // past the first buffer's 4,096: a new buffer
+    const c = s.i32(10);
+    a.fill(1), b.fill(2), c.fill(3);
+    expect([a.length, b.length, c.length]).toEqual([3000, 3000, 10]);
+    expect(a.every((x) => x === 1) && b.every((x) => x === 2)).toBe(true);
+    expect(a.buffer).not.toBe(b.buffer);
+    s.reset();
+    const d = s.f64(5);
+    // the space is handed out again: d is the start of the newest buffer, b's
+    expect(d.buffer).toBe(b.buffer);
+    expect([...d]).toEqual([2, 2, 2, 2, 2]);
+  });
+});
+
 describe('sliding windows', () => {
   it('keeps the window sorted as its bounds slide: the same values as sorting each window afresh', () => {
     const rng = mulberry32(5);
     // quarter metres, so that many values tie (+ 0 turns −0 into 0: the two are equal, and either may come first)
     const values = Float64Array.from({ length: 400 }, () => Math.round(20 * (rng() - 0.5)) / 4 + 0);
     const w = new SortedWindow(values);
+    // two more windows on one scratch, the second's columns right after the first's: neither may spill over
+    const scratch = new Scratch();
+    const [u, v] = [new SortedWindow(values, scratch), new SortedWindow(values, scratch)];
     let b = [0, 0, 0, 0];
     for (let step = 0; step < 300; step++) {
       // four bounds, each moving forward by 0–3, kept in order
@@ -197,9 +219,13 @@ describe('sliding windows', () => {
       for (let k = 1; k < 4; k++) next[k] = Math.max(next[k], next[k - 1]);
       b = next.map((x) => Math.min(x, values.length));
       w.moveTo(b[0], b[1], b[2], b[3]);
+      u.moveTo(b[0], b[1], b[2], b[3]);
+      v.moveTo(0, b[0], b[3], b[3]);
       // truth: Array.prototype.sort of the window's values
       const truth = [...values.subarray(b[0], b[1]), ...values.subarray(b[2], b[3])].sort((x, y) => x - y);
       expect([...w.sorted.subarray(0, w.size)]).toEqual(truth);
+      expect([...u.sorted.subarray(0, u.size)]).toEqual(truth);
+      expect([...v.sorted.subarray(0, v.size)]).toEqual([...values.subarray(0, b[0])].sort((x, y) => x - y));
     }
     expect(() => w.moveTo(0, 0, 0, 0)).toThrow(/moved back/);
   });
