@@ -214,13 +214,13 @@ export function walkedIntervals(
   const toEnd = (ref: string, c: number) => (c <= opts.nearM ? 0 : c >= opts.lengthOf(ref) - opts.nearM ? opts.lengthOf(ref) : c);
 
   // a stay on a route ends where the walk left the network in between (an unplanned run), too
-  const visits = splitVisits(matched).flatMap((v) => {
-    const parts: Visit[] = [];
+  const visits: Visit[] = [];
+  const apart = opts.apart;
+  for (const v of splitVisits(matched)) {
     let start = v.start;
-    for (let i = v.start + 1; i < v.end; i++) if (opts.apart?.(matched[i - 1].seq, matched[i].seq)) (parts.push({ ref: v.ref, start, end: i }), (start = i));
-    parts.push({ ref: v.ref, start, end: v.end });
-    return parts;
-  }).filter((v) => v.end - v.start >= opts.minFixes);
+    if (apart) for (let i = v.start + 1; i < v.end; i++) if (apart(matched[i - 1].seq, matched[i].seq)) (i - start >= opts.minFixes && visits.push({ ref: v.ref, start, end: i }), (start = i));
+    if (v.end - start >= opts.minFixes) visits.push(start === v.start ? v : { ref: v.ref, start, end: v.end });
+  }
   // each visit's chainages smoothed, in one column by matched index (visits do not overlap)
   const chain = new Float64Array(matched.length);
   for (let q = 0; q < matched.length; q++) chain[q] = matched[q].chainageM;
