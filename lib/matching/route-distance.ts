@@ -342,13 +342,13 @@ export function positionDistanceInto(net: RouteNetwork, p: PositionColumns, x: n
   // to the rest). One loop, not a helper a path: a number a helper returns would be boxed.
   // a path through a dead end (x's or y's) is never the shortest: the edge's other end is nearer along it
   const dead = net.deadEnd;
-  const af = dead[net.edgeFromNode[ea]];
-  const at = dead[net.edgeToNode[ea]];
-  const bf = dead[net.edgeFromNode[eb]];
-  const bt = dead[net.edgeToNode[eb]];
+  const deadFromA = dead[net.edgeFromNode[ea]];
+  const deadToA = dead[net.edgeToNode[ea]];
+  const deadFromB = dead[net.edgeFromNode[eb]];
+  const deadToB = dead[net.edgeToNode[eb]];
   let best = Infinity;
   for (let which = 0; which < 4; which++) {
-    if ((which < 2 ? af : at) + (which % 2 === 0 ? bf : bt) > 0) continue;
+    if ((which < 2 ? deadFromA : deadToA) + (which % 2 === 0 ? deadFromB : deadToB) > 0) continue;
     const start = which < 2 ? a0 : a1;
     const end = which % 2 === 0 ? b0 : b1;
     const rest = Math.min(boundM, best) - start - end;

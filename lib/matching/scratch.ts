@@ -2,8 +2,9 @@
  * Typed columns for work that is done route by route, handed out as views of buffers kept from route to
  * route: a fresh typed array of more than 64 bytes gets a backing store outside V8's heap, and the section
  * builder made some 15,000 of them a reconciliation (a few dozen values each), at a few microseconds apiece.
- * `reset()` when a route's work is done hands the space out again; a view handed out before stays valid
- * (a buffer that grows is replaced, not reused). The views are not zeroed: write before reading.
+ * Views handed out between two `reset()`s never overlap (a buffer too small is replaced by a larger one, and
+ * the views already handed out keep the old one); `reset()` hands the space out again, so the views from
+ * before it are done with. The views are not zeroed: write before reading.
  * `const s = new Scratch(); const a = s.f64(3); s.reset()`
  */
 export class Scratch {

@@ -1,4 +1,4 @@
-import { Scratch } from './scratch';
+import type { Scratch } from './scratch';
 
 /**
  * Order statistics of a window sliding forward over a column of values: the section builder asks for a
