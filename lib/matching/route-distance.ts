@@ -70,7 +70,7 @@ export interface RouteNetwork {
   /** Dijkstra's binary heap (lazy deletion: at most one entry per relaxation, so 2 × edges + 1 slots) */
   heapNode: Int32Array;
   heapKey: Float64Array;
-  /** where positionDistanceInto writes its answer */
+  /** where positionDistanceInto writes its answer ([0]), and where positionDistance passes its bound ([1]) */
   distance: Float64Array;
 }
 
@@ -126,7 +126,7 @@ export function makeRouteNetwork(graph: RouteGraph, routes: PlannedRouteInput[])
     pairMask: slots - 1, pairs: new Float64Array(8 * slots).fill(-1),
     nodeMask: slots - 1, nodeKeys: new Int32Array(2 * slots).fill(-1), nodeDist: new Float64Array(slots), nodeBound: new Float64Array(slots),
     heapNode: new Int32Array(2 * graph.edges.length + 1), heapKey: new Float64Array(2 * graph.edges.length + 1),
-    distance: new Float64Array(1),
+    distance: new Float64Array(2),
   };
 }
 
@@ -309,7 +309,9 @@ function pairDistance(net: RouteNetwork, h: number, which: number): void {
  * `positionDistance(net, cols, 0, 1, 100)` → 15 for positions 10 m and 25 m along one route
  */
 export function positionDistance(net: RouteNetwork, p: PositionColumns, x: number, y: number, boundM: number): number {
-  positionDistanceInto(net, p, x, y, Float64Array.of(boundM), 0);
+  // the bound goes in the answer's column, one slot on: it is read before the answer is written
+  net.distance[1] = boundM;
+  positionDistanceInto(net, p, x, y, net.distance, 1);
   return net.distance[0];
 }
 

@@ -69,7 +69,7 @@ describe('route distances a layer at a time', () => {
 
   it('routeDistanceM equals a plain Dijkstra with both positions spliced into their edges, dead ends and all', () => {
     // the reference: the graph as listed (no dead-end shortcut, no caches), each position a node of its own
-    // joined to its edge's two ends by its legs, textbook Dijkstra with a linear scan for the nearest node
+    // joined to its edge's two ends by its legs, textbook Dijkstra on a queue kept sorted by distance
     const gs = gridScenario(6, { blocks: 4, fixes: 10 });
     const graph = buildRouteGraph(gs.routes);
     const net = makeRouteNetwork(graph, gs.routes);
