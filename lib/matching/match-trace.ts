@@ -157,109 +157,199 @@ export function prepareMatchNetwork(routes: PlannedRouteInput[], graph: RouteGra
  * `matchTrace(fixes, routes, buildRouteGraph(routes), { sigmaM: 4 })` → `{ matched: [{ seq: 0, ref: 'N1', chainageM: 12.3, offsetM: 0.4, … }], unmatched: [], outliers: [], pieces: 1 }`
  */
 export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: RouteGraph, opts: MatchOptions, prepared?: MatchNetwork): MatchResult {
-  const o = resolveMatchOptions(opts);
-  const { index, net } = prepared ?? prepareMatchNetwork(routes, graph);
-  const plane = toPlane(fixes, index.lon0, index.lat0, index.mx0, index.my0);
-  const pieces = splitPieces(fixes, plane, o);
-  const result: MatchResult = { matched: [], unmatched: [], outliers: [], pieces: pieces.length };
-  const logBeta = Math.log(o.betaM);
-  const outlierAt: number[] = [];
-  // the current chain's candidates: those of its k-th fix are first[k] … first[k + 1] − 1 in cands
-  const cands = new CandidateColumns();
-  // the candidates as positions: each one's graph edge and its legs to the edge's from and to node, found once
-  const pos: PositionColumns = { route: cands.route, chainage: cands.chainage, edge: new Int32Array(cands.route.length), leg0: new Float64Array(cands.route.length), leg1: new Float64Array(cands.route.length) };
-  // the current chain's fixes (indices into fixes), chainLength of them: typed, each as long as the trace
-  const chain = new Int32Array(fixes.length);
-  let chainLength = 0;
-  const first = new Int32Array(fixes.length + 1);
+  return new TraceMatcher(fixes, routes, resolveMatchOptions(opts), prepared ?? prepareMatchNetwork(routes, graph)).run();
+}
+
+/** A position's route, chainage, offset and distance from the fix, in columns: a chain's placements, between's states. */
+interface Placements {
+  route: Int32Array;
+  chainage: Float64Array;
+  offset: Float64Array;
+  distance: Float64Array;
+}
+
+/** between's states: placements with their positions on the graph, scores and back pointers. */
+interface States extends Placements {
+  edge: Int32Array;
+  leg0: Float64Array;
+  leg1: Float64Array;
+  score: Float64Array;
+  back: Int8Array;
+}
+
+const placements = (n: number): Placements => ({ route: new Int32Array(n), chainage: new Float64Array(n), offset: new Float64Array(n), distance: new Float64Array(n) });
+const states = (n: number): States => ({ ...placements(n), edge: new Int32Array(n), leg0: new Float64Array(n), leg1: new Float64Array(n), score: new Float64Array(n), back: new Int8Array(n) });
+
+/**
+ * One matchTrace call's state and steps. Its steps are methods, not closures made inside matchTrace: V8
+ * keeps a method's optimised code from call to call, while a closure's (its on-stack replacement above all)
+ * is tied to the call that made it and is compiled again, in the next call, while that call runs slower.
+ */
+class TraceMatcher {
+  readonly plane: Plane;
+  readonly pieces: number[][];
+  readonly result: MatchResult;
+  readonly logBeta: number;
+  readonly outlierAt: number[] = [];
+  readonly index: CandidateIndex;
+  readonly net: RouteNetwork;
+  /** the current chain's candidates: those of its k-th fix are first[k] … first[k + 1] − 1 in cands */
+  readonly cands = new CandidateColumns();
+  /** the candidates as positions: each one's graph edge and its legs to the edge's from and to node, found once */
+  readonly pos: PositionColumns;
+  /** the current chain's fixes (indices into fixes), chainLength of them: typed, each as long as the trace */
+  readonly chain: Int32Array;
+  chainLength = 0;
+  readonly first: Int32Array;
+  /** per layer of the current chain: whether it is kept for the recursion, and where it was placed */
+  readonly kept: Uint8Array;
+  placed = placements(64);
+  /** projectInFrame's answer */
+  readonly foot = { chainageM: 0, offsetM: 0, distanceM: 0 };
+  /** between's scratch, grown as needed: positions on the two routes, two a layer, with their scores */
+  st = states(0);
+  /** the bound of the step between is scoring */
+  readonly stepBound = new Float64Array(1);
+  /** the layers solve is running Viterbi over: their first candidates, straight-line steps and bounds */
+  layerAt: Int32Array = new Int32Array(0);
+  layerGc: Float64Array = new Float64Array(0);
+  layerBound: Float64Array = new Float64Array(0);
+  /** solve's transition callback (made once: viterbiPruned calls the same function every time) */
+  readonly transitionInto: (k: number, i: number, j: number, out: Float64Array) => void;
+  /** the current piece's run of fixes with no route in reach, its chain's last kept fix and how far its nearest route is */
+  far: number[] = [];
+  lastKept = -1;
+  lastNear = 0;
+
+  constructor(
+    readonly fixes: Fix[],
+    readonly routes: PlannedRouteInput[],
+    readonly o: ResolvedMatchOptions,
+    prepared: MatchNetwork,
+  ) {
+    this.index = prepared.index;
+    this.net = prepared.net;
+    this.plane = toPlane(fixes, this.index.lon0, this.index.lat0, this.index.mx0, this.index.my0);
+    this.pieces = splitPieces(fixes, this.plane, o);
+    this.result = { matched: [], unmatched: [], outliers: [], pieces: this.pieces.length };
+    this.logBeta = Math.log(o.betaM);
+    const c = this.cands;
+    this.pos = { route: c.route, chainage: c.chainage, edge: new Int32Array(c.route.length), leg0: new Float64Array(c.route.length), leg1: new Float64Array(c.route.length) };
+    this.chain = new Int32Array(fixes.length);
+    this.first = new Int32Array(fixes.length + 1);
+    this.kept = new Uint8Array(fixes.length);
+    this.transitionInto = (k, i, j, out) => this.transition(k, i, j, out);
+  }
+
+  run(): MatchResult {
+    for (const piece of this.pieces) this.matchPiece(piece);
+    // a spike inside a run of far fixes is found before the run closes: restore input order
+    const { result, fixes } = this;
+    result.outliers = this.outlierAt.sort((a, b) => a - b).map((i) => fixes[i].seq);
+    return result;
+  }
+
+  /** The transition from candidate i of layer k − 1 to candidate j of layer k of the Viterbi solve is running. */
+  transition(k: number, i: number, j: number, out: Float64Array): void {
+    const at = this.layerAt;
+    positionDistanceInto(this.net, this.pos, at[k - 1] + i, at[k] + j, this.layerBound, k);
+    const d = this.net.distance[0];
+    out[0] = d === Infinity ? -Infinity : -Math.abs(d - this.layerGc[k]) / this.o.betaM - this.logBeta;
+  }
 
   /**
    * Viterbi over layers of the current chain: layer k holds the candidates at[k] … at[k] + n[k] − 1 of fix
    * fx[k]. Returns the chosen candidate of each layer.
    */
-  const solve = (at: Int32Array, n: Int32Array, fx: Int32Array): Int32Array => {
+  solve(at: Int32Array, n: Int32Array, fx: Int32Array): Int32Array {
     const m = fx.length;
     // Newson & Krumm drop transitions whose route is far longer than the straight line between the fixes
     const gc = new Float64Array(m);
     const bound = new Float64Array(m);
-    for (let k = 1; k < m; k++) (gc[k] = dist(plane, fx[k - 1], fx[k])), (bound[k] = 4 * gc[k] + 50);
+    for (let k = 1; k < m; k++) (gc[k] = dist(this.plane, fx[k - 1], fx[k])), (bound[k] = 4 * gc[k] + 50);
     let total = 0;
     for (let k = 0; k < m; k++) total += n[k];
     const emissions = new Float64Array(total);
+    const { cands, o } = this;
     for (let k = 0, e = 0; k < m; k++) for (let j = 0; j < n[k]; j++) emissions[e++] = emissionLogProb(cands.distance[at[k] + j], o.sigmaM);
-    const betaM = o.betaM;
     // route distances are the costly part: asked for only where a transition can still change the best path
-    const { path } = viterbiPruned(n, emissions, -logBeta, (k, i, j, out) => {
-      positionDistanceInto(net, pos, at[k - 1] + i, at[k] + j, bound, k);
-      const d = net.distance[0];
-      out[0] = d === Infinity ? -Infinity : -Math.abs(d - gc[k]) / betaM - logBeta;
-    });
+    (this.layerAt = at), (this.layerGc = gc), (this.layerBound = bound);
+    const { path } = viterbiPruned(n, emissions, -this.logBeta, this.transitionInto);
     for (let k = 0; k < m; k++) path[k] += at[k];
     return path;
-  };
+  }
 
-  // per layer of the current chain: whether it is kept for the recursion, and where it was placed
-  const kept = new Uint8Array(fixes.length);
-  const placed = { route: new Int32Array(64), chainage: new Float64Array(64), offset: new Float64Array(64), distance: new Float64Array(64) };
-  const place = (k: number, route: number, chainageM: number, offsetM: number, distanceM: number) => {
-    (placed.route[k] = route), (placed.chainage[k] = chainageM), (placed.offset[k] = offsetM), (placed.distance[k] = distanceM);
-  };
-  // (column to column, so that no number crosses a call)
-  const placeCandidate = (k: number, c: number) => {
-    (placed.route[k] = cands.route[c]), (placed.chainage[k] = cands.chainage[c]), (placed.offset[k] = cands.offset[c]), (placed.distance[k] = cands.distance[c]);
-  };
-  const foot = { chainageM: 0, offsetM: 0, distanceM: 0 };
-  const project = (i: number, route: number) => projectInFrame(index, route, plane.x[i], plane.y[i], plane.kx[i], plane.ky[i], foot);
-  const placeOn = (k: number, route: number) => {
-    project(chain[k], route);
-    place(k, route, foot.chainageM, foot.offsetM, foot.distanceM);
-  };
-  const searched = (k: number) => first[k + 1] > first[k];
+  place(k: number, route: number, chainageM: number, offsetM: number, distanceM: number): void {
+    const p = this.placed;
+    (p.route[k] = route), (p.chainage[k] = chainageM), (p.offset[k] = offsetM), (p.distance[k] = distanceM);
+  }
 
-  // between's scratch, grown as needed: positions on the two routes, two a layer, with their scores, and
-  // the bound of the step being scored
-  const stepBound = new Float64Array(1);
-  let st = { route: new Int32Array(0), chainage: new Float64Array(0), offset: new Float64Array(0), distance: new Float64Array(0), edge: new Int32Array(0), leg0: new Float64Array(0), leg1: new Float64Array(0), score: new Float64Array(0), back: new Int8Array(0) };
+  /** (column to column, so that no number crosses a call) */
+  placeCandidate(k: number, c: number): void {
+    const p = this.placed;
+    const cands = this.cands;
+    (p.route[k] = cands.route[c]), (p.chainage[k] = cands.chainage[c]), (p.offset[k] = cands.offset[c]), (p.distance[k] = cands.distance[c]);
+  }
+
+  /** fix i projected onto a route, into this.foot */
+  project(i: number, route: number): void {
+    const plane = this.plane;
+    projectInFrame(this.index, route, plane.x[i], plane.y[i], plane.kx[i], plane.ky[i], this.foot);
+  }
+
+  placeOn(k: number, route: number): void {
+    this.project(this.chain[k], route);
+    const foot = this.foot;
+    this.place(k, route, foot.chainageM, foot.offsetM, foot.distanceM);
+  }
+
+  searched(k: number): boolean {
+    return this.first[k + 1] > this.first[k];
+  }
+
+  /** state x of between's scratch from candidate c */
+  fromCandidate(x: number, c: number): void {
+    const { st, cands, pos } = this;
+    (st.route[x] = cands.route[c]), (st.chainage[x] = cands.chainage[c]), (st.offset[x] = cands.offset[c]), (st.distance[x] = cands.distance[c]);
+    (st.edge[x] = pos.edge[c]), (st.leg0[x] = pos.leg0[c]), (st.leg1[x] = pos.leg1[c]);
+  }
+
   /**
    * The skipped fixes between kept layers ka and kb when the kept ones chose different routes (a turn at a
    * junction): Viterbi over their positions on just those two routes (their candidates there, or, for a fix
    * never searched, its projection), both ends fixed. False, with nothing placed, when a searched fix has a
    * candidate on neither or the two routes do not connect within reach.
    */
-  const between = (ka: number, kb: number, ca: number, cb: number): boolean => {
+  between(ka: number, kb: number, ca: number, cb: number): boolean {
+    const { cands, first, o, net, plane, chain, foot, stepBound } = this;
     const r1 = cands.route[ca];
     const r2 = cands.route[cb];
     const span = kb - ka + 1;
     // two states a layer at most (one position per route): state s of layer j is at 2j + s
     const size = 2 * span;
-    if (st.route.length < size) {
-      const n = 2 * size;
-      st = { route: new Int32Array(n), chainage: new Float64Array(n), offset: new Float64Array(n), distance: new Float64Array(n), edge: new Int32Array(n), leg0: new Float64Array(n), leg1: new Float64Array(n), score: new Float64Array(n), back: new Int8Array(n) };
-    }
+    if (this.st.route.length < size) this.st = states(2 * size);
+    const st = this.st;
     st.route.fill(-1, 0, size);
-    const fromCandidate = (x: number, c: number) => {
-      (st.route[x] = cands.route[c]), (st.chainage[x] = cands.chainage[c]), (st.offset[x] = cands.offset[c]), (st.distance[x] = cands.distance[c]);
-      (st.edge[x] = pos.edge[c]), (st.leg0[x] = pos.leg0[c]), (st.leg1[x] = pos.leg1[c]);
-    };
-    fromCandidate(0, ca);
-    fromCandidate(2 * (span - 1), cb);
+    this.fromCandidate(0, ca);
+    this.fromCandidate(2 * (span - 1), cb);
     for (let j = 1; j + 1 < span; j++) {
       const k = ka + j;
-      if (searched(k)) {
+      if (this.searched(k)) {
         let x = 2 * j;
-        for (let c = first[k]; c < first[k + 1]; c++) if (cands.route[c] === r1 || cands.route[c] === r2) fromCandidate(x++, c);
+        for (let c = first[k]; c < first[k + 1]; c++) if (cands.route[c] === r1 || cands.route[c] === r2) this.fromCandidate(x++, c);
         if (x === 2 * j) return false;
       } else {
         for (let t = 0; t < (r2 === r1 ? 1 : 2); t++) {
           const r = t === 0 ? r1 : r2;
           const x = 2 * j + t;
-          project(chain[k], r);
+          this.project(chain[k], r);
           (st.route[x] = r), (st.chainage[x] = foot.chainageM), (st.offset[x] = foot.offsetM), (st.distance[x] = foot.distanceM);
         }
         locatePositions(net, st, 2 * j, 2 * j + 2);
       }
     }
     const { score, back } = st;
+    const logBeta = this.logBeta;
     score.fill(-Infinity, 0, size);
     score[0] = 0;
     for (let j = 1; j < span; j++) {
@@ -272,9 +362,9 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
         if (st.route[y] < 0) continue;
         const e = j === span - 1 ? 0 : emissionLogProb(st.distance[y], o.sigmaM);
         // the likelier predecessor first: no transition beats −log β, so the other may need no route distance
-        const first = score[2 * (j - 1) + 1] > score[2 * (j - 1)] ? 1 : 0;
+        const likelier = score[2 * (j - 1) + 1] > score[2 * (j - 1)] ? 1 : 0;
         for (let r = 0; r < 2; r++) {
-          const q = r === 0 ? first : 1 - first;
+          const q = r === 0 ? likelier : 1 - likelier;
           const x = 2 * (j - 1) + q;
           if (st.route[x] < 0 || score[x] === -Infinity || score[x] - logBeta + e < score[y]) continue;
           positionDistanceInto(net, st, x, y, stepBound, 0);
@@ -290,58 +380,60 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
     }
     for (let j = span - 1, t = 0; j > 0; t = back[2 * j + t], j--) {
       const x = 2 * j + t;
-      if (j < span - 1) place(ka + j, st.route[x], st.chainage[x], st.offset[x], st.distance[x]);
+      if (j < span - 1) this.place(ka + j, st.route[x], st.chainage[x], st.offset[x], st.distance[x]);
     }
     return true;
-  };
+  }
 
-  /** Candidates for layer k of the chain found now (a skipped fix the recursion needs after all), at the end of cands. */
-  const searchLate = (k: number): [number, number] => {
+  /** Candidates for layer k of the chain found now (a skipped fix the recursion needs after all), at the end of cands; returns how many. */
+  searchLate(k: number): number {
+    const { cands, o } = this;
     const at = cands.length;
-    const n = prune(cands, at, appendCandidates(index, fixes[chain[k]], o.searchRadiusM, o.maxCandidates, cands), o.sigmaM);
+    const n = prune(cands, at, appendCandidates(this.index, this.fixes[this.chain[k]], o.searchRadiusM, o.maxCandidates, cands), o.sigmaM);
     cands.length = at + n;
-    located(at, n);
-    return [at, n];
-  };
+    this.located(at, n);
+    return n;
+  }
 
-  const runChain = () => {
-    const L = chainLength;
+  runChain(): void {
+    const L = this.chainLength;
     if (L === 0) return;
+    const { cands, first, kept, chain, pos, fixes, routes } = this;
     const tailEnd = cands.length;
-    if (placed.route.length < L) {
-      const size = 2 * L;
-      [placed.route, placed.chainage, placed.offset, placed.distance] = [new Int32Array(size), new Float64Array(size), new Float64Array(size), new Float64Array(size)];
-    }
+    if (this.placed.route.length < L) this.placed = placements(2 * L);
     // Newson & Krumm (2009, §4.1) leave out the fixes within 2σ of the last one kept: until the walker has
     // moved further than the noise, a fix adds little to where the route goes. They skip the recursion and
     // are placed afterwards, on the route the kept fixes either side of them chose.
     const keep: number[] = [];
     for (let k = 0; k < L; k++) if (kept[k]) keep.push(k);
     // typed layers, as the fallback below passes them: one kind of array keeps the recursion's code monomorphic
-    const [ka0, kn0, kf0] = [new Int32Array(keep.length), new Int32Array(keep.length), new Int32Array(keep.length)];
-    keep.forEach((k, g) => ((ka0[g] = first[k]), (kn0[g] = first[k + 1] - first[k]), (kf0[g] = chain[k])));
-    const chosen = solve(ka0, kn0, kf0);
-    keep.forEach((k, g) => placeCandidate(k, chosen[g]));
+    const ka0 = new Int32Array(keep.length);
+    const kn0 = new Int32Array(keep.length);
+    const kf0 = new Int32Array(keep.length);
+    for (let g = 0; g < keep.length; g++) (ka0[g] = first[keep[g]]), (kn0[g] = first[keep[g] + 1] - first[keep[g]]), (kf0[g] = chain[keep[g]]);
+    const chosen = this.solve(ka0, kn0, kf0);
+    for (let g = 0; g < keep.length; g++) this.placeCandidate(keep[g], chosen[g]);
     for (let g = 0; g < keep.length; g++) {
       const ka = keep[g];
       // after the last kept fix, the skipped ones have one neighbour: its route
       const kb = g + 1 < keep.length ? keep[g + 1] : L;
       if (kb - ka < 2) continue;
-      const [ca, cb] = [chosen[g], g + 1 < keep.length ? chosen[g + 1] : chosen[g]];
+      const ca = chosen[g];
+      const cb = g + 1 < keep.length ? chosen[g + 1] : chosen[g];
       // both neighbours on one route: the skipped fixes go on it (their candidate there, or their projection)
       const r = cands.route[ca];
       let same = cands.route[cb] === r;
       for (let k = ka + 1; same && k < kb; k++) {
-        if (!searched(k)) {
-          placeOn(k, r);
+        if (!this.searched(k)) {
+          this.placeOn(k, r);
           continue;
         }
         let c = first[k];
         while (c < first[k + 1] && cands.route[c] !== r) c++;
-        if (c < first[k + 1]) placeCandidate(k, c);
-        else same = kb === L ? (placeOn(k, r), true) : false;
+        if (c < first[k + 1]) this.placeCandidate(k, c);
+        else same = kb === L ? (this.placeOn(k, r), true) : false;
       }
-      if (same || between(ka, kb, ca, cb)) continue;
+      if (same || this.between(ka, kb, ca, cb)) continue;
       // otherwise: Viterbi over every candidate of the skipped fixes, both ends fixed
       const span = kb - ka + 1;
       const at = new Int32Array(span);
@@ -350,70 +442,87 @@ export function matchTrace(fixes: Fix[], routes: PlannedRouteInput[], graph: Rou
       for (let j = 0; j < span; j++) {
         const k = ka + j;
         fx[j] = chain[k];
-        [at[j], n[j]] = j === 0 ? [ca, 1] : j === span - 1 ? [cb, 1] : searched(k) ? [first[k], first[k + 1] - first[k]] : searchLate(k);
+        if (j === 0) (at[j] = ca), (n[j] = 1);
+        else if (j === span - 1) (at[j] = cb), (n[j] = 1);
+        else if (this.searched(k)) (at[j] = first[k]), (n[j] = first[k + 1] - first[k]);
+        else (at[j] = cands.length), (n[j] = this.searchLate(k));
       }
-      const inner = solve(at, n, fx);
-      for (let j = 1; j + 1 < span; j++) placeCandidate(ka + j, inner[j]);
+      const inner = this.solve(at, n, fx);
+      for (let j = 1; j + 1 < span; j++) this.placeCandidate(ka + j, inner[j]);
     }
+    const placed = this.placed;
+    const matched = this.result.matched;
     for (let k = 0; k < L; k++) {
       const f = fixes[chain[k]];
-      result.matched.push({ seq: f.seq, ref: routes[placed.route[k]].ref, chainageM: placed.chainage[k], offsetM: placed.offset[k], distanceM: placed.distance[k], t: f.t });
+      matched.push({ seq: f.seq, ref: routes[placed.route[k]].ref, chainageM: placed.chainage[k], offsetM: placed.offset[k], distanceM: placed.distance[k], t: f.t });
     }
     // the fix that closed the chain may have its candidates in already: they start the next chain
-    const [end, tail] = [first[L], tailEnd - first[L]];
+    const end = first[L];
+    const tail = tailEnd - end;
     for (const col of [cands.route, cands.chainage, cands.distance, cands.offset, pos.edge, pos.leg0, pos.leg1]) col.copyWithin(0, end, end + tail);
-    (chainLength = 0), (first[0] = 0), (cands.length = tail);
-  };
+    (this.chainLength = 0), (first[0] = 0), (cands.length = tail);
+  }
 
   /** Edges and legs for the n candidates from `at` on, the position columns grown to the candidates'. */
-  const located = (at: number, n: number) => {
+  located(at: number, n: number): void {
+    const { pos, cands } = this;
     if (pos.edge.length < cands.route.length) {
       const size = cands.route.length;
-      [pos.edge, pos.leg0, pos.leg1] = [grow(pos.edge, new Int32Array(size)), grow(pos.leg0, new Float64Array(size)), grow(pos.leg1, new Float64Array(size))];
+      pos.edge = grow(pos.edge, new Int32Array(size));
+      pos.leg0 = grow(pos.leg0, new Float64Array(size));
+      pos.leg1 = grow(pos.leg1, new Float64Array(size));
     }
     pos.route = cands.route;
     pos.chainage = cands.chainage;
-    locatePositions(net, pos, at, at + n);
-  };
+    locatePositions(this.net, pos, at, at + n);
+  }
 
-  for (const piece of pieces) {
+  /** Ends the current run of fixes with no route in reach: ≥ 3 of them are an unmatched run, fewer are outliers. */
+  closeFar(): void {
+    const far = this.far;
+    if (far.length >= 3) {
+      this.runChain();
+      this.lastKept = -1;
+      const fixes = this.fixes;
+      this.result.unmatched.push(far.map((i) => fixes[i]));
+    } else for (const i of far) this.outlierAt.push(i);
+    this.far = [];
+  }
+
+  matchPiece(piece: number[]): void {
+    const { fixes, plane, o, cands, chain, kept, first } = this;
     const spike = spikes(fixes, piece, plane, o);
-    let far: number[] = [];
-    // the chain's last kept fix, and how far its nearest route is
-    let lastKept = -1;
-    let lastNear = 0;
-    const closeFar = () => {
-      if (far.length >= 3) {
-        runChain();
-        lastKept = -1;
-        result.unmatched.push(far.map((i) => fixes[i]));
-      } else for (const i of far) outlierAt.push(i);
-      far = [];
-    };
-    piece.forEach((i, k) => {
-      if (spike[k]) return void outlierAt.push(i);
-      const d = lastKept >= 0 && chainLength > 0 ? dist(plane, lastKept, i) : Infinity;
+    this.far = [];
+    this.lastKept = -1;
+    this.lastNear = 0;
+    for (let k = 0; k < piece.length; k++) {
+      const i = piece[k];
+      if (spike[k]) {
+        this.outlierAt.push(i);
+        continue;
+      }
+      const d = this.lastKept >= 0 && this.chainLength > 0 ? dist(plane, this.lastKept, i) : Infinity;
       const keepIt = !(d < o.thinM);
       // a skipped fix this close to a kept one has a route within the search radius (triangle inequality):
       // it is surely matched, and its candidates are only looked for if the recursion needs them
-      if (!keepIt && far.length === 0 && lastNear + d <= o.searchRadiusM) {
-        (chain[chainLength] = i), (kept[chainLength] = 0), (first[++chainLength] = cands.length);
-        return;
+      if (!keepIt && this.far.length === 0 && this.lastNear + d <= o.searchRadiusM) {
+        (chain[this.chainLength] = i), (kept[this.chainLength] = 0), (first[++this.chainLength] = cands.length);
+        continue;
       }
       const at = cands.length;
-      const n = prune(cands, at, appendCandidates(index, fixes[i], o.searchRadiusM, o.maxCandidates, cands), o.sigmaM);
+      const n = prune(cands, at, appendCandidates(this.index, fixes[i], o.searchRadiusM, o.maxCandidates, cands), o.sigmaM);
       cands.length = at + n;
-      if (n === 0) return void far.push(i);
-      if (far.length > 0) closeFar();
-      located(at, n);
-      const keepNow = keepIt || chainLength === 0;
-      if (keepNow) (lastKept = i), (lastNear = cands.distance[at]);
-      (chain[chainLength] = i), (kept[chainLength] = keepNow ? 1 : 0), (first[++chainLength] = cands.length);
-    });
-    closeFar();
-    runChain();
+      if (n === 0) {
+        this.far.push(i);
+        continue;
+      }
+      if (this.far.length > 0) this.closeFar();
+      this.located(at, n);
+      const keepNow = keepIt || this.chainLength === 0;
+      if (keepNow) (this.lastKept = i), (this.lastNear = cands.distance[at]);
+      (chain[this.chainLength] = i), (kept[this.chainLength] = keepNow ? 1 : 0), (first[++this.chainLength] = cands.length);
+    }
+    this.closeFar();
+    this.runChain();
   }
-  // a spike inside a run of far fixes is found before the run closes: restore input order
-  result.outliers = outlierAt.sort((a, b) => a - b).map((i) => fixes[i].seq);
-  return result;
 }

@@ -5,7 +5,7 @@ import { claimBeyondEnds, foldJunctionHops, walkedIntervals } from './visits';
 import { distanceM, lineLengthM } from './chainage';
 import { matchTrace, prepareMatchNetwork } from './match-trace';
 import { projectOntoRoute } from './candidates';
-import type { Fix } from './match-types';
+import type { Fix, MatchedFix } from './match-types';
 import { buildRouteGraph } from './route-graph';
 import type { RouteObservations, SectionDraft } from './section-types';
 import type { LonLat, PlannedRouteInput } from './types';
@@ -135,13 +135,7 @@ export async function reconcileProject(
       stats.junctionHops += hops.folded;
       const ends = claimBeyondEnds(hops.fixes, result.unmatched, fixOf, routeByRef, { nearM: 2 * up.sigmaM });
       const matched = ends.matched;
-      // the matched fixes themselves are the observations (chainage, offset, time): no copy of each
-      const perRef = new Map<string, RouteObservations['fixes']>();
-      for (const m of matched) {
-        const list = perRef.get(m.ref);
-        if (list) list.push(m);
-        else perRef.set(m.ref, [m]);
-      }
+      const perRef = fixesByRoute(matched);
       // where a walk saw trench: per visit, from its smoothed chainages (survey points are taken as they are)
       const offNetwork = new Set(ends.unmatched.flatMap((r) => r.fixes.map((f) => f.seq)));
       const apart = (a: number, b: number) => { for (let q = a + 1; q < b; q++) if (offNetwork.has(q)) return true; return false; };
@@ -174,13 +168,45 @@ export async function reconcileProject(
     }
     opts.onProgress?.((u + 1) / Math.max(1, sorted.length));
   }
-  for (const [i, r] of [...routes].sort((a, b) => a.ref.localeCompare(b.ref)).entries()) {
-    if (i % 50 === 0) await breathe();
+  const inRefOrder = [...routes].sort((a, b) => a.ref.localeCompare(b.ref));
+  for (let from = 0; from < inRefOrder.length; from += 50) {
+    await breathe();
     const t0 = performance.now();
-    const built = buildRouteSections(r, byRoute.get(r.ref) ?? [], { toleranceM: opts.toleranceM, breaksM: splitPoints(corrections, r.ref) });
-    drafts.push(...applyRouteCorrections(r, built, corrections));
+    drafts.push(...routeSections(inRefOrder.slice(from, from + 50), byRoute, corrections, opts.toleranceM));
     timingsMs.sectionsMs += performance.now() - t0;
   }
+  const observations = observationSeries(byRoute);
+  if (opts.timings) stats.timingsMs = timingsMs;
+  return { drafts, stats, observations };
+}
+
+// The loops of a reconciliation are functions of their own, not inline in reconcileProject: V8 optimises a
+// small function quickly and keeps its code, where one large function runs its loops unoptimised, each run,
+// until its long compilation is done.
+
+/** A trace's matched fixes by route, in match order: the matched fixes themselves are the observations (chainage, offset, time), no copy of each. */
+function fixesByRoute(matched: MatchedFix[]): Map<string, RouteObservations['fixes']> {
+  const perRef = new Map<string, RouteObservations['fixes']>();
+  for (const m of matched) {
+    const list = perRef.get(m.ref);
+    if (list) list.push(m);
+    else perRef.set(m.ref, [m]);
+  }
+  return perRef;
+}
+
+/** The sections of some routes from their observations, with the engineer's corrections applied. */
+function routeSections(routes: PlannedRouteInput[], byRoute: Map<string, RouteObservations[]>, corrections: Correction[], toleranceM: number): SectionDraft[] {
+  const drafts: SectionDraft[] = [];
+  for (const r of routes) {
+    const built = buildRouteSections(r, byRoute.get(r.ref) ?? [], { toleranceM, breaksM: splitPoints(corrections, r.ref) });
+    for (const d of applyRouteCorrections(r, built, corrections)) drafts.push(d);
+  }
+  return drafts;
+}
+
+/** Each route's observations per upload, for the offset-versus-chainage plot, by route reference. */
+function observationSeries(byRoute: Map<string, RouteObservations[]>): RouteObservationSeries[] {
   const observations: RouteObservationSeries[] = [];
   for (const [ref, list] of [...byRoute].sort((a, b) => a[0].localeCompare(b[0]))) {
     // per upload, its traces' fixes on the route: the arrays made at their full size, then filled
@@ -201,6 +227,5 @@ export async function reconcileProject(
     }
     for (const { ref: r, uploadId, chainageM, offsetM } of perUpload.values()) observations.push({ ref: r, uploadId, chainageM, offsetM });
   }
-  if (opts.timings) stats.timingsMs = timingsMs;
-  return { drafts, stats, observations };
+  return observations;
 }

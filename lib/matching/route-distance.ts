@@ -88,31 +88,52 @@ const PAIR_MIN_BOUND_M = 128;
 export function makeRouteNetwork(graph: RouteGraph, routes: PlannedRouteInput[]): RouteNetwork {
   const byRef = new Map<string, number>();
   routes.forEach((r, i) => byRef.has(r.ref) || byRef.set(r.ref, i)); // the graph keeps the first of a duplicated ref
-  const routeEdges = routes.map(() => [] as number[]);
-  graph.edges.forEach((e, i) => {
-    const k = byRef.get(e.ref);
-    if (k !== undefined) routeEdges[k].push(i);
-  });
-  for (const list of routeEdges) list.sort((a, b) => graph.edges[a].fromChainageM - graph.edges[b].fromChainageM);
+  // (plain loops: this runs once a reconciliation, mostly before V8 has optimised it, and a typed array's
+  // `from` with a mapping function is several times slower there than a loop)
+  const E = graph.edges.length;
+  const edgeFrom = new Float64Array(E);
+  const edgeTo = new Float64Array(E);
+  const edgeFromNode = new Int32Array(E);
+  const edgeToNode = new Int32Array(E);
+  // each route's edges by chainage: counted, placed, then each route's run sorted
+  const edgeRoute = new Int32Array(E);
   const routeEdgeStart = new Int32Array(routes.length + 1);
-  routeEdges.forEach((list, k) => (routeEdgeStart[k + 1] = routeEdgeStart[k] + list.length));
-  const routeEdgeList = Int32Array.from(routeEdges.flat());
-  const edgeFrom = Float64Array.from(graph.edges, (e) => e.fromChainageM);
-  const edgeTo = Float64Array.from(graph.edges, (e) => e.toChainageM);
-  const edgeFromNode = Int32Array.from(graph.edges, (e) => e.fromNode);
-  const edgeToNode = Int32Array.from(graph.edges, (e) => e.toNode);
+  for (let i = 0; i < E; i++) {
+    const e = graph.edges[i];
+    (edgeFrom[i] = e.fromChainageM), (edgeTo[i] = e.toChainageM), (edgeFromNode[i] = e.fromNode), (edgeToNode[i] = e.toNode);
+    const k = byRef.get(e.ref);
+    edgeRoute[i] = k === undefined ? -1 : k;
+    if (k !== undefined) routeEdgeStart[k + 1]++;
+  }
+  for (let k = 0; k < routes.length; k++) routeEdgeStart[k + 1] += routeEdgeStart[k];
+  const routeEdgeList = new Int32Array(routeEdgeStart[routes.length]);
+  const placedSoFar = routeEdgeStart.slice(0, routes.length);
+  for (let i = 0; i < E; i++) if (edgeRoute[i] >= 0) routeEdgeList[placedSoFar[edgeRoute[i]]++] = i;
+  for (let k = 0; k < routes.length; k++) {
+    // a stable insertion sort by from-chainage: a route has a handful of edges, mostly in order already
+    for (let a = routeEdgeStart[k] + 1; a < routeEdgeStart[k + 1]; a++) {
+      const e = routeEdgeList[a];
+      let b = a;
+      for (; b > routeEdgeStart[k] && edgeFrom[routeEdgeList[b - 1]] > edgeFrom[e]; b--) routeEdgeList[b] = routeEdgeList[b - 1];
+      routeEdgeList[b] = e;
+    }
+  }
   const n = graph.nodes.length;
   const degree = new Int32Array(n + 1);
-  for (const e of graph.edges) degree[e.fromNode]++, degree[e.toNode]++;
+  for (let i = 0; i < E; i++) degree[edgeFromNode[i]]++, degree[edgeToNode[i]]++;
   const adjStart = new Int32Array(n + 1);
   for (let i = 0; i < n; i++) adjStart[i + 1] = adjStart[i] + degree[i];
-  const deadEnd = Uint8Array.from(degree.subarray(0, n), (d) => (d === 1 ? 1 : 0));
+  const deadEnd = new Uint8Array(n);
+  for (let i = 0; i < n; i++) deadEnd[i] = degree[i] === 1 ? 1 : 0;
   const fill = adjStart.slice(0, n);
   const adjNode = new Int32Array(adjStart[n]);
   const adjLen = new Float64Array(adjStart[n]);
-  for (const e of graph.edges) {
-    (adjNode[fill[e.fromNode]] = e.toNode), (adjLen[fill[e.fromNode]++] = e.lengthM);
-    (adjNode[fill[e.toNode]] = e.fromNode), (adjLen[fill[e.toNode]++] = e.lengthM);
+  for (let i = 0; i < E; i++) {
+    const a = edgeFromNode[i];
+    const b = edgeToNode[i];
+    const length = graph.edges[i].lengthM;
+    (adjNode[fill[a]] = b), (adjLen[fill[a]++] = length);
+    (adjNode[fill[b]] = a), (adjLen[fill[b]++] = length);
   }
   // about 32 slots an edge, at most 16,384 (1 MB of edge pairs, 0.4 MB of node pairs): a walk's neighbourhood
   // stays in them. On bench:match's 3,907 edges, 4,096 to 131,072 slots match equally fast, and a small

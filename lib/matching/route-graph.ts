@@ -13,15 +13,32 @@ interface Route {
   nodeAt: [number, number];
 }
 
-/** Union–find over endpoint indices; a join keeps the smaller index as root, which keeps ids stable. */
-function unionFind(n: number) {
-  const parent = Array.from({ length: n }, (_, i) => i);
-  const find = (i: number): number => (parent[i] === i ? i : (parent[i] = find(parent[i])));
-  const union = (a: number, b: number) => {
-    const [ra, rb] = [find(a), find(b)];
-    if (ra !== rb) parent[Math.max(ra, rb)] = Math.min(ra, rb);
-  };
-  return { find, union };
+/**
+ * Union–find over endpoint indices; a join keeps the smaller index as root, which keeps ids stable.
+ * (A class, not closures made per graph: V8 keeps a method's optimised code from graph to graph.)
+ */
+class UnionFind {
+  readonly parent: Int32Array;
+  constructor(n: number) {
+    this.parent = new Int32Array(n);
+    for (let i = 0; i < n; i++) this.parent[i] = i;
+  }
+  find(i: number): number {
+    let root = i;
+    while (this.parent[root] !== root) root = this.parent[root];
+    // path compression, as the recursive form does: every node on the way points at the root
+    while (this.parent[i] !== root) {
+      const next = this.parent[i];
+      this.parent[i] = root;
+      i = next;
+    }
+    return root;
+  }
+  union(a: number, b: number): void {
+    const ra = this.find(a);
+    const rb = this.find(b);
+    if (ra !== rb) this.parent[Math.max(ra, rb)] = Math.min(ra, rb);
+  }
 }
 
 /** Nearest point of a planar polyline to p: its distance, and how far along (of how long) it lies. */
@@ -132,28 +149,30 @@ export function buildRouteGraph(routes: PlannedRouteInput[], opts: { snapM?: num
     index.add(Math.min(p[0], q[0]), Math.min(p[1], q[1]), Math.max(p[0], q[0]), Math.max(p[1], q[1]));
   }
   index.finish();
-  const near = (x: number, y: number, pad: number) => index.search(x - pad, y - pad, x + pad, y + pad);
 
-  // endpoint e = 2k (start of route k) or 2k + 1 (its end)
-  const endXY = (e: number) => (e % 2 === 0 ? rs[e >> 1].xy[0] : rs[e >> 1].xy[rs[e >> 1].xy.length - 1]);
+  // endpoint e = 2k (start of route k) or 2k + 1 (its end), its position in the frame in columns
+  const endX = new Float64Array(rs.length * 2);
+  const endY = new Float64Array(rs.length * 2);
+  for (let k = 0; k < rs.length; k++) {
+    const xy = rs[k].xy;
+    (endX[2 * k] = xy[0][0]), (endY[2 * k] = xy[0][1]), (endX[2 * k + 1] = xy[xy.length - 1][0]), (endY[2 * k + 1] = xy[xy.length - 1][1]);
+  }
   const endLonLat = (e: number) => (e % 2 === 0 ? rs[e >> 1].input.coords[0] : rs[e >> 1].input.coords[rs[e >> 1].input.coords.length - 1]);
-  const uf = unionFind(rs.length * 2);
+  const uf = new UnionFind(rs.length * 2);
   const hits: { e: number; route: number; chainageM: number; distanceM: number }[] = [];
   for (let e = 0; e < rs.length * 2; e++) {
-    const exy = endXY(e);
-    const x = exy[0];
-    const y = exy[1];
+    const x = endX[e];
+    const y = endY[e];
     // the routes with a segment in reach, once each, in the index's order
     const candidates = new Set<number>();
-    for (const seg of near(x, y, snapM)) candidates.add(segRoute[seg]);
+    for (const seg of index.search(x - snapM, y - snapM, x + snapM, y + snapM)) candidates.add(segRoute[seg]);
     for (const k of candidates) {
       const other = rs[k];
       for (let f = 2 * k; f <= 2 * k + 1; f++) {
-        const fxy = endXY(f);
-        if (f !== e && Math.hypot(fxy[0] - x, fxy[1] - y) <= snapM) uf.union(e, f);
+        if (f !== e && Math.hypot(endX[f] - x, endY[f] - y) <= snapM) uf.union(e, f);
       }
       if (k === e >> 1) continue;
-      const foot = nearestPlanar(other.xy, exy);
+      const foot = nearestPlanar(other.xy, [x, y]);
       if (foot.distance > snapM) continue;
       // a foot within snapM of the other route's end joins that end: no sliver edges shorter than snapM
       if (foot.along <= snapM || foot.along >= foot.length - snapM) {

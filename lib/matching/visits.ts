@@ -144,6 +144,73 @@ export function claimBeyondEnds(
   return { matched: kept, unmatched: merged, claimed: give.size };
 }
 
+const addInterval = (out: Map<string, [number, number][]>, ref: string, a: number, b: number) => (out.get(ref) ?? out.set(ref, []).get(ref)!).push([a, b]);
+const NONE: { node: number; at: number }[] = [];
+
+/**
+ * Where each route meets others, at which chainage on it. A node's routes are kept once each, in first-seen
+ * order with their last-listed chainage (as a Map keyed by ref keeps them). Its lookups are methods, not
+ * closures made per walk: V8 keeps a method's optimised code from call to call.
+ */
+class RouteJoins {
+  readonly nodeRefs: string[][] = [];
+  readonly nodeAts: number[][] = [];
+  readonly joins = new Map<string, { node: number; at: number }[]>();
+
+  constructor(graph: RouteGraph, readonly bridgeM: number) {
+    for (const n of graph.nodes) {
+      const refs: string[] = [];
+      const ats: number[] = [];
+      for (const r of n.routes) {
+        const i = refs.indexOf(r.ref);
+        if (i < 0) refs.push(r.ref), ats.push(r.chainageM);
+        else ats[i] = r.chainageM;
+      }
+      const id = this.nodeRefs.push(refs) - 1;
+      this.nodeAts.push(ats);
+      for (const r of n.routes) (this.joins.get(r.ref) ?? this.joins.set(r.ref, []).get(r.ref)!).push({ node: id, at: r.chainageM });
+    }
+  }
+
+  /** the chainage on `ref` nearest `c` (within bridgeM) where `other` joins it */
+  junction(ref: string, other: string, c: number): number | undefined {
+    let best: number | undefined;
+    for (const j of this.joins.get(ref) ?? NONE) if (this.nodeRefs[j.node].includes(other) && Math.abs(j.at - c) <= this.bridgeM && (best === undefined || Math.abs(j.at - c) < Math.abs(best - c))) best = j.at;
+    return best;
+  }
+
+  /** a route joining `ref` near c and `other` near cOther: where on `ref`, and the stretch of it walked across */
+  across(ref: string, c: number, other: string, cOther: number): { at: number; via: string; from: number; to: number } | undefined {
+    const { nodeRefs, nodeAts, bridgeM } = this;
+    let best: { at: number; via: string; from: number; to: number; cost: number } | undefined;
+    for (const j of this.joins.get(ref) ?? NONE) {
+      if (Math.abs(j.at - c) > bridgeM) continue;
+      const refs = nodeRefs[j.node];
+      for (let r = 0; r < refs.length; r++) {
+        const via = refs[r];
+        const viaAt = nodeAts[j.node][r];
+        if (via === ref || via === other) continue;
+        const far = this.junction(via, other, viaAt);
+        if (far === undefined) continue;
+        // the other route's chainage at the first of via's junctions at that chainage
+        let at: { node: number; at: number } | undefined;
+        for (const x of this.joins.get(via) ?? NONE) {
+          if (x.at !== far) continue;
+          at = x;
+          break;
+        }
+        const k = at ? nodeRefs[at.node].indexOf(other) : -1;
+        if (k < 0) continue;
+        const onOther = nodeAts[at!.node][k];
+        if (Math.abs(onOther - cOther) > bridgeM) continue;
+        const cost = Math.abs(j.at - c) + Math.abs(onOther - cOther) + Math.abs(far - viaAt);
+        if (!best || cost < best.cost) best = { at: j.at, via, from: Math.min(viaAt, far), to: Math.max(viaAt, far), cost };
+      }
+    }
+    return best && { at: best.at, via: best.via, from: best.from, to: best.to };
+  }
+}
+
 /**
  * The chainage intervals a walk saw built on each route. Each visit's chainages are smoothed by a local
  * linear fit over ±k fixes, so its ends are estimated without the noise of its first and last fix (the raw
@@ -163,55 +230,9 @@ export function walkedIntervals(
   graph: RouteGraph,
   opts: { k: number; bridgeM: number; minFixes: number; nearM: number; lengthOf: (ref: string) => number; apart?: (seqA: number, seqB: number) => boolean },
 ): Map<string, [number, number][]> {
-  // junctions by route: where each route meets others, at which chainage on it. A node's routes are kept
-  // once each, in first-seen order with their last-listed chainage (as a Map keyed by ref keeps them)
-  const nodeRefs: string[][] = [];
-  const nodeAts: number[][] = [];
-  const joins = new Map<string, { node: number; at: number }[]>();
-  for (const n of graph.nodes) {
-    const refs: string[] = [];
-    const ats: number[] = [];
-    for (const r of n.routes) {
-      const i = refs.indexOf(r.ref);
-      if (i < 0) refs.push(r.ref), ats.push(r.chainageM);
-      else ats[i] = r.chainageM;
-    }
-    const id = nodeRefs.push(refs) - 1;
-    nodeAts.push(ats);
-    for (const r of n.routes) (joins.get(r.ref) ?? joins.set(r.ref, []).get(r.ref)!).push({ node: id, at: r.chainageM });
-  }
-  const none: { node: number; at: number }[] = [];
-  /** the chainage on `ref` nearest `c` (within bridgeM) where `other` joins it */
-  const junction = (ref: string, other: string, c: number): number | undefined => {
-    let best: number | undefined;
-    for (const j of joins.get(ref) ?? none) if (nodeRefs[j.node].includes(other) && Math.abs(j.at - c) <= opts.bridgeM && (best === undefined || Math.abs(j.at - c) < Math.abs(best - c))) best = j.at;
-    return best;
-  };
-  /** a route joining `ref` near c and `other` near cOther: where on `ref`, and the stretch of it walked across */
-  const across = (ref: string, c: number, other: string, cOther: number): { at: number; via: string; from: number; to: number } | undefined => {
-    let best: { at: number; via: string; from: number; to: number; cost: number } | undefined;
-    for (const j of joins.get(ref) ?? none) {
-      if (Math.abs(j.at - c) > opts.bridgeM) continue;
-      const refs = nodeRefs[j.node];
-      for (let r = 0; r < refs.length; r++) {
-        const via = refs[r];
-        const viaAt = nodeAts[j.node][r];
-        if (via === ref || via === other) continue;
-        const far = junction(via, other, viaAt);
-        if (far === undefined) continue;
-        // the other route's chainage at the first of via's junctions at that chainage
-        const at = (joins.get(via) ?? none).find((x) => x.at === far);
-        const k = at ? nodeRefs[at.node].indexOf(other) : -1;
-        if (k < 0) continue;
-        const onOther = nodeAts[at!.node][k];
-        if (Math.abs(onOther - cOther) > opts.bridgeM) continue;
-        const cost = Math.abs(j.at - c) + Math.abs(onOther - cOther) + Math.abs(far - viaAt);
-        if (!best || cost < best.cost) best = { at: j.at, via, from: Math.min(viaAt, far), to: Math.max(viaAt, far), cost };
-      }
-    }
-    return best && { at: best.at, via: best.via, from: best.from, to: best.to };
-  };
-  const toEnd = (ref: string, c: number) => (c <= opts.nearM ? 0 : c >= opts.lengthOf(ref) - opts.nearM ? opts.lengthOf(ref) : c);
+  const joins = new RouteJoins(graph, opts.bridgeM);
+  const lengthOf = opts.lengthOf;
+  const nearM = opts.nearM;
 
   // a stay on a route ends where the walk left the network in between (an unplanned run), too
   const visits: Visit[] = [];
@@ -230,9 +251,9 @@ export function walkedIntervals(
     for (let i = 0; i < len; i++) smooth[v.start + i] = localLinearFrom(chain, v.start, i, Math.max(0, i - opts.k), Math.min(len - 1, i + opts.k));
   }
   const out = new Map<string, [number, number][]>();
-  const add = (ref: string, a: number, b: number) => (out.get(ref) ?? out.set(ref, []).get(ref)!).push([a, b]);
   const snapped = smooth.slice();
-  visits.forEach((v, n) => {
+  for (let n = 0; n < visits.length; n++) {
+    const v = visits[n];
     const last = v.end - 1;
     // the visit's first fix meets the visit before, its last the one after
     for (let end = 0; end < 2; end++) {
@@ -240,19 +261,19 @@ export function walkedIntervals(
       const other = end === 0 ? visits[n - 1] : visits[n + 1];
       const cOther = other === undefined ? undefined : end === 0 ? smooth[other.end - 1] : smooth[other.start];
       const c = smooth[i];
-      const direct = other && other.ref !== v.ref ? junction(v.ref, other.ref, c) : undefined;
-      const via = other && other.ref !== v.ref && direct === undefined ? across(v.ref, c, other.ref, cOther!) : undefined;
-      if (via) add(via.via, via.from, via.to);
-      snapped[i] = direct ?? via?.at ?? toEnd(v.ref, c);
+      const direct = other && other.ref !== v.ref ? joins.junction(v.ref, other.ref, c) : undefined;
+      const via = other && other.ref !== v.ref && direct === undefined ? joins.across(v.ref, c, other.ref, cOther!) : undefined;
+      if (via) addInterval(out, via.via, via.from, via.to);
+      snapped[i] = direct ?? via?.at ?? (c <= nearM ? 0 : c >= lengthOf(v.ref) - nearM ? lengthOf(v.ref) : c);
     }
     let a = snapped[v.start];
     let b = snapped[v.start];
     for (let i = v.start + 1; i <= last; i++) {
-      if (Math.abs(snapped[i] - snapped[i - 1]) > opts.bridgeM) (add(v.ref, a, b), (a = b = snapped[i]));
+      if (Math.abs(snapped[i] - snapped[i - 1]) > opts.bridgeM) (addInterval(out, v.ref, a, b), (a = b = snapped[i]));
       else (a = Math.min(a, snapped[i])), (b = Math.max(b, snapped[i]));
     }
-    add(v.ref, a, b);
-  });
+    addInterval(out, v.ref, a, b);
+  }
   // a few metres between two stays on a route are the blur of a handover (a hop onto a joining route and
   // back), not a gap in the trench: within 2·nearM they close; a stay that shrank to a point saw nothing
   for (const [ref, list] of out) {
