@@ -53,11 +53,15 @@ export interface CandidateIndex {
  * `makeCandidateIndex(routes).segRoute.length` → the number of segments of all routes
  */
 export function makeCandidateIndex(routes: PlannedRouteInput[]): CandidateIndex {
-  let [minLon, minLat, maxLon, maxLat] = [Infinity, Infinity, -Infinity, -Infinity];
+  // (plain loops, no destructuring or callbacks: this runs once a reconciliation, before V8 has optimised it)
+  let minLon = Infinity;
+  let minLat = Infinity;
+  let maxLon = -Infinity;
+  let maxLat = -Infinity;
   let nv = 0;
   let ns = 0;
   for (const r of routes) {
-    for (const [x, y] of r.coords) [minLon, minLat, maxLon, maxLat] = [Math.min(minLon, x), Math.min(minLat, y), Math.max(maxLon, x), Math.max(maxLat, y)];
+    for (const c of r.coords) (minLon = Math.min(minLon, c[0])), (minLat = Math.min(minLat, c[1])), (maxLon = Math.max(maxLon, c[0])), (maxLat = Math.max(maxLat, c[1]));
     nv += r.coords.length;
     ns += Math.max(r.coords.length - 1, 0);
   }
@@ -72,17 +76,18 @@ export function makeCandidateIndex(routes: PlannedRouteInput[]): CandidateIndex 
   const segVertex = new Int32Array(ns);
   let v = 0;
   let s = 0;
-  routes.forEach((r, k) => {
+  for (let k = 0; k < routes.length; k++) {
+    const coords = routes[k].coords;
     routeStart[k] = v;
-    const c = cumulativeChainage(r.coords);
-    r.coords.forEach(([lon, lat], i) => {
-      xs[v + i] = (((((lon - lon0) % 360) + 540) % 360) - 180) * mx0;
-      ys[v + i] = (lat - lat0) * my0;
+    const c = cumulativeChainage(coords);
+    for (let i = 0; i < coords.length; i++) {
+      xs[v + i] = (((((coords[i][0] - lon0) % 360) + 540) % 360) - 180) * mx0;
+      ys[v + i] = (coords[i][1] - lat0) * my0;
       cum[v + i] = c[i];
       if (i > 0) (segRoute[s] = k), (segVertex[s] = v + i - 1), s++;
-    });
-    v += r.coords.length;
-  });
+    }
+    v += coords.length;
+  }
   routeStart[routes.length] = v;
   let tree: Flatbush | null = null;
   if (ns > 0) {

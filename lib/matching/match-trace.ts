@@ -56,15 +56,15 @@ const dist = (p: Plane, i: number, j: number) => {
 };
 
 /**
- * Isolated spikes of one piece (indices into fixes, in order). A fix is a spike when it lies far from where
+ * Isolated spikes of one piece (indices into fixes, in order), a flag per fix (1: a spike). A fix is a spike when it lies far from where
  * its neighbours put it: the reference is the time-interpolated position between i−1 and i+1 averaged with
  * that between i−2 and i+2 (noise of the reference ≈ σ/2, and a slowly varying bias cancels). Far means
  * beyond 3.5σ (white noise alone: < 0.5 % of fixes) AND, for timed fixes, beyond what maxSpeedMps allows
  * in the time to the nearer neighbour, or, without time, beyond gapMetres / 2. Raw fix-to-fix speeds are no
  * test at 1 Hz: 3–4 m noise alone makes consecutive handheld fixes "move" at 5 m/s.
  */
-function spikes(fixes: Fix[], piece: number[], p: Plane, o: ResolvedMatchOptions): boolean[] {
-  const out = piece.map(() => false);
+function spikes(fixes: Fix[], piece: number[], p: Plane, o: ResolvedMatchOptions): Uint8Array {
+  const out = new Uint8Array(piece.length);
   // the time-interpolated position between fixes a and b at fix i's time (halfway without times), as a
   // weight: a closure setting captured numbers would box each of them
   const weight = (a: number, b: number, i: number) => {
@@ -94,7 +94,7 @@ function spikes(fixes: Fix[], piece: number[], p: Plane, o: ResolvedMatchOptions
     const ti = fixes[i].t;
     const tn = fixes[piece[k + 1]].t;
     const allow = tp !== null && ti !== null && tn !== null ? o.maxSpeedMps * Math.max(Math.min(ti - tp, tn - ti), 0) : o.gapMetres / 2;
-    out[k] = dev > 3.5 * o.sigmaM && dev > allow;
+    out[k] = dev > 3.5 * o.sigmaM && dev > allow ? 1 : 0;
   }
   return out;
 }
@@ -177,8 +177,13 @@ interface States extends Placements {
   back: Int8Array;
 }
 
+// (each a literal of its own, never a spread: every object of a kind then has one shape, which V8's code for
+// the steps below is specialised to)
 const placements = (n: number): Placements => ({ route: new Int32Array(n), chainage: new Float64Array(n), offset: new Float64Array(n), distance: new Float64Array(n) });
-const states = (n: number): States => ({ ...placements(n), edge: new Int32Array(n), leg0: new Float64Array(n), leg1: new Float64Array(n), score: new Float64Array(n), back: new Int8Array(n) });
+const states = (n: number): States => ({
+  route: new Int32Array(n), chainage: new Float64Array(n), offset: new Float64Array(n), distance: new Float64Array(n),
+  edge: new Int32Array(n), leg0: new Float64Array(n), leg1: new Float64Array(n), score: new Float64Array(n), back: new Int8Array(n),
+});
 
 /**
  * One matchTrace call's state and steps. Its steps are methods, not closures made inside matchTrace: V8
@@ -207,7 +212,7 @@ class TraceMatcher {
   /** projectInFrame's answer */
   readonly foot = { chainageM: 0, offsetM: 0, distanceM: 0 };
   /** between's scratch, grown as needed: positions on the two routes, two a layer, with their scores */
-  st = states(0);
+  st = states(64);
   /** the bound of the step between is scoring */
   readonly stepBound = new Float64Array(1);
   /** the layers solve is running Viterbi over: their first candidates, straight-line steps and bounds */

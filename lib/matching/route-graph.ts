@@ -93,6 +93,118 @@ function pairDiagnostics(rs: Route[], index: Flatbush, segRoute: number[], snapM
 /** whether the line has at least two distinct positions */
 const twoPositions = (coords: LonLat[]) => coords.some((c) => c[0] !== coords[0][0] || c[1] !== coords[0][1]);
 
+/** A route's start (e = 2k) or end (e = 2k + 1) as given. */
+const endLonLat = (rs: Route[], e: number): LonLat => (e % 2 === 0 ? rs[e >> 1].input.coords[0] : rs[e >> 1].input.coords[rs[e >> 1].input.coords.length - 1]);
+
+// buildRouteGraph's phases are functions of their own: V8 optimises a small function's loops quickly and
+// keeps the code from graph to graph, where one large function would run them unoptimised while it compiles
+
+/** One flatbush index over every segment of the routes; segment ids map back through segRoute/segStart. */
+function segmentIndex(rs: Route[]): { index: Flatbush; segRoute: number[] } {
+  const segRoute: number[] = [];
+  const segStart: number[] = [];
+  for (let k = 0; k < rs.length; k++) for (let i = 0; i + 1 < rs[k].xy.length; i++) segRoute.push(k), segStart.push(i);
+  const index = new Flatbush(segRoute.length);
+  for (let s = 0; s < segRoute.length; s++) {
+    const p = rs[segRoute[s]].xy[segStart[s]];
+    const q = rs[segRoute[s]].xy[segStart[s] + 1];
+    index.add(Math.min(p[0], q[0]), Math.min(p[1], q[1]), Math.max(p[0], q[0]), Math.max(p[1], q[1]));
+  }
+  index.finish();
+  return { index, segRoute };
+}
+
+/**
+ * Joins the endpoints within snapM of each other in `uf`, and an endpoint near another route's end onto that
+ * end; returns the endpoints that land on another route's interior (T-junctions), with where on it.
+ */
+function endpointJoins(rs: Route[], index: Flatbush, segRoute: number[], snapM: number, uf: UnionFind): { e: number; route: number; chainageM: number; distanceM: number }[] {
+  // endpoint e = 2k (start of route k) or 2k + 1 (its end), its position in the frame in columns
+  const endX = new Float64Array(rs.length * 2);
+  const endY = new Float64Array(rs.length * 2);
+  for (let k = 0; k < rs.length; k++) {
+    const xy = rs[k].xy;
+    (endX[2 * k] = xy[0][0]), (endY[2 * k] = xy[0][1]), (endX[2 * k + 1] = xy[xy.length - 1][0]), (endY[2 * k + 1] = xy[xy.length - 1][1]);
+  }
+  const hits: { e: number; route: number; chainageM: number; distanceM: number }[] = [];
+  for (let e = 0; e < rs.length * 2; e++) {
+    const x = endX[e];
+    const y = endY[e];
+    // the routes with a segment in reach, once each, in the index's order
+    const candidates = new Set<number>();
+    for (const seg of index.search(x - snapM, y - snapM, x + snapM, y + snapM)) candidates.add(segRoute[seg]);
+    for (const k of candidates) {
+      const other = rs[k];
+      for (let f = 2 * k; f <= 2 * k + 1; f++) {
+        if (f !== e && Math.hypot(endX[f] - x, endY[f] - y) <= snapM) uf.union(e, f);
+      }
+      if (k === e >> 1) continue;
+      const foot = nearestPlanar(other.xy, [x, y]);
+      if (foot.distance > snapM) continue;
+      // a foot within snapM of the other route's end joins that end: no sliver edges shorter than snapM
+      if (foot.along <= snapM || foot.along >= foot.length - snapM) {
+        uf.union(e, 2 * foot.along < foot.length ? 2 * k : 2 * k + 1);
+        continue;
+      }
+      const p = projectOntoLine(other.input.coords, endLonLat(rs, e));
+      hits.push({ e, route: k, chainageM: p.chainageM, distanceM: foot.distance });
+    }
+  }
+  return hits;
+}
+
+/** One node per set of joined endpoints, at their mean position, listing each route end at it; sets each route's nodeAt. */
+function graphNodes(rs: Route[], uf: UnionFind): { nodes: GraphNode[]; nodeOf: Map<number, number> } {
+  const nodeOf = new Map<number, number>();
+  const nodes: GraphNode[] = [];
+  const members: number[][] = [];
+  for (let e = 0; e < rs.length * 2; e++) {
+    const root = uf.find(e);
+    if (!nodeOf.has(root)) {
+      nodeOf.set(root, nodes.length);
+      nodes.push({ id: nodes.length, position: [0, 0], routes: [] });
+      members.push([]);
+    }
+    const id = nodeOf.get(root)!;
+    members[id].push(e);
+    rs[e >> 1].nodeAt[e % 2] = id;
+    nodes[id].routes.push({ ref: rs[e >> 1].input.ref, chainageM: e % 2 === 0 ? 0 : rs[e >> 1].lengthM });
+  }
+  for (let id = 0; id < nodes.length; id++) {
+    let lon = 0;
+    let lat = 0;
+    for (const e of members[id]) (lon += endLonLat(rs, e)[0]), (lat += endLonLat(rs, e)[1]);
+    nodes[id].position = [lon / members[id].length, lat / members[id].length];
+  }
+  return { nodes, nodeOf };
+}
+
+/** Each route's edges, cut at its T-junctions (one cut per node, the nearest endpoint's); adds the cuts to their nodes' lists. */
+function graphEdges(rs: Route[], splits: { chainageM: number; e: number; distanceM: number }[][], nodes: GraphNode[], nodeOf: Map<number, number>, uf: UnionFind): GraphEdge[] {
+  const edges: GraphEdge[] = [];
+  for (let k = 0; k < rs.length; k++) {
+    const r = rs[k];
+    const cuts = [{ chainageM: 0, node: r.nodeAt[0] }];
+    const byNode = new Map<number, { chainageM: number; distanceM: number }>();
+    for (const h of splits[k]) {
+      const id = nodeOf.get(uf.find(h.e))!;
+      const prev = byNode.get(id);
+      if (!prev || h.distanceM < prev.distanceM) byNode.set(id, h);
+    }
+    for (const [node, h] of [...byNode].sort((a, b) => a[1].chainageM - b[1].chainageM)) {
+      cuts.push({ chainageM: h.chainageM, node });
+      nodes[node].routes.push({ ref: r.input.ref, chainageM: h.chainageM });
+    }
+    cuts.push({ chainageM: r.lengthM, node: r.nodeAt[1] });
+    for (let i = 1; i < cuts.length; i++) {
+      const a = cuts[i - 1];
+      const b = cuts[i];
+      edges.push({ ref: r.input.ref, fromNode: a.node, toNode: b.node, fromChainageM: a.chainageM, toChainageM: b.chainageM, lengthM: b.chainageM - a.chainageM });
+    }
+  }
+  return edges;
+}
+
 /**
  * Joins the planned routes into a graph. Endpoints within `snapM` of each other become one node; an
  * endpoint within `snapM` of another route's interior splits that route there (a T-junction). Every
@@ -136,53 +248,18 @@ export function buildRouteGraph(routes: PlannedRouteInput[], opts: { snapM?: num
     for (const c of r.input.coords) (minLon = Math.min(minLon, c[0])), (minLat = Math.min(minLat, c[1])), (maxLon = Math.max(maxLon, c[0])), (maxLat = Math.max(maxLat, c[1]));
   }
   const frame = localFrame([(minLon + maxLon) / 2, (minLat + maxLat) / 2]);
-  const rs: Route[] = valid.map(({ input, lengthM }) => ({ input, xy: input.coords.map(frame.toXY), lengthM, nodeAt: [-1, -1] }));
-
-  // one index over every segment; ids map back through segRoute/segStart
-  const segRoute: number[] = [];
-  const segStart: number[] = [];
-  rs.forEach((r, k) => r.xy.slice(1).forEach((_, i) => (segRoute.push(k), segStart.push(i))));
-  const index = new Flatbush(segRoute.length);
-  for (let s = 0; s < segRoute.length; s++) {
-    const p = rs[segRoute[s]].xy[segStart[s]];
-    const q = rs[segRoute[s]].xy[segStart[s] + 1];
-    index.add(Math.min(p[0], q[0]), Math.min(p[1], q[1]), Math.max(p[0], q[0]), Math.max(p[1], q[1]));
+  // (arrays pushed to, not made by `map`: the kind of array `map` makes depends on whether V8 runs it
+  // optimised, and the phases below, optimised for one kind, would be thrown back by the other)
+  const rs: Route[] = [];
+  for (const { input, lengthM } of valid) {
+    const xy: XY[] = [];
+    for (const c of input.coords) xy.push(frame.toXY(c));
+    rs.push({ input, xy, lengthM, nodeAt: [-1, -1] });
   }
-  index.finish();
 
-  // endpoint e = 2k (start of route k) or 2k + 1 (its end), its position in the frame in columns
-  const endX = new Float64Array(rs.length * 2);
-  const endY = new Float64Array(rs.length * 2);
-  for (let k = 0; k < rs.length; k++) {
-    const xy = rs[k].xy;
-    (endX[2 * k] = xy[0][0]), (endY[2 * k] = xy[0][1]), (endX[2 * k + 1] = xy[xy.length - 1][0]), (endY[2 * k + 1] = xy[xy.length - 1][1]);
-  }
-  const endLonLat = (e: number) => (e % 2 === 0 ? rs[e >> 1].input.coords[0] : rs[e >> 1].input.coords[rs[e >> 1].input.coords.length - 1]);
+  const { index, segRoute } = segmentIndex(rs);
   const uf = new UnionFind(rs.length * 2);
-  const hits: { e: number; route: number; chainageM: number; distanceM: number }[] = [];
-  for (let e = 0; e < rs.length * 2; e++) {
-    const x = endX[e];
-    const y = endY[e];
-    // the routes with a segment in reach, once each, in the index's order
-    const candidates = new Set<number>();
-    for (const seg of index.search(x - snapM, y - snapM, x + snapM, y + snapM)) candidates.add(segRoute[seg]);
-    for (const k of candidates) {
-      const other = rs[k];
-      for (let f = 2 * k; f <= 2 * k + 1; f++) {
-        if (f !== e && Math.hypot(endX[f] - x, endY[f] - y) <= snapM) uf.union(e, f);
-      }
-      if (k === e >> 1) continue;
-      const foot = nearestPlanar(other.xy, [x, y]);
-      if (foot.distance > snapM) continue;
-      // a foot within snapM of the other route's end joins that end: no sliver edges shorter than snapM
-      if (foot.along <= snapM || foot.along >= foot.length - snapM) {
-        uf.union(e, 2 * foot.along < foot.length ? 2 * k : 2 * k + 1);
-        continue;
-      }
-      const p = projectOntoLine(other.input.coords, endLonLat(e));
-      hits.push({ e, route: k, chainageM: p.chainageM, distanceM: foot.distance });
-    }
-  }
+  const hits = endpointJoins(rs, index, segRoute, snapM, uf);
   // several endpoints snapping onto one route at (nearly) one place are one junction
   const splits = rs.map(() => [] as { chainageM: number; e: number; distanceM: number }[]);
   for (const h of hits) splits[h.route].push(h);
@@ -191,45 +268,8 @@ export function buildRouteGraph(routes: PlannedRouteInput[], opts: { snapM?: num
     for (let i = 1; i < list.length; i++) if (list[i].chainageM - list[i - 1].chainageM <= snapM) uf.union(list[i - 1].e, list[i].e);
   }
 
-  const nodeOf = new Map<number, number>();
-  const nodes: GraphNode[] = [];
-  const members: number[][] = [];
-  for (let e = 0; e < rs.length * 2; e++) {
-    const root = uf.find(e);
-    if (!nodeOf.has(root)) {
-      nodeOf.set(root, nodes.length);
-      nodes.push({ id: nodes.length, position: [0, 0], routes: [] });
-      members.push([]);
-    }
-    const id = nodeOf.get(root)!;
-    members[id].push(e);
-    rs[e >> 1].nodeAt[e % 2] = id;
-    nodes[id].routes.push({ ref: rs[e >> 1].input.ref, chainageM: e % 2 === 0 ? 0 : rs[e >> 1].lengthM });
-  }
-  nodes.forEach((n, id) => {
-    const ps = members[id].map(endLonLat);
-    n.position = [ps.reduce((s, p) => s + p[0], 0) / ps.length, ps.reduce((s, p) => s + p[1], 0) / ps.length];
-  });
-
-  const edges: GraphEdge[] = [];
-  rs.forEach((r, k) => {
-    const cuts = [{ chainageM: 0, node: r.nodeAt[0] }];
-    const byNode = new Map<number, { chainageM: number; distanceM: number }>();
-    for (const h of splits[k]) {
-      const id = nodeOf.get(uf.find(h.e))!;
-      const prev = byNode.get(id);
-      if (!prev || h.distanceM < prev.distanceM) byNode.set(id, h);
-    }
-    for (const [node, h] of [...byNode].sort((a, b) => a[1].chainageM - b[1].chainageM)) {
-      cuts.push({ chainageM: h.chainageM, node });
-      nodes[node].routes.push({ ref: r.input.ref, chainageM: h.chainageM });
-    }
-    cuts.push({ chainageM: r.lengthM, node: r.nodeAt[1] });
-    for (let i = 1; i < cuts.length; i++) {
-      const [a, b] = [cuts[i - 1], cuts[i]];
-      edges.push({ ref: r.input.ref, fromNode: a.node, toNode: b.node, fromChainageM: a.chainageM, toChainageM: b.chainageM, lengthM: b.chainageM - a.chainageM });
-    }
-  });
+  const { nodes, nodeOf } = graphNodes(rs, uf);
+  const edges = graphEdges(rs, splits, nodes, nodeOf, uf);
 
   // duplicated and overlapping lines are for the engineer's import report; the matcher only needs the graph
   if (opts.pairChecks !== false) diagnostics.push(...pairDiagnostics(rs, index, segRoute, snapM));
