@@ -26,7 +26,8 @@ interface Bin {
 
 /** Mean without the extreme tenth at either end: nearly the mean's power, and one wild fix cannot move it. */
 function trimmedMean(xs: number[]): number {
-  const s = [...xs].sort((a, b) => a - b);
+  // (a typed copy sorts numerically without a comparator, whatever kind of array xs is)
+  const s = Float64Array.from(xs).sort();
   const k = Math.floor(s.length * 0.1);
   const kept = s.slice(k, s.length - k);
   return kept.reduce((n, x) => n + x, 0) / kept.length;
@@ -34,7 +35,7 @@ function trimmedMean(xs: number[]): number {
 
 const quantile = (xs: number[], q: number) => {
   if (xs.length === 0) return 0;
-  const s = [...xs].sort((a, b) => a - b);
+  const s = Float64Array.from(xs).sort();
   return s[Math.min(s.length - 1, Math.max(0, Math.ceil(q * s.length) - 1))];
 };
 const median = (xs: number[]) => quantile(xs, 0.5);
@@ -212,14 +213,22 @@ const routeScratch = new Scratch();
 
 function smoothBins(route: LonLat[], length: number, sources: RouteObservations[], o: Required<SectionOptions>): Bin[] {
   const nb = Math.max(1, Math.ceil(length));
-  const covered = sources.map((s) => seen(s, o));
   routeScratch.reset();
-  // each source's fixes by chainage, as columns
-  const columns = sources.map((s) => sortedColumns(s.fixes, routeScratch));
-  const scratch = routeScratch.f64(Math.max(1, ...sources.map((s) => s.fixes.length)));
-  // per source, made when first used: its window, its ring and the ring's time span, slid metre by metre
-  // and the six window bounds it last found (inner, outer ring and inner ring: start and end each)
-  const slides = columns.map(() => null as null | { inner: SortedWindow; ring: SortedWindow; times: WindowExtremes; at: Int32Array });
+  // per source: where it saw the trench, its fixes by chainage as columns, and, made when first used, its
+  // window, its ring and the ring's time span, slid metre by metre, and the six window bounds it last found
+  // (inner, outer ring and inner ring: start and end each). Arrays pushed to, not made by `map`: the kind of
+  // array `map` makes depends on whether V8 runs it optimised, and code optimised for one is thrown back by the other
+  const covered: [number, number][][] = [];
+  const columns: SortedFixes[] = [];
+  const slides: (null | { inner: SortedWindow; ring: SortedWindow; times: WindowExtremes; at: Int32Array })[] = [];
+  let most = 1;
+  for (const s of sources) {
+    covered.push(seen(s, o));
+    columns.push(sortedColumns(s.fixes, routeScratch));
+    slides.push(null);
+    most = Math.max(most, s.fixes.length);
+  }
+  const scratch = routeScratch.f64(most);
   const bins: Bin[] = [];
   for (let i = 0; i < nb; i++) {
     const c = Math.min(length, i + 0.5);

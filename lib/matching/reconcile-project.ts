@@ -99,7 +99,6 @@ export async function reconcileProject(
   const corrections = opts.corrections ?? [];
   const routeByRef = new Map(routes.map((r) => [r.ref, r]));
   const lengths = new Map(routes.map((r) => [r.ref, lineLengthM(r.coords)]));
-  const lengthOf = (ref: string) => lengths.get(ref) ?? 0;
   const byRoute = new Map<string, RouteObservations[]>();
   const drafts: SectionDraft[] = [];
   const stats: ReconcileStats = { fixes: 0, matched: 0, outliers: 0, unplannedRuns: 0, pieces: 0, reassigned: 0, junctionHops: 0 };
@@ -138,8 +137,7 @@ export async function reconcileProject(
       const perRef = fixesByRoute(matched);
       // where a walk saw trench: per visit, from its smoothed chainages (survey points are taken as they are)
       const offNetwork = new Set(ends.unmatched.flatMap((r) => r.fixes.map((f) => f.seq)));
-      const apart = (a: number, b: number) => { for (let q = a + 1; q < b; q++) if (offNetwork.has(q)) return true; return false; };
-      const walked = up.surveyGrade ? null : walkedIntervals(matched, graph, { k: 5, bridgeM: SECTION_DEFAULTS.bridgeM, minFixes: 3, nearM: 2 * up.sigmaM, lengthOf, apart: offNetwork.size > 0 ? apart : undefined });
+      const walked = up.surveyGrade ? null : walkedIntervals(matched, graph, { k: 5, bridgeM: SECTION_DEFAULTS.bridgeM, minFixes: 3, nearM: 2 * up.sigmaM, lengths, offNetwork });
       // a route the walk crossed without a fix matched on it (a short road crossing) is still seen built
       if (walked) for (const ref of walked.keys()) if (!perRef.has(ref) && walked.get(ref)!.length > 0) perRef.set(ref, []);
       for (const [ref, fixes] of perRef) {

@@ -205,6 +205,18 @@ function graphEdges(rs: Route[], splits: { chainageM: number; e: number; distanc
   return edges;
 }
 
+/** A diagnostic for each route end that meets no other route. */
+function danglingEnds(rs: Route[], nodes: GraphNode[]): Diagnostic[] {
+  const out: Diagnostic[] = [];
+  for (let e = 0; e < rs.length * 2; e++) {
+    const node = nodes[rs[e >> 1].nodeAt[e % 2]];
+    if (node.routes.length > 1) continue;
+    const ref = rs[e >> 1].input.ref;
+    out.push({ kind: 'dangling_end', refs: [ref], position: node.position, message: `${ref} ends without joining another route (at its ${e % 2 === 0 ? 'start' : 'end'})` });
+  }
+  return out;
+}
+
 /**
  * Joins the planned routes into a graph. Endpoints within `snapM` of each other become one node; an
  * endpoint within `snapM` of another route's interior splits that route there (a T-junction). Every
@@ -273,11 +285,6 @@ export function buildRouteGraph(routes: PlannedRouteInput[], opts: { snapM?: num
 
   // duplicated and overlapping lines are for the engineer's import report; the matcher only needs the graph
   if (opts.pairChecks !== false) diagnostics.push(...pairDiagnostics(rs, index, segRoute, snapM));
-  for (let e = 0; e < rs.length * 2; e++) {
-    const node = nodes[rs[e >> 1].nodeAt[e % 2]];
-    if (node.routes.length > 1) continue;
-    const ref = rs[e >> 1].input.ref;
-    diagnostics.push({ kind: 'dangling_end', refs: [ref], position: node.position, message: `${ref} ends without joining another route (at its ${e % 2 === 0 ? 'start' : 'end'})` });
-  }
+  for (const d of danglingEnds(rs, nodes)) diagnostics.push(d);
   return { nodes, edges, diagnostics };
 }

@@ -132,7 +132,7 @@ export function claimBeyondEnds(
     const to = scan(after);
     return { fixes: [...claim, ...run].sort((a, b) => a.seq - b.seq), from, to };
   });
-  const kept = matched.filter((_, i) => !give.has(i));
+  const kept = give.size === 0 ? matched : matched.filter((_, i) => !give.has(i));
   // runs that now meet (a noisy fix in reach of the route's end had cut one walk in two) become one
   const merged: UnmatchedRun[] = [];
   for (const run of grown) {
@@ -219,61 +219,21 @@ class RouteJoins {
  * trench turned; within `bridgeM`, as a signal gap is bridged). When the two routes do not meet but one
  * route joins both — a road crossing too short for a noisy walk to show — the walk crossed it: the visit's
  * end goes to that route's junction and the crossing is seen built between its two junctions. Otherwise an
- * end within `nearM` of the route's own end goes to that end. A visit also ends where the walk left the
- * network (`apart`: an unplanned run between two fixes). Stays closer than 2·nearM join; visits of fewer
- * than `minFixes` fixes are noise about a junction and see nothing.
+ * end within `nearM` of the route's own end (`lengths`: each route's length by ref) goes to that end. A visit
+ * also ends where the walk left the network (`offNetwork`: the seqs of its fixes in unplanned runs). Stays
+ * closer than 2·nearM join; visits of fewer than `minFixes` fixes are noise about a junction and see nothing.
+ * (Data, not callbacks: a callback made per reconciliation would throw V8's optimised code for this back.)
  *
- * walkedIntervals(matched, graph, { k: 5, bridgeM: 60, minFixes: 3, nearM: 7, lengthOf }).get('N1') → [[0, 212.4]]
+ * walkedIntervals(matched, graph, { k: 5, bridgeM: 60, minFixes: 3, nearM: 7, lengths }).get('N1') → [[0, 212.4]]
  */
 export function walkedIntervals(
   matched: { seq: number; ref: string; chainageM: number }[],
   graph: RouteGraph,
-  opts: { k: number; bridgeM: number; minFixes: number; nearM: number; lengthOf: (ref: string) => number; apart?: (seqA: number, seqB: number) => boolean },
+  opts: { k: number; bridgeM: number; minFixes: number; nearM: number; lengths: Map<string, number>; offNetwork?: Set<number> },
 ): Map<string, [number, number][]> {
-  const joins = new RouteJoins(graph, opts.bridgeM);
-  const lengthOf = opts.lengthOf;
-  const nearM = opts.nearM;
-
-  // a stay on a route ends where the walk left the network in between (an unplanned run), too
-  const visits: Visit[] = [];
-  const apart = opts.apart;
-  for (const v of splitVisits(matched)) {
-    let start = v.start;
-    if (apart) for (let i = v.start + 1; i < v.end; i++) if (apart(matched[i - 1].seq, matched[i].seq)) (i - start >= opts.minFixes && visits.push({ ref: v.ref, start, end: i }), (start = i));
-    if (v.end - start >= opts.minFixes) visits.push(start === v.start ? v : { ref: v.ref, start, end: v.end });
-  }
-  // each visit's chainages smoothed, in one column by matched index (visits do not overlap)
-  const chain = new Float64Array(matched.length);
-  for (let q = 0; q < matched.length; q++) chain[q] = matched[q].chainageM;
-  const smooth = new Float64Array(matched.length);
-  for (const v of visits) {
-    const len = v.end - v.start;
-    for (let i = 0; i < len; i++) smooth[v.start + i] = localLinearFrom(chain, v.start, i, Math.max(0, i - opts.k), Math.min(len - 1, i + opts.k));
-  }
-  const out = new Map<string, [number, number][]>();
-  const snapped = smooth.slice();
-  for (let n = 0; n < visits.length; n++) {
-    const v = visits[n];
-    const last = v.end - 1;
-    // the visit's first fix meets the visit before, its last the one after
-    for (let end = 0; end < 2; end++) {
-      const i = end === 0 ? v.start : last;
-      const other = end === 0 ? visits[n - 1] : visits[n + 1];
-      const cOther = other === undefined ? undefined : end === 0 ? smooth[other.end - 1] : smooth[other.start];
-      const c = smooth[i];
-      const direct = other && other.ref !== v.ref ? joins.junction(v.ref, other.ref, c) : undefined;
-      const via = other && other.ref !== v.ref && direct === undefined ? joins.across(v.ref, c, other.ref, cOther!) : undefined;
-      if (via) addInterval(out, via.via, via.from, via.to);
-      snapped[i] = direct ?? via?.at ?? (c <= nearM ? 0 : c >= lengthOf(v.ref) - nearM ? lengthOf(v.ref) : c);
-    }
-    let a = snapped[v.start];
-    let b = snapped[v.start];
-    for (let i = v.start + 1; i <= last; i++) {
-      if (Math.abs(snapped[i] - snapped[i - 1]) > opts.bridgeM) (addInterval(out, v.ref, a, b), (a = b = snapped[i]));
-      else (a = Math.min(a, snapped[i])), (b = Math.max(b, snapped[i]));
-    }
-    addInterval(out, v.ref, a, b);
-  }
+  const visits = stays(matched, opts.minFixes, opts.offNetwork);
+  const smooth = smoothedChainages(matched, visits, opts.k);
+  const out = snappedIntervals(visits, smooth, new RouteJoins(graph, opts.bridgeM), opts.nearM, opts.lengths);
   // a few metres between two stays on a route are the blur of a handover (a hop onto a joining route and
   // back), not a gap in the trench: within 2·nearM they close; a stay that shrank to a point saw nothing
   for (const [ref, list] of out) {
@@ -284,6 +244,68 @@ export function walkedIntervals(
       else merged.push([a, b]);
     }
     out.set(ref, merged.filter(([a, b]) => b - a >= 1));
+  }
+  return out;
+}
+
+// walkedIntervals' phases are functions of their own: V8 optimises each quickly and keeps its code from walk to walk
+
+/** whether a fix with a seq strictly between a and b left the network */
+function leftBetween(offNetwork: Set<number>, a: number, b: number): boolean {
+  for (let q = a + 1; q < b; q++) if (offNetwork.has(q)) return true;
+  return false;
+}
+
+/** The visits of at least minFixes fixes; a stay on a route also ends where the walk left the network in between (an unplanned run). */
+function stays(matched: { seq: number; ref: string }[], minFixes: number, offNetwork: Set<number> | undefined): Visit[] {
+  const visits: Visit[] = [];
+  const off = offNetwork && offNetwork.size > 0 ? offNetwork : null;
+  for (const v of splitVisits(matched)) {
+    let start = v.start;
+    if (off) for (let i = v.start + 1; i < v.end; i++) if (leftBetween(off, matched[i - 1].seq, matched[i].seq)) (i - start >= minFixes && visits.push({ ref: v.ref, start, end: i }), (start = i));
+    if (v.end - start >= minFixes) visits.push(start === v.start ? v : { ref: v.ref, start, end: v.end });
+  }
+  return visits;
+}
+
+/** Each visit's chainages smoothed (a local linear fit over ±k fixes), in one column by matched index (visits do not overlap). */
+function smoothedChainages(matched: { chainageM: number }[], visits: Visit[], k: number): Float64Array {
+  const chain = new Float64Array(matched.length);
+  for (let q = 0; q < matched.length; q++) chain[q] = matched[q].chainageM;
+  const smooth = new Float64Array(matched.length);
+  for (const v of visits) {
+    const len = v.end - v.start;
+    for (let i = 0; i < len; i++) smooth[v.start + i] = localLinearFrom(chain, v.start, i, Math.max(0, i - k), Math.min(len - 1, i + k));
+  }
+  return smooth;
+}
+
+/** Each visit's interval, its ends put at the junctions with the visits either side (or across a crossing, or at the route's end). */
+function snappedIntervals(visits: Visit[], smooth: Float64Array, joins: RouteJoins, nearM: number, lengths: Map<string, number>): Map<string, [number, number][]> {
+  const out = new Map<string, [number, number][]>();
+  const snapped = smooth.slice();
+  for (let n = 0; n < visits.length; n++) {
+    const v = visits[n];
+    const last = v.end - 1;
+    const length = lengths.get(v.ref) ?? 0;
+    // the visit's first fix meets the visit before, its last the one after
+    for (let end = 0; end < 2; end++) {
+      const i = end === 0 ? v.start : last;
+      const other = end === 0 ? visits[n - 1] : visits[n + 1];
+      const cOther = other === undefined ? undefined : end === 0 ? smooth[other.end - 1] : smooth[other.start];
+      const c = smooth[i];
+      const direct = other && other.ref !== v.ref ? joins.junction(v.ref, other.ref, c) : undefined;
+      const via = other && other.ref !== v.ref && direct === undefined ? joins.across(v.ref, c, other.ref, cOther!) : undefined;
+      if (via) addInterval(out, via.via, via.from, via.to);
+      snapped[i] = direct ?? via?.at ?? (c <= nearM ? 0 : c >= length - nearM ? length : c);
+    }
+    let a = snapped[v.start];
+    let b = snapped[v.start];
+    for (let i = v.start + 1; i <= last; i++) {
+      if (Math.abs(snapped[i] - snapped[i - 1]) > joins.bridgeM) (addInterval(out, v.ref, a, b), (a = b = snapped[i]));
+      else (a = Math.min(a, snapped[i])), (b = Math.max(b, snapped[i]));
+    }
+    addInterval(out, v.ref, a, b);
   }
   return out;
 }
