@@ -3,7 +3,8 @@ import { describe, expect, it } from 'vitest';
 import type { Fix, MatchedFix } from '@/lib/matching/match-types';
 import { signedOffset } from '@/lib/matching/offset-profile';
 import { unplannedLine } from '@/lib/matching/unplanned-line';
-import { claimBeyondEnds, foldJunctionHops, splitVisits } from '@/lib/matching/visits';
+import { buildRouteGraph } from '@/lib/matching/route-graph';
+import { claimBeyondEnds, foldJunctionHops, splitVisits, walkedIntervals } from '@/lib/matching/visits';
 import type { LonLat, PlannedRouteInput } from '@/lib/matching/types';
 import { mulberry32 } from '@/lib/records/seeded-random';
 
@@ -74,6 +75,28 @@ describe('visits of a walk to its routes', () => {
     expect(out.unmatched).toHaveLength(1);
     expect(out.unmatched[0].fixes.map((f) => f.seq)).toEqual([...Array(12).keys()]);
     expect(out.matched).toHaveLength(0);
+  });
+});
+
+describe('the intervals a walk saw built', () => {
+  // A alone, 100 m: a walk along it at 1 m a fix (chainages as given, no noise)
+  const graph = buildRouteGraph([A]);
+  const lengths = new Map([['A', 100]]);
+  const opts = { k: 5, bridgeM: 60, minFixes: 3, nearM: 7, lengths };
+  const walk = (chainages: number[]) => chainages.map((c, i) => m(i, 'A', c));
+  const range = (from: number, to: number) => Array.from({ length: to - from + 1 }, (_, i) => from + i);
+
+  it('sees one stretch from end to end, the ends within nearM taken to the route ends', () => {
+    expect(walkedIntervals(walk(range(3, 96)), graph, opts).get('A')).toEqual([[0, 100]]);
+  });
+
+  it('ends a stay where the walk left the network, though it came back to the same route within bridgeM', () => {
+    // 0–40 m on A, then 10 fixes off the network (an unplanned run: seqs 41–50), back on A from 70 m
+    const on = [...range(0, 40).map((c, i) => m(i, 'A', c)), ...range(70, 100).map((c, i) => m(51 + i, 'A', c))];
+    const offNetwork = new Set(range(41, 50));
+    expect(walkedIntervals(on, graph, { ...opts, offNetwork }).get('A')).toEqual([[0, 40], [70, 100]]);
+    // without the run in between, the 30 m jump is bridged (a signal gap): one stretch
+    expect(walkedIntervals(on, graph, opts).get('A')).toEqual([[0, 100]]);
   });
 });
 
