@@ -24,16 +24,35 @@ export interface LocalFrame {
  * `localFrame([13.4, 52.5]).toXY([13.4, 52.5])` → `[0, 0]`
  */
 export function localFrame(origin: LonLat): LocalFrame {
+  const f = frameScale(origin);
+  return {
+    toXY: (p) => frameXY(f, p),
+    toLonLat: ([x, y]) => [f.lon0 + x / f.mx, f.lat0 + y / f.my],
+  };
+}
+
+/** localFrame's origin and scales (metres per degree east and north) as data. */
+export interface FrameScale {
+  lon0: number;
+  lat0: number;
+  mx: number;
+  my: number;
+}
+
+/** The scales of localFrame about `origin`, for code that converts many points without a closure a frame. */
+export function frameScale(origin: LonLat): FrameScale {
   const [lon0, lat0] = origin;
   const s = Math.sin(lat0 * RAD);
   const w = 1 - E2 * s * s;
   const mx = ((A / Math.sqrt(w)) * Math.cos(lat0 * RAD) * RAD) || 1e-9; // prime vertical radius × cos φ, per degree
   const my = ((A * (1 - E2)) / (w * Math.sqrt(w))) * RAD; // meridian radius, per degree
-  const dLon = (lon: number) => ((((lon - lon0) % 360) + 540) % 360) - 180; // across the antimeridian too
-  return {
-    toXY: ([lon, lat]) => [dLon(lon) * mx, (lat - lat0) * my],
-    toLonLat: ([x, y]) => [lon0 + x / mx, lat0 + y / my],
-  };
+  return { lon0, lat0, mx, my };
+}
+
+/** localFrame's toXY: `frameXY(frameScale(o), p)` equals `localFrame(o).toXY(p)`. */
+export function frameXY(f: FrameScale, p: LonLat): XY {
+  // across the antimeridian too
+  return [(((((p[0] - f.lon0) % 360) + 540) % 360) - 180) * f.mx, (p[1] - f.lat0) * f.my];
 }
 
 /** Geodesic distance in metres between two positions, e.g. `distanceM([0, 0], [1, 0])` → 111319.49. */

@@ -1,5 +1,5 @@
 import Flatbush from 'flatbush';
-import { lineLengthM, localFrame, pointAtChainage, projectOntoLine, type XY } from './chainage';
+import { frameScale, frameXY, lineLengthM, pointAtChainage, projectOntoLine, type XY } from './chainage';
 import { coverage } from './coverage';
 import type { Diagnostic, GraphEdge, GraphNode, LonLat, PlannedRouteInput, RouteGraph } from './types';
 
@@ -93,6 +93,56 @@ function pairDiagnostics(rs: Route[], index: Flatbush, segRoute: number[], snapM
 /** whether the line has at least two distinct positions */
 const twoPositions = (coords: LonLat[]) => coords.some((c) => c[0] !== coords[0][0] || c[1] !== coords[0][1]);
 
+/**
+ * The routes that go into the graph: the first of each ref, with at least two distinct positions and 1 cm of
+ * length; a diagnostic for each left out.
+ */
+function validRoutes(routes: PlannedRouteInput[], diagnostics: Diagnostic[]): { input: PlannedRouteInput; lengthM: number }[] {
+  const count = new Map<string, number>();
+  for (const r of routes) count.set(r.ref, (count.get(r.ref) ?? 0) + 1);
+  const kept = new Map<string, PlannedRouteInput>();
+  for (const r of routes) {
+    if (!kept.has(r.ref)) kept.set(r.ref, r);
+    else if (count.get(r.ref)! > 1) {
+      const message = `${r.ref} appears ${count.get(r.ref)} times in the plan; only the first is in the graph`;
+      diagnostics.push({ kind: 'duplicate_ref', refs: [r.ref], position: r.coords[0] ?? [0, 0], message });
+      count.set(r.ref, 0); // once per ref
+    }
+  }
+  const valid: { input: PlannedRouteInput; lengthM: number }[] = [];
+  for (const r of kept.values()) {
+    const two = twoPositions(r.coords);
+    const lengthM = two ? lineLengthM(r.coords) : 0;
+    if (two && lengthM >= 0.01) valid.push({ input: r, lengthM });
+    else {
+      const why = !two ? 'has fewer than 2 distinct positions' : `is ${lengthM.toFixed(3)} m long`;
+      diagnostics.push({ kind: 'zero_length', refs: [r.ref], position: r.coords[0] ?? [0, 0], message: `${r.ref} ${why}; it is left out of the graph` });
+    }
+  }
+  return valid;
+}
+
+/** The routes in one equirectangular frame about the centre of their extent. */
+function inFrame(valid: { input: PlannedRouteInput; lengthM: number }[]): Route[] {
+  let minLon = Infinity;
+  let minLat = Infinity;
+  let maxLon = -Infinity;
+  let maxLat = -Infinity;
+  for (const r of valid) {
+    for (const c of r.input.coords) (minLon = Math.min(minLon, c[0])), (minLat = Math.min(minLat, c[1])), (maxLon = Math.max(maxLon, c[0])), (maxLat = Math.max(maxLat, c[1]));
+  }
+  const frame = frameScale([(minLon + maxLon) / 2, (minLat + maxLat) / 2]);
+  // (arrays pushed to, not made by `map`: the kind of array `map` makes depends on whether V8 runs it
+  // optimised, and the phases after this, optimised for one kind, would be thrown back by the other)
+  const rs: Route[] = [];
+  for (const { input, lengthM } of valid) {
+    const xy: XY[] = [];
+    for (const c of input.coords) xy.push(frameXY(frame, c));
+    rs.push({ input, xy, lengthM, nodeAt: [-1, -1] });
+  }
+  return rs;
+}
+
 /** A route's start (e = 2k) or end (e = 2k + 1) as given. */
 const endLonLat = (rs: Route[], e: number): LonLat => (e % 2 === 0 ? rs[e >> 1].input.coords[0] : rs[e >> 1].input.coords[rs[e >> 1].input.coords.length - 1]);
 
@@ -151,6 +201,18 @@ function endpointJoins(rs: Route[], index: Flatbush, segRoute: number[], snapM: 
     }
   }
   return hits;
+}
+
+/** Each route's T-junction hits by chainage; several endpoints snapping onto one route at (nearly) one place are joined in `uf`: one junction. */
+function junctionSplits(routes: number, hits: { e: number; route: number; chainageM: number; distanceM: number }[], snapM: number, uf: UnionFind): { chainageM: number; e: number; distanceM: number }[][] {
+  const splits: { chainageM: number; e: number; distanceM: number }[][] = [];
+  for (let k = 0; k < routes; k++) splits.push([]);
+  for (const h of hits) splits[h.route].push(h);
+  for (const list of splits) {
+    list.sort((a, b) => a.chainageM - b.chainageM || a.distanceM - b.distanceM);
+    for (let i = 1; i < list.length; i++) if (list[i].chainageM - list[i - 1].chainageM <= snapM) uf.union(list[i - 1].e, list[i].e);
+  }
+  return splits;
 }
 
 /** One node per set of joined endpoints, at their mean position, listing each route end at it; sets each route's nodeAt. */
@@ -232,53 +294,14 @@ function danglingEnds(rs: Route[], nodes: GraphNode[]): Diagnostic[] {
 export function buildRouteGraph(routes: PlannedRouteInput[], opts: { snapM?: number; pairChecks?: boolean } = {}): RouteGraph {
   const snapM = opts.snapM ?? 0.5;
   const diagnostics: Diagnostic[] = [];
-  const count = new Map<string, number>();
-  for (const r of routes) count.set(r.ref, (count.get(r.ref) ?? 0) + 1);
-  const kept = new Map<string, PlannedRouteInput>();
-  for (const r of routes) {
-    if (!kept.has(r.ref)) kept.set(r.ref, r);
-    else if (count.get(r.ref)! > 1) {
-      const message = `${r.ref} appears ${count.get(r.ref)} times in the plan; only the first is in the graph`;
-      diagnostics.push({ kind: 'duplicate_ref', refs: [r.ref], position: r.coords[0] ?? [0, 0], message });
-      count.set(r.ref, 0); // once per ref
-    }
-  }
-  const valid: { input: PlannedRouteInput; lengthM: number }[] = [];
-  for (const r of kept.values()) {
-    const two = twoPositions(r.coords);
-    const lengthM = two ? lineLengthM(r.coords) : 0;
-    if (two && lengthM >= 0.01) valid.push({ input: r, lengthM });
-    else {
-      const why = !two ? 'has fewer than 2 distinct positions' : `is ${lengthM.toFixed(3)} m long`;
-      diagnostics.push({ kind: 'zero_length', refs: [r.ref], position: r.coords[0] ?? [0, 0], message: `${r.ref} ${why}; it is left out of the graph` });
-    }
-  }
+  const valid = validRoutes(routes, diagnostics);
   if (valid.length === 0) return { nodes: [], edges: [], diagnostics };
-
-  let [minLon, minLat, maxLon, maxLat] = [Infinity, Infinity, -Infinity, -Infinity];
-  for (const r of valid) {
-    for (const c of r.input.coords) (minLon = Math.min(minLon, c[0])), (minLat = Math.min(minLat, c[1])), (maxLon = Math.max(maxLon, c[0])), (maxLat = Math.max(maxLat, c[1]));
-  }
-  const frame = localFrame([(minLon + maxLon) / 2, (minLat + maxLat) / 2]);
-  // (arrays pushed to, not made by `map`: the kind of array `map` makes depends on whether V8 runs it
-  // optimised, and the phases below, optimised for one kind, would be thrown back by the other)
-  const rs: Route[] = [];
-  for (const { input, lengthM } of valid) {
-    const xy: XY[] = [];
-    for (const c of input.coords) xy.push(frame.toXY(c));
-    rs.push({ input, xy, lengthM, nodeAt: [-1, -1] });
-  }
+  const rs = inFrame(valid);
 
   const { index, segRoute } = segmentIndex(rs);
   const uf = new UnionFind(rs.length * 2);
   const hits = endpointJoins(rs, index, segRoute, snapM, uf);
-  // several endpoints snapping onto one route at (nearly) one place are one junction
-  const splits = rs.map(() => [] as { chainageM: number; e: number; distanceM: number }[]);
-  for (const h of hits) splits[h.route].push(h);
-  for (const list of splits) {
-    list.sort((a, b) => a.chainageM - b.chainageM || a.distanceM - b.distanceM);
-    for (let i = 1; i < list.length; i++) if (list[i].chainageM - list[i - 1].chainageM <= snapM) uf.union(list[i - 1].e, list[i].e);
-  }
+  const splits = junctionSplits(rs.length, hits, snapM, uf);
 
   const { nodes, nodeOf } = graphNodes(rs, uf);
   const edges = graphEdges(rs, splits, nodes, nodeOf, uf);

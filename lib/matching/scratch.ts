@@ -8,9 +8,11 @@
  * `const s = new Scratch(); const a = s.f64(3); s.reset()`
  */
 export class Scratch {
-  private f = new Float64Array(1 << 12);
+  // small to start with: the buffers grow within the first routes, so that V8 has seen the growing branch
+  // before it optimises (a branch it has never seen throws optimised code back the first time it is taken)
+  private f = new Float64Array(64);
   private fUsed = 0;
-  private i = new Int32Array(1 << 12);
+  private i = new Int32Array(64);
   private iUsed = 0;
 
   /** n doubles, not zeroed */
