@@ -102,6 +102,17 @@ export function cumulativeChainage(coords: LonLat[]): number[] {
 }
 
 /**
+ * Chainage of the point a fraction t along segment i (vertex i → i + 1): the geodesic chainage of its start
+ * plus t times the segment's geodesic length, as the candidate search interpolates (exact at the vertices,
+ * ~1e-6 relative within a segment).
+ * `chainageAtFraction([[0, 0], [1, 0]], 0, 0.5)` → 55659.75
+ */
+export function chainageAtFraction(coords: LonLat[], i: number, t: number): number {
+  const cum = cachedCumulative(coords);
+  return cum[i] + t * (cum[i + 1] - cum[i]);
+}
+
+/**
  * Length of the line: the sum of the GeographicLib inverse distances of its segments.
  * `lineLengthM([[0, 0], [1, 0]])` → 111319.4908 (1° on the equator)
  */

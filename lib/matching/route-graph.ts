@@ -1,5 +1,5 @@
 import Flatbush from 'flatbush';
-import { frameScale, frameXY, lineLengthM, pointAtChainage, projectOntoLine, type XY } from './chainage';
+import { chainageAtFraction, frameScale, frameXY, lineLengthM, pointAtChainage, type XY } from './chainage';
 import { coverage } from './coverage';
 import type { Diagnostic, GraphEdge, GraphNode, LonLat, PlannedRouteInput, RouteGraph } from './types';
 
@@ -41,13 +41,15 @@ class UnionFind {
   }
 }
 
-/** Nearest point of a planar polyline to p: its distance, and how far along (of how long) it lies. */
-function nearestPlanar(xy: XY[], p: XY): { distance: number; along: number; length: number } {
+/** Nearest point of a planar polyline to p: its distance, how far along (of how long) it lies, and on which segment at which fraction. */
+function nearestPlanar(xy: XY[], p: XY): { distance: number; along: number; length: number; segment: number; t: number } {
   const px = p[0];
   const py = p[1];
   let distance = Infinity;
   let along = 0;
   let base = 0;
+  let segment = 0;
+  let fraction = 0;
   for (let i = 0; i + 1 < xy.length; i++) {
     const ax = xy[i][0];
     const ay = xy[i][1];
@@ -56,10 +58,10 @@ function nearestPlanar(xy: XY[], p: XY): { distance: number; along: number; leng
     const l2 = dx * dx + dy * dy;
     const t = l2 > 0 ? Math.min(Math.max(((px - ax) * dx + (py - ay) * dy) / l2, 0), 1) : 0;
     const d = Math.hypot(ax + t * dx - px, ay + t * dy - py);
-    if (d < distance) (distance = d), (along = base + t * Math.sqrt(l2));
+    if (d < distance) (distance = d), (along = base + t * Math.sqrt(l2)), (segment = i), (fraction = t);
     base += Math.sqrt(l2);
   }
-  return { distance, along, length: base };
+  return { distance, along, length: base, segment, t: fraction };
 }
 
 /** duplicate: each line within snapM of the other everywhere; overlap: both run within snapM of each other for > 1 m. */
@@ -196,8 +198,9 @@ function endpointJoins(rs: Route[], index: Flatbush, segRoute: number[], snapM: 
         uf.union(e, 2 * foot.along < foot.length ? 2 * k : 2 * k + 1);
         continue;
       }
-      const p = projectOntoLine(other.input.coords, endLonLat(rs, e));
-      hits.push({ e, route: k, chainageM: p.chainageM, distanceM: foot.distance });
+      // the candidate search's arithmetic: geodesic chainage at the vertices, the planar fraction within the
+      // segment (≪ 1 mm off on a city's segments); a geodesic projection here cost 15 µs a junction
+      hits.push({ e, route: k, chainageM: chainageAtFraction(other.input.coords, foot.segment, foot.t), distanceM: foot.distance });
     }
   }
   return hits;
