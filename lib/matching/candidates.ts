@@ -10,20 +10,45 @@ const RAD = Math.PI / 180;
 
 /** Metres per degree of longitude and of latitude at a latitude (WGS 84 radii of curvature). */
 export function metresPerDegree(lat: number): { mx: number; my: number } {
-  return { mx: metresPerDegreeLon(lat), my: metresPerDegreeLat(lat) };
+  metresPerDegreeInto(lat, PER_DEGREE);
+  return { mx: PER_DEGREE[0], my: PER_DEGREE[1] };
 }
 
-/** metresPerDegree's mx alone (a number, not an object: the matcher asks once a fix). */
-export function metresPerDegreeLon(lat: number): number {
-  const s = Math.sin(lat * RAD);
-  return ((WGS84.a / Math.sqrt(1 - E2 * s * s)) * Math.cos(lat * RAD) * RAD) || 1e-9;
-}
+const PER_DEGREE = new Float64Array(2);
 
-/** metresPerDegree's my alone. */
-export function metresPerDegreeLat(lat: number): number {
+/** metresPerDegree into out[0] (mx) and out[1] (my), from one sine: the matcher asks once a fix, and no number crosses the call. */
+function metresPerDegreeInto(lat: number, out: Float64Array): void {
   const s = Math.sin(lat * RAD);
   const w = 1 - E2 * s * s;
-  return ((WGS84.a * (1 - E2)) / (w * Math.sqrt(w))) * RAD;
+  out[0] = (WGS84.a / Math.sqrt(w)) * Math.cos(lat * RAD) * RAD || 1e-9; // prime vertical radius × cos φ
+  out[1] = ((WGS84.a * (1 - E2)) / (w * Math.sqrt(w))) * RAD; // meridian radius
+}
+
+/**
+ * A longitude difference d (degrees) wrapped into [−180, 180) as ((d % 360 + 540) % 360) − 180 computes it,
+ * without the two remainders (calls into C, some 40 ns) where |d| < 90: there both are exact subtractions,
+ * so the number is the same. `lonDelta(-0.25)` → −0.25, `lonDelta(359)` → −1
+ */
+export const lonDelta = (d: number): number => (d > -90 && d < 90 ? d + 540 - 360 - 180 : ((((d % 360) + 540) % 360) - 180));
+
+/**
+ * Points in a candidate index's frame: x, y, and ground metres per frame unit at each (the frame's scale is
+ * only exact at its own centre). matchTrace keeps a trace's fixes so; the candidate search reads them so.
+ */
+export interface FramePoints {
+  x: Float64Array;
+  y: Float64Array;
+  kx: Float64Array;
+  ky: Float64Array;
+}
+
+/** Puts the position (lon, lat) into slot i of `p`, in the index's frame, with the ground scale there. */
+export function toFrameInto(index: { lon0: number; lat0: number; mx0: number; my0: number }, lon: number, lat: number, p: FramePoints, i: number): void {
+  p.x[i] = lonDelta(lon - index.lon0) * index.mx0;
+  p.y[i] = (lat - index.lat0) * index.my0;
+  metresPerDegreeInto(lat, PER_DEGREE);
+  p.kx[i] = PER_DEGREE[0] / index.mx0;
+  p.ky[i] = PER_DEGREE[1] / index.my0;
 }
 
 /**
@@ -81,7 +106,7 @@ export function makeCandidateIndex(routes: PlannedRouteInput[]): CandidateIndex 
     routeStart[k] = v;
     const c = cumulativeChainage(coords);
     for (let i = 0; i < coords.length; i++) {
-      xs[v + i] = (((((coords[i][0] - lon0) % 360) + 540) % 360) - 180) * mx0;
+      xs[v + i] = lonDelta(coords[i][0] - lon0) * mx0;
       ys[v + i] = (coords[i][1] - lat0) * my0;
       cum[v + i] = c[i];
       if (i > 0) (segRoute[s] = k), (segVertex[s] = v + i - 1), s++;
@@ -137,6 +162,8 @@ interface Scratch {
   /** flatbush traversal stack: node position, level */
   stack: Int32Array;
   query: number;
+  /** the one fix of a query by position, in the frame */
+  point: FramePoints;
 }
 const scratches = new WeakMap<CandidateIndex, Scratch>();
 
@@ -147,6 +174,7 @@ function scratchFor(index: CandidateIndex): Scratch {
     s = {
       stamp: new Int32Array(n), bestD2: new Float64Array(n), bestSeg: new Int32Array(n), bestT: new Float64Array(n), bestCross: new Float64Array(n),
       touched: new Int32Array(n), order: new Int32Array(n + 1), stack: new Int32Array(64), query: 0,
+      point: { x: new Float64Array(1), y: new Float64Array(1), kx: new Float64Array(1), ky: new Float64Array(1) },
     };
     scratches.set(index, s);
   }
@@ -159,15 +187,14 @@ function scratchFor(index: CandidateIndex): Scratch {
  * Walks flatbush's tree itself (its `search` in the same order, without a callback or result arrays),
  * so the segments are visited exactly as `tree.search` would visit them.
  */
-function nearestRoutes(index: CandidateIndex, sc: Scratch, fix: { lon: number; lat: number }, radiusM: number, max: number): number {
+function nearestRoutes(index: CandidateIndex, sc: Scratch, pts: FramePoints, at: number, radiusM: number, max: number): number {
   const tree = index.tree!;
   const q = ++sc.query;
   const { xs, ys, segRoute, segVertex } = index;
-  // ground metres per frame unit at the fix: the frame's scale is only exact at its own centre
-  const kx = metresPerDegreeLon(fix.lat) / index.mx0;
-  const ky = metresPerDegreeLat(fix.lat) / index.my0;
-  const px = (((((fix.lon - index.lon0) % 360) + 540) % 360) - 180) * index.mx0;
-  const py = (fix.lat - index.lat0) * index.my0;
+  const kx = pts.kx[at];
+  const ky = pts.ky[at];
+  const px = pts.x[at];
+  const py = pts.y[at];
   const r2 = radiusM * radiusM;
   const minX = px - radiusM / kx;
   const minY = py - radiusM / ky;
@@ -251,7 +278,8 @@ function nearestRoutes(index: CandidateIndex, sc: Scratch, fix: { lon: number; l
 export function candidatesFor(index: CandidateIndex, fix: { lon: number; lat: number }, radiusM: number, max: number): Candidate[] {
   if (!index.tree || max <= 0) return [];
   const sc = scratchFor(index);
-  const n = nearestRoutes(index, sc, fix, radiusM, max);
+  toFrameInto(index, fix.lon, fix.lat, sc.point, 0);
+  const n = nearestRoutes(index, sc, sc.point, 0, radiusM, max);
   const out: Candidate[] = [];
   for (let i = 0; i < n; i++) {
     const k = sc.order[i];
@@ -300,7 +328,18 @@ export class CandidateColumns {
 export function appendCandidates(index: CandidateIndex, fix: { lon: number; lat: number }, radiusM: number, max: number, out: CandidateColumns): number {
   if (!index.tree || max <= 0) return 0;
   const sc = scratchFor(index);
-  const n = nearestRoutes(index, sc, fix, radiusM, max);
+  toFrameInto(index, fix.lon, fix.lat, sc.point, 0);
+  return appendCandidatesAt(index, sc.point, 0, radiusM, max, out);
+}
+
+/**
+ * appendCandidates for point `at` of points already in the index's frame (toFrameInto): the same candidates.
+ * `appendCandidatesAt(index, plane, 7, 16, 5, cols)` → the candidates of the trace's eighth fix
+ */
+export function appendCandidatesAt(index: CandidateIndex, pts: FramePoints, at: number, radiusM: number, max: number, out: CandidateColumns): number {
+  if (!index.tree || max <= 0) return 0;
+  const sc = scratchFor(index);
+  const n = nearestRoutes(index, sc, pts, at, radiusM, max);
   out.reserve(n);
   for (let i = 0; i < n; i++) {
     const k = sc.order[i];
@@ -322,10 +361,10 @@ export function appendCandidates(index: CandidateIndex, fix: { lon: number; lat:
  * `projectOntoRoute(index, 0, { lon: 13.405, lat: 52.52 })` → `{ chainageM: 40.2, offsetM: -2.9, distanceM: 2.9 }`
  */
 export function projectOntoRoute(index: CandidateIndex, k: number, fix: { lon: number; lat: number }): { chainageM: number; offsetM: number; distanceM: number } {
-  const px = (((((fix.lon - index.lon0) % 360) + 540) % 360) - 180) * index.mx0;
-  const py = (fix.lat - index.lat0) * index.my0;
+  const pt = scratchFor(index).point;
+  toFrameInto(index, fix.lon, fix.lat, pt, 0);
   const out = { chainageM: 0, offsetM: 0, distanceM: 0 };
-  projectInFrame(index, k, px, py, metresPerDegreeLon(fix.lat) / index.mx0, metresPerDegreeLat(fix.lat) / index.my0, out);
+  projectInFrame(index, k, pt.x[0], pt.y[0], pt.kx[0], pt.ky[0], out);
   return out;
 }
 

@@ -1,4 +1,4 @@
-import { appendCandidates, CandidateColumns, makeCandidateIndex, metresPerDegreeLat, metresPerDegreeLon, projectInFrame, type CandidateIndex } from './candidates';
+import { appendCandidatesAt, CandidateColumns, makeCandidateIndex, projectInFrame, toFrameInto, type CandidateIndex, type FramePoints } from './candidates';
 import { resolveMatchOptions, type Fix, type MatchOptions, type MatchResult, type ResolvedMatchOptions } from './match-types';
 import { locatePositions, makeRouteNetwork, positionDistanceInto, type PositionColumns, type RouteNetwork } from './route-distance';
 import type { PlannedRouteInput, RouteGraph } from './types';
@@ -29,22 +29,12 @@ export function transitionLogProb(routeM: number, greatCircleM: number, betaM: n
 }
 
 /** Fix positions in the candidate index's frame, and ground metres per frame unit at each fix. */
-interface Plane {
-  x: Float64Array;
-  y: Float64Array;
-  kx: Float64Array;
-  ky: Float64Array;
-}
+type Plane = FramePoints;
 
-function toPlane(fixes: Fix[], lon0: number, lat0: number, mx0: number, my0: number): Plane {
+function toPlane(fixes: Fix[], index: CandidateIndex): Plane {
   const n = fixes.length;
   const p: Plane = { x: new Float64Array(n), y: new Float64Array(n), kx: new Float64Array(n), ky: new Float64Array(n) };
-  for (let i = 0; i < n; i++) {
-    const f = fixes[i];
-    p.x[i] = (((((f.lon - lon0) % 360) + 540) % 360) - 180) * mx0;
-    p.y[i] = (f.lat - lat0) * my0;
-    (p.kx[i] = metresPerDegreeLon(f.lat) / mx0), (p.ky[i] = metresPerDegreeLat(f.lat) / my0);
-  }
+  for (let i = 0; i < n; i++) toFrameInto(index, fixes[i].lon, fixes[i].lat, p, i);
   return p;
 }
 
@@ -234,7 +224,7 @@ class TraceMatcher {
   ) {
     this.index = prepared.index;
     this.net = prepared.net;
-    this.plane = toPlane(fixes, this.index.lon0, this.index.lat0, this.index.mx0, this.index.my0);
+    this.plane = toPlane(fixes, this.index);
     this.pieces = splitPieces(fixes, this.plane, o);
     this.result = { matched: [], unmatched: [], outliers: [], pieces: this.pieces.length };
     this.logBeta = Math.log(o.betaM);
@@ -394,7 +384,7 @@ class TraceMatcher {
   searchLate(k: number): number {
     const { cands, o } = this;
     const at = cands.length;
-    const n = prune(cands, at, appendCandidates(this.index, this.fixes[this.chain[k]], o.searchRadiusM, o.maxCandidates, cands), o.sigmaM);
+    const n = prune(cands, at, appendCandidatesAt(this.index, this.plane, this.chain[k], o.searchRadiusM, o.maxCandidates, cands), o.sigmaM);
     cands.length = at + n;
     this.located(at, n);
     return n;
@@ -515,7 +505,7 @@ class TraceMatcher {
         continue;
       }
       const at = cands.length;
-      const n = prune(cands, at, appendCandidates(this.index, fixes[i], o.searchRadiusM, o.maxCandidates, cands), o.sigmaM);
+      const n = prune(cands, at, appendCandidatesAt(this.index, plane, i, o.searchRadiusM, o.maxCandidates, cands), o.sigmaM);
       cands.length = at + n;
       if (n === 0) {
         this.far.push(i);
