@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { appendCandidates, CandidateColumns, candidatesFor, makeCandidateIndex } from '@/lib/matching/candidates';
+import { appendCandidates, appendCandidatesAt, CandidateColumns, candidatesFor, lonDelta, makeCandidateIndex, toFrameInto } from '@/lib/matching/candidates';
 import { buildRouteGraph } from '@/lib/matching/route-graph';
 import { locatePositions, makeRouteNetwork, routeDistanceM, routeDistanceMatrix, type PositionColumns } from '@/lib/matching/route-distance';
 import { viterbi, viterbiLayers, viterbiPruned } from '@/lib/matching/viterbi';
@@ -31,6 +31,29 @@ describe('compact candidates', () => {
     }
     expect(cols.length).toBe(checked);
     expect(checked).toBeGreaterThan(1024 * 4); // the columns started at 1,024 and grew
+  });
+
+  it('appendCandidatesAt on the fixes in the frame columns gives what appendCandidates gives', () => {
+    const gs = gridScenario(5, { blocks: 3, fixes: 1500 });
+    const index = makeCandidateIndex(gs.routes);
+    const n = gs.handheld.length;
+    const plane = { x: new Float64Array(n), y: new Float64Array(n), kx: new Float64Array(n), ky: new Float64Array(n) };
+    gs.handheld.forEach(({ fix }, i) => toFrameInto(index, fix.lon, fix.lat, plane, i));
+    const [a, b] = [new CandidateColumns(), new CandidateColumns()];
+    gs.handheld.forEach(({ fix }, i) => expect(appendCandidatesAt(index, plane, i, 16.5, 5, a)).toBe(appendCandidates(index, fix, 16.5, 5, b)));
+    expect(a.length).toBeGreaterThan(n);
+    expect([...a.route.subarray(0, a.length)]).toEqual([...b.route.subarray(0, b.length)]);
+    expect([...a.chainage.subarray(0, a.length)]).toEqual([...b.chainage.subarray(0, b.length)]);
+    expect([...a.offset.subarray(0, a.length)]).toEqual([...b.offset.subarray(0, b.length)]);
+  });
+
+  it('lonDelta is the remainder formula, number for number, near the origin and across the antimeridian', () => {
+    // the formula written out here, as the frames used it before the shortcut
+    const byRemainders = (d: number) => ((((d % 360) + 540) % 360) - 180);
+    const u = mulberry32(9);
+    const samples = [0, -0, 1e-12, -1e-12, 0.25, -0.25, 89.999999, -89.999999, 90, -90, 179.5, -179.5, 180, -180, 359, -359, 721.5];
+    for (let i = 0; i < 20000; i++) samples.push((u() - 0.5) * 180, (u() - 0.5) * 1e-3, (u() - 0.5) * 1000);
+    for (const d of samples) expect(Object.is(lonDelta(d), byRemainders(d)), `d = ${d}`).toBe(true);
   });
 });
 
