@@ -289,7 +289,8 @@ function danglingEnds(rs: Route[], nodes: GraphNode[]): Diagnostic[] {
  *
  * Snap and overlap decisions are planar, in one equirectangular frame about the network's centre: at
  * city scale (10 km across) its scale error stays under 0.1 %, i.e. < 0.5 mm on a 0.5 m snap. Chainages
- * and lengths are geodesic. Route crossings without an endpoint are not junctions (a road crossing is
+ * and lengths are geodesic (a T-junction's within its segment by the planar fraction, as the candidate
+ * search interpolates: well under 1 mm off). Route crossings without an endpoint are not junctions (a road crossing is
  * drawn as its own route ending on both streets). `pairChecks: false` leaves out the duplicate and overlap
  * diagnostics (a pairwise comparison of lines), which a reconciliation does not report.
  * `buildRouteGraph([{ ref: 'A', coords: [[0, 0], [0.001, 0]], … }]).edges` → `[{ ref: 'A', fromNode: 0, toNode: 1, … }]`
