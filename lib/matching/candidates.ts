@@ -1,12 +1,7 @@
 import Flatbush from 'flatbush';
-import geodesic from 'geographiclib-geodesic';
-import { cumulativeChainage } from './chainage';
+import { cumulativeChainage, lonDelta, metresPerDegreeInto } from './chainage';
 import type { Candidate } from './match-types';
 import type { PlannedRouteInput } from './types';
-
-const WGS84 = geodesic.Geodesic.WGS84;
-const E2 = WGS84.f * (2 - WGS84.f);
-const RAD = Math.PI / 180;
 
 /** Metres per degree of longitude and of latitude at a latitude (WGS 84 radii of curvature). */
 export function metresPerDegree(lat: number): { mx: number; my: number } {
@@ -15,21 +10,6 @@ export function metresPerDegree(lat: number): { mx: number; my: number } {
 }
 
 const PER_DEGREE = new Float64Array(2);
-
-/** metresPerDegree into out[0] (mx) and out[1] (my), from one sine: the matcher asks once a fix, and no number crosses the call. */
-function metresPerDegreeInto(lat: number, out: Float64Array): void {
-  const s = Math.sin(lat * RAD);
-  const w = 1 - E2 * s * s;
-  out[0] = (WGS84.a / Math.sqrt(w)) * Math.cos(lat * RAD) * RAD || 1e-9; // prime vertical radius × cos φ
-  out[1] = ((WGS84.a * (1 - E2)) / (w * Math.sqrt(w))) * RAD; // meridian radius
-}
-
-/**
- * A longitude difference d (degrees) wrapped into [−180, 180) as ((d % 360 + 540) % 360) − 180 computes it,
- * without the two remainders (calls into C, some 40 ns) where |d| < 90: there both are exact subtractions,
- * so the number is the same. `lonDelta(-0.25)` → −0.25, `lonDelta(359)` → −1
- */
-export const lonDelta = (d: number): number => (d > -90 && d < 90 ? d + 540 - 360 - 180 : ((((d % 360) + 540) % 360) - 180));
 
 /**
  * Points in a candidate index's frame: x, y, and ground metres per frame unit at each (the frame's scale is

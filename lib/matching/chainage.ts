@@ -42,17 +42,33 @@ export interface FrameScale {
 /** The scales of localFrame about `origin`, for code that converts many points without a closure a frame. */
 export function frameScale(origin: LonLat): FrameScale {
   const [lon0, lat0] = origin;
-  const s = Math.sin(lat0 * RAD);
-  const w = 1 - E2 * s * s;
-  const mx = ((A / Math.sqrt(w)) * Math.cos(lat0 * RAD) * RAD) || 1e-9; // prime vertical radius × cos φ, per degree
-  const my = ((A * (1 - E2)) / (w * Math.sqrt(w))) * RAD; // meridian radius, per degree
-  return { lon0, lat0, mx, my };
+  const perDegree = new Float64Array(2);
+  metresPerDegreeInto(lat0, perDegree);
+  return { lon0, lat0, mx: perDegree[0], my: perDegree[1] };
 }
+
+/**
+ * Metres per degree of longitude (out[0]) and of latitude (out[1]) at a latitude, from the WGS 84 radii of
+ * curvature, from one sine; written, not returned, so that no number crosses the call (the matcher asks once a fix).
+ */
+export function metresPerDegreeInto(lat: number, out: Float64Array): void {
+  const s = Math.sin(lat * RAD);
+  const w = 1 - E2 * s * s;
+  out[0] = (A / Math.sqrt(w)) * Math.cos(lat * RAD) * RAD || 1e-9; // prime vertical radius × cos φ
+  out[1] = ((A * (1 - E2)) / (w * Math.sqrt(w))) * RAD; // meridian radius
+}
+
+/**
+ * A longitude difference d (degrees) wrapped into [−180, 180) as ((d % 360 + 540) % 360) − 180 computes it,
+ * without the two remainders (calls into C, some 40 ns) where |d| < 90: there both are exact subtractions,
+ * so the number is the same. `lonDelta(-0.25)` → −0.25, `lonDelta(359)` → −1
+ */
+export const lonDelta = (d: number): number => (d > -90 && d < 90 ? d + 540 - 360 - 180 : ((((d % 360) + 540) % 360) - 180));
 
 /** localFrame's toXY: `frameXY(frameScale(o), p)` equals `localFrame(o).toXY(p)`. */
 export function frameXY(f: FrameScale, p: LonLat): XY {
   // across the antimeridian too
-  return [(((((p[0] - f.lon0) % 360) + 540) % 360) - 180) * f.mx, (p[1] - f.lat0) * f.my];
+  return [lonDelta(p[0] - f.lon0) * f.mx, (p[1] - f.lat0) * f.my];
 }
 
 /** Geodesic distance in metres between two positions, e.g. `distanceM([0, 0], [1, 0])` → 111319.49. */

@@ -29,17 +29,15 @@ export function transitionLogProb(routeM: number, greatCircleM: number, betaM: n
 }
 
 /** Fix positions in the candidate index's frame, and ground metres per frame unit at each fix. */
-type Plane = FramePoints;
-
-function toPlane(fixes: Fix[], index: CandidateIndex): Plane {
+function toPlane(fixes: Fix[], index: CandidateIndex): FramePoints {
   const n = fixes.length;
-  const p: Plane = { x: new Float64Array(n), y: new Float64Array(n), kx: new Float64Array(n), ky: new Float64Array(n) };
+  const p: FramePoints = { x: new Float64Array(n), y: new Float64Array(n), kx: new Float64Array(n), ky: new Float64Array(n) };
   for (let i = 0; i < n; i++) toFrameInto(index, fixes[i].lon, fixes[i].lat, p, i);
   return p;
 }
 
 // (hot paths avoid Math.hypot and array destructuring: V8 boxes the one's result and may allocate the other)
-const dist = (p: Plane, i: number, j: number) => {
+const dist = (p: FramePoints, i: number, j: number) => {
   const dx = (p.x[i] - p.x[j]) * p.kx[i];
   const dy = (p.y[i] - p.y[j]) * p.ky[i];
   return Math.sqrt(dx * dx + dy * dy);
@@ -53,7 +51,7 @@ const dist = (p: Plane, i: number, j: number) => {
  * in the time to the nearer neighbour, or, without time, beyond gapMetres / 2. Raw fix-to-fix speeds are no
  * test at 1 Hz: 3–4 m noise alone makes consecutive handheld fixes "move" at 5 m/s.
  */
-function spikes(fixes: Fix[], piece: number[], p: Plane, o: ResolvedMatchOptions): Uint8Array {
+function spikes(fixes: Fix[], piece: number[], p: FramePoints, o: ResolvedMatchOptions): Uint8Array {
   const out = new Uint8Array(piece.length);
   // the time-interpolated position between fixes a and b at fix i's time (halfway without times), as a
   // weight: a closure setting captured numbers would box each of them
@@ -90,7 +88,7 @@ function spikes(fixes: Fix[], piece: number[], p: Plane, o: ResolvedMatchOptions
 }
 
 /** Splits the track where consecutive fixes are more than gapSeconds (timed) or gapMetres (untimed) apart. */
-function splitPieces(fixes: Fix[], p: Plane, o: ResolvedMatchOptions): number[][] {
+function splitPieces(fixes: Fix[], p: FramePoints, o: ResolvedMatchOptions): number[][] {
   const pieces: number[][] = [];
   let cur: number[] = [];
   for (let i = 0; i < fixes.length; i++) {
@@ -181,7 +179,7 @@ const states = (n: number): States => ({
  * is tied to the call that made it and is compiled again, in the next call, while that call runs slower.
  */
 class TraceMatcher {
-  readonly plane: Plane;
+  readonly plane: FramePoints;
   readonly pieces: number[][];
   readonly result: MatchResult;
   readonly logBeta: number;

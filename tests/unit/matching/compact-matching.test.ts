@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { appendCandidates, appendCandidatesAt, CandidateColumns, candidatesFor, lonDelta, makeCandidateIndex, toFrameInto } from '@/lib/matching/candidates';
+import { appendCandidates, appendCandidatesAt, CandidateColumns, candidatesFor, makeCandidateIndex, toFrameInto } from '@/lib/matching/candidates';
+import { lonDelta } from '@/lib/matching/chainage';
 import { buildRouteGraph } from '@/lib/matching/route-graph';
 import { locatePositions, makeRouteNetwork, routeDistanceM, routeDistanceMatrix, type PositionColumns } from '@/lib/matching/route-distance';
 import { viterbi, viterbiLayers, viterbiPruned } from '@/lib/matching/viterbi';
