@@ -270,12 +270,17 @@ function graphEdges(rs: Route[], splits: { chainageM: number; e: number; distanc
   return edges;
 }
 
-/** A diagnostic for each route end that meets no other route. */
+/**
+ * A diagnostic for each route end that meets no other route. A road crossing joined at one end is left out:
+ * its other end is at the house (or the property line) across the street, where nothing else is planned to
+ * join. A crossing that joins nothing at either end is reported at both.
+ */
 function danglingEnds(rs: Route[], nodes: GraphNode[]): Diagnostic[] {
   const out: Diagnostic[] = [];
   for (let e = 0; e < rs.length * 2; e++) {
     const node = nodes[rs[e >> 1].nodeAt[e % 2]];
     if (node.routes.length > 1) continue;
+    if (rs[e >> 1].input.kind === 'crossing' && nodes[rs[e >> 1].nodeAt[1 - (e % 2)]].routes.length > 1) continue;
     const ref = rs[e >> 1].input.ref;
     out.push({ kind: 'dangling_end', refs: [ref], position: node.position, message: `${ref} ends without joining another route (at its ${e % 2 === 0 ? 'start' : 'end'})` });
   }

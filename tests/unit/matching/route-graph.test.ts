@@ -68,6 +68,49 @@ describe('buildRouteGraph', () => {
     for (const n of g.nodes) expect(n.routes.map((r) => r.ref)).not.toEqual(expect.arrayContaining(['N', 'S']));
   });
 
+  it('does not report a road crossing\'s house end, but still reports a street end and a crossing that joins nothing', () => {
+    // one trench along the north side of a street (N, joined to W at its west end); crossings are sawn from
+    // it to the houses across the road, the way the demo plan draws them: each crossing joins N at one end,
+    // and its other end, at the house, meets nothing by design
+    const crossing = (ref: string, pts: [number, number][]): PlannedRouteInput => ({ ...route(ref, pts), kind: 'crossing' });
+    const g = buildRouteGraph([
+      route('W', [[0, -20], [0, 3]]),
+      route('N', [[0, 3], [120, 3]]),
+      crossing('X1', [[30, 3], [30, -6]]), // drawn from the trench to the house
+      crossing('X2', [[70, -6], [70, 3]]), // drawn from the house to the trench
+      crossing('X3', [[120, 3], [128, -6]]), // from the street's far end
+      crossing('XL', [[200, 3], [200, -6]]), // joins nothing: a real problem
+      route('S', [[50, 3], [50, 40]]), // a spur street ending in a field: a real dangling end
+    ]);
+    // the trench end at (120, 3) carries X3, so it is joined; W's south end and S's north end dangle
+    expect(kinds(g)).toEqual([
+      ['dangling_end', ['W']],
+      ['dangling_end', ['XL']],
+      ['dangling_end', ['XL']],
+      ['dangling_end', ['S']],
+    ]);
+    expect(g.diagnostics.map((d) => d.message)).toEqual([
+      'W ends without joining another route (at its start)',
+      'XL ends without joining another route (at its start)',
+      'XL ends without joining another route (at its end)',
+      'S ends without joining another route (at its end)',
+    ]);
+    // the same plan with the crossings typed as streets lists every house end: the rule keys on the kind
+    const untyped = buildRouteGraph([
+      route('W', [[0, -20], [0, 3]]),
+      route('N', [[0, 3], [120, 3]]),
+      route('X1', [[30, 3], [30, -6]]),
+      route('X2', [[70, -6], [70, 3]]),
+      route('X3', [[120, 3], [128, -6]]),
+    ]);
+    expect(kinds(untyped)).toEqual([
+      ['dangling_end', ['W']],
+      ['dangling_end', ['X1']],
+      ['dangling_end', ['X2']],
+      ['dangling_end', ['X3']],
+    ]);
+  });
+
   it('joins an end 0.3 m from another route onto its interior, but not one 0.6 m away', () => {
     // B is one geodesic due east; the foot at 50 m is reached by a perpendicular offset from it
     const start = O;
