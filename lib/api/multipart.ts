@@ -6,6 +6,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { Readable } from 'node:stream';
 import { AppError } from './errors';
+import { assertNoNul } from './read-body';
 
 export interface ReceivedFile {
   field: string;
@@ -25,6 +26,11 @@ export interface ReceivedForm {
 
 const mb = (n: number) => `${Math.round(n / 1024 / 1024)} MB`;
 
+/** Where uploads are streamed while they arrive: UPLOAD_TMP_DIR, else `<os tmp>/trenchbook-upload`. */
+export function uploadTmpRoot(): string {
+  return process.env.UPLOAD_TMP_DIR || path.join(os.tmpdir(), 'trenchbook-upload');
+}
+
 /**
  * Streams a multipart body to temporary files, hashing as it goes, and refuses it (413) as soon as the
  * running total passes `maxBytes`: the body is never buffered whole.
@@ -39,8 +45,15 @@ export async function receiveMultipart(req: Request, maxBytes: number): Promise<
     throw new AppError('too_large', `The upload is ${mb(declared)}; the limit is ${mb(maxBytes)}.`);
   }
   if (!req.body) throw new AppError('bad_request', 'The request has no body.');
+  let bb: busboy.Busboy;
+  try {
+    // file names arrive as UTF-8 from browsers and curl; busboy would read them as Latin-1 by default
+    bb = busboy({ headers: { 'content-type': type }, defParamCharset: 'utf8', limits: { files: 50, fields: 50, fieldSize: 1024 * 1024 } });
+  } catch (err) {
+    throw new AppError('bad_request', `The multipart body cannot be read: ${(err as Error).message}. Send "Content-Type: multipart/form-data; boundary=…" as a form upload does.`);
+  }
 
-  const dir = path.join(os.tmpdir(), 'trenchbook-upload', randomUUID());
+  const dir = path.join(uploadTmpRoot(), randomUUID());
   await mkdir(dir, { recursive: true });
   const cleanup = () => rm(dir, { recursive: true, force: true });
   const files: ReceivedFile[] = [];
@@ -52,7 +65,6 @@ export async function receiveMultipart(req: Request, maxBytes: number): Promise<
       let failed = false;
       const pending: Promise<void>[] = [];
       const source = Readable.fromWeb(req.body as import('node:stream/web').ReadableStream);
-      const bb = busboy({ headers: { 'content-type': type }, limits: { files: 50, fields: 50, fieldSize: 1024 * 1024 } });
       const fail = (err: unknown) => {
         if (failed) return;
         failed = true;
@@ -61,11 +73,17 @@ export async function receiveMultipart(req: Request, maxBytes: number): Promise<
         reject(err);
       };
       bb.on('file', (field, stream, info) => {
+        const fileName = path.basename(info.filename || 'upload');
+        if (fileName.includes('\u0000')) {
+          stream.resume();
+          fail(new AppError('invalid', 'A file name contains a NUL character (U+0000); rename the file.'));
+          return;
+        }
         const tmpPath = path.join(dir, `${files.length}`);
         const hash = createHash('sha256');
         let size = 0;
         const out = createWriteStream(tmpPath);
-        const entry: ReceivedFile = { field, fileName: path.basename(info.filename || 'upload'), tmpPath, size: 0, sha256: '' };
+        const entry: ReceivedFile = { field, fileName, tmpPath, size: 0, sha256: '' };
         files.push(entry);
         stream.on('data', (chunk: Buffer) => {
           size += chunk.length;
@@ -90,6 +108,12 @@ export async function receiveMultipart(req: Request, maxBytes: number): Promise<
         stream.pipe(out);
       });
       bb.on('field', (name, value) => {
+        try {
+          assertNoNul({ [name]: value }, 'form field');
+        } catch (err) {
+          fail(err);
+          return;
+        }
         fields[name] = value;
       });
       bb.on('error', (err) => fail(new AppError('bad_request', `The multipart body is malformed: ${(err as Error).message}`)));

@@ -7,6 +7,8 @@ import { can, canSeeProject, type Action } from '@/lib/auth/roles';
 import type { Principal } from '@/lib/auth/principal';
 import { AppError, errorBody } from './errors';
 import { authenticate } from './authenticate';
+import { assertNoNul, readJsonBody } from './read-body';
+import { env } from '@/lib/env';
 
 type Params = Record<string, string | string[]>;
 
@@ -71,19 +73,10 @@ export function withRoute<B extends z.ZodType | undefined = undefined, Q extends
         throw new AppError('forbidden', `Your role (${principal.role}) may not do this.`);
       }
 
-      const query = opts.query
-        ? opts.query.parse(Object.fromEntries(req.nextUrl.searchParams.entries()))
-        : undefined;
-      let body: unknown;
-      if (opts.body) {
-        let json: unknown;
-        try {
-          json = await req.json();
-        } catch {
-          throw new AppError('bad_json', 'The request body is not valid JSON.');
-        }
-        body = opts.body.parse(json);
-      }
+      const search = Object.fromEntries(req.nextUrl.searchParams.entries());
+      assertNoNul(search, 'query');
+      const query = opts.query ? opts.query.parse(search) : undefined;
+      const body = opts.body ? opts.body.parse(await readJsonBody(req, env().JSON_MAX_BYTES)) : undefined;
       const out = await handler({
         req,
         params,

@@ -6,7 +6,8 @@ import { env } from '@/lib/env';
 import { attemptSignIn } from '@/lib/services/sign-in';
 import { clientIp } from './client-ip';
 
-const credentialsSchema = z.object({ email: z.string().trim().min(1).max(320), password: z.string().min(1).max(1024) });
+const noNul = (s: string) => !s.includes('\u0000');
+const credentialsSchema = z.object({ email: z.string().trim().min(1).max(320).refine(noNul), password: z.string().min(1).max(1024).refine(noNul) });
 
 // authorize() throws 'TooManyAttempts' or returns null ('CredentialsSignin'); the sign-in form words both.
 export const authOptions: NextAuthOptions = {

@@ -1,3 +1,4 @@
+import contentDisposition from 'content-disposition';
 import { Readable } from 'node:stream';
 import { withRoute } from '@/lib/api/with-route';
 import { byJobParam } from '@/lib/api/scopes';
@@ -22,7 +23,7 @@ export const GET = withRoute({ action: 'job.read', scope: byJobParam }, async ({
     headers: {
       'content-type': String(job.result?.contentType ?? 'application/octet-stream'),
       'content-length': String(size),
-      'content-disposition': `attachment; filename="${fileName.replace(/"/g, '')}"`,
+      'content-disposition': contentDisposition(fileName),
     },
   });
 });

@@ -1,4 +1,5 @@
 import { Readable } from 'node:stream';
+import contentDisposition from 'content-disposition';
 import { z } from 'zod';
 import { withRoute } from '@/lib/api/with-route';
 import { byUploadParam } from '@/lib/api/scopes';
@@ -19,7 +20,8 @@ export const GET = withRoute(
       headers: {
         'content-type': 'application/octet-stream',
         'content-length': String(size),
-        'content-disposition': `attachment; filename="${f.fileName.replace(/["\\\r\n]/g, '_')}"`,
+        // RFC 6266: an ASCII fallback and the UTF-8 name (Straße.gpx, emoji) in filename*
+        'content-disposition': contentDisposition(f.fileName),
         'x-content-sha256': f.sha256,
       },
     });
