@@ -3,7 +3,7 @@ import { datumWarning, makeTransformer, type ToWgs84 } from './reproject';
 import { epsgCode, resolveCode, resolveCrsName } from './resolve-crs';
 import { outOfRange, positionProblem, type RangeProblem } from './validate-coords';
 import { IngestError, type CrsDefinition, type ParseOptions, type ParsedFeature, type ParsedUpload, type Position } from './types';
-import { toUtcIso } from './utc-time';
+import { badTimesError, timesToUtc, timeToUtc, type BadTime } from './utc-time';
 
 const GEOMETRY_TYPES = new Set(['Point', 'MultiPoint', 'LineString', 'MultiLineString', 'Polygon', 'MultiPolygon', 'GeometryCollection']);
 
@@ -79,6 +79,7 @@ export async function parseGeoJson(text: string, opts: ParseOptions): Promise<Pa
   const features: ParsedFeature[] = [];
   const problems: RangeProblem[] = [];
   const broken: string[] = [];
+  const badTimes: BadTime[] = [];
 
   list.forEach((f, index) => {
     const props: Record<string, unknown> = { ...((f?.properties ?? {}) as NonNullable<GeoJsonProperties>) };
@@ -130,7 +131,7 @@ export async function parseGeoJson(text: string, opts: ParseOptions): Promise<Pa
         const where = total > 1 ? `${label} part ${partNo}` : label;
         if (g.type === 'Point' || g.type === 'MultiPoint') {
           const coord = convert(part, where);
-          if (coord) features.push({ kind: 'point', name, coord, time: toUtcIso(props.time as string | undefined), attributes });
+          if (coord) features.push({ kind: 'point', name, coord, time: timeToUtc(props.time, `${where} property time`, badTimes), attributes });
           continue;
         }
         if (!Array.isArray(part)) {
@@ -142,7 +143,7 @@ export async function parseGeoJson(text: string, opts: ParseOptions): Promise<Pa
           warnings.push(`${where} has ${coords.length} position${coords.length === 1 ? '' : 's'}; skipped`);
           continue;
         }
-        const times = Array.isArray(rawTimes) && total === 1 && rawTimes.length === coords.length ? rawTimes.map((t) => toUtcIso(String(t))) : null;
+        const times = Array.isArray(rawTimes) && total === 1 && rawTimes.length === coords.length ? timesToUtc(rawTimes, where, badTimes) : null;
         features.push({ kind: 'line', name, coords, times, pointAttributes: null, attributes });
       }
     }
@@ -152,5 +153,6 @@ export async function parseGeoJson(text: string, opts: ParseOptions): Promise<Pa
     throw new IngestError('malformed', `${broken.length} geometr${broken.length === 1 ? 'y has' : 'ies have'} unreadable coordinates: ${broken[0]}`, { count: broken.length, problems: broken.slice(0, 50) });
   }
   if (problems.length) throw outOfRange(problems);
+  if (badTimes.length) throw badTimesError(badTimes);
   return { format: 'geojson', sourceCrs: `EPSG:${def?.srid ?? 4326}`, features, warnings };
 }

@@ -1,6 +1,6 @@
 import { SaxesParser, type SaxesTagPlain } from 'saxes';
 import { assertSafeXml } from './check-xml';
-import { toUtcIso } from './utc-time';
+import { badTimesError, noteBadTime, toUtcIso, type BadTime } from './utc-time';
 import { outOfRange, positionProblem, type RangeProblem } from './validate-coords';
 import { IngestError, type ParsedFeature, type ParsedUpload, type Position } from './types';
 
@@ -16,6 +16,7 @@ interface Pt {
   lat: number;
   ok: boolean;
   ele?: string;
+  /** ISO 8601 UTC, already converted where the <time> closed */
   time?: string;
   name?: string;
   desc?: string;
@@ -37,7 +38,7 @@ class Run {
     const i = this.coords.length;
     const ele = p.ele !== undefined ? Number.parseFloat(p.ele) : Number.NaN;
     this.coords.push(Number.isFinite(ele) ? [p.lon, p.lat, ele] : [p.lon, p.lat]);
-    const t = toUtcIso(p.time);
+    const t = p.time ?? null;
     if (t) this.anyTime = true;
     this.times.push(t);
     if (!p.extra) {
@@ -73,8 +74,9 @@ function localName(name: string): string {
  * Parse GPX 1.0 or 1.1 by streaming it through saxes.
  *
  * Each trk/trkseg becomes a line (segments of fewer than 2 points are skipped with a warning),
- * each rte a line, each wpt a point. Throws 'malformed' (with line and column), 'out_of_range'
- * (every bad point listed) or 'too_few_points'.
+ * each rte a line, each wpt a point. Throws 'malformed' (with line and column; also for a <time> that
+ * names no real day or time, such as 2024-02-31), 'out_of_range' (every bad point listed) or 'too_few_points'.
+ * A <time> that is not shaped like a date at all is read as no time.
  *
  * @example
  * const upload = parseGpx(await readFile('walk.gpx', 'utf8'));
@@ -87,6 +89,7 @@ export function parseGpx(text: string): ParsedUpload {
   const warnings: string[] = [];
   const problems: RangeProblem[] = [];
   const badNumbers: { where: string; message: string }[] = [];
+  const badTimes: BadTime[] = [];
   const stack: string[] = [];
   let skipDepth = 0; // inside <extensions>: anything goes, nothing is read
   let capture: string | null = null;
@@ -158,7 +161,11 @@ export function parseGpx(text: string): ParsedUpload {
       const parent = stack[stack.length - 1];
       if (pt && (parent === 'trkpt' || parent === 'rtept' || parent === 'wpt')) {
         if (EXTRA_SET.has(name)) (pt.extra ??= {})[name as Extra] = capture;
-        else pt[name as 'ele' | 'time' | 'name' | 'desc' | 'cmt' | 'type'] = capture;
+        else if (name === 'time') {
+          const iso = toUtcIso(capture);
+          if (iso !== null) pt.time = iso;
+          else if (capture.trim() !== '') noteBadTime(capture, where('time'), badTimes);
+        } else pt[name as 'ele' | 'name' | 'desc' | 'cmt' | 'type'] = capture;
       }
       else if (owner && parent === owner.kind) owner.text[name] = capture.trim();
       capture = null;
@@ -177,7 +184,7 @@ export function parseGpx(text: string): ParsedUpload {
           kind: 'point',
           name: pt.name?.trim() || null,
           coord: Number.isFinite(ele) ? [pt.lon, pt.lat, ele] : [pt.lon, pt.lat],
-          time: toUtcIso(pt.time),
+          time: pt.time ?? null,
           attributes,
         });
       }
@@ -228,6 +235,7 @@ export function parseGpx(text: string): ParsedUpload {
     });
   }
   if (problems.length) throw outOfRange(problems);
+  if (badTimes.length) throw badTimesError(badTimes);
   if (features.length === 0 && trackCount + routeCount > 0) {
     throw new IngestError('too_few_points', `no track or route in the GPX has 2 or more points (${warnings.join('; ')})`);
   }

@@ -1,6 +1,6 @@
 import { SaxesParser, type SaxesTagPlain } from 'saxes';
 import { assertSafeXml } from './check-xml';
-import { toUtcIso } from './utc-time';
+import { badTimesError, timesToUtc, timeToUtc, type BadTime } from './utc-time';
 import { outOfRange, positionProblem, type RangeProblem } from './validate-coords';
 import { IngestError, type ParsedFeature, type ParsedUpload, type Position } from './types';
 
@@ -461,6 +461,7 @@ function finish(recs: Rec[], schema: Map<string, Converter>, format: 'kml' | 'km
   const features: ParsedFeature[] = [];
   const warnings: string[] = [];
   const problems: RangeProblem[] = [];
+  const badTimes: BadTime[] = [];
 
   recs.forEach((rec, index) => {
     // the property object in togeojson's order, so that ExtendedData overrides name etc. as it does there
@@ -490,7 +491,7 @@ function finish(recs: Rec[], schema: Map<string, Converter>, format: 'kml' | 'km
     geoms.forEach((g, i) => {
       const partAttrs = geoms.length > 1 ? { ...attributes, part: i + 1 } : attributes;
       const where = `${label}${geoms.length > 1 ? ` part ${i + 1}` : ''}`;
-      let times = timesFor?.[i]?.map((t) => toUtcIso(t)) ?? null;
+      let times = timesFor?.[i] ? timesToUtc(timesFor[i], where, badTimes) : null;
       if (g.type === 'LineString') {
         const coords = g.coords;
         for (let j = 0; j < coords.length; j++) {
@@ -507,7 +508,7 @@ function finish(recs: Rec[], schema: Map<string, Converter>, format: 'kml' | 'km
         const coord = g.coord;
         const m = positionProblem(coord[0], coord[1]);
         if (m) problems.push({ where, lon: coord[0], lat: coord[1], message: m });
-        features.push({ kind: 'point', name, coord, time: times?.[0] ?? toUtcIso(props.timestamp as string | undefined), attributes: partAttrs });
+        features.push({ kind: 'point', name, coord, time: times?.[0] ?? timeToUtc(props.timestamp, `${where} <TimeStamp>`, badTimes), attributes: partAttrs });
       } else {
         warnings.push(`${where} is a ${g.type}; only lines and points are read, so it was skipped`);
       }
@@ -515,5 +516,6 @@ function finish(recs: Rec[], schema: Map<string, Converter>, format: 'kml' | 'km
   });
 
   if (problems.length) throw outOfRange(problems);
+  if (badTimes.length) throw badTimesError(badTimes);
   return { format, sourceCrs: 'EPSG:4326', features, warnings };
 }

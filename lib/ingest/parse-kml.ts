@@ -4,7 +4,7 @@ import type { Feature, Geometry } from 'geojson';
 import { assertSafeXml } from './check-xml';
 import { decodeText } from './decode-text';
 import { readZip } from './read-zip';
-import { toUtcIso } from './utc-time';
+import { badTimesError, timesToUtc, timeToUtc, type BadTime } from './utc-time';
 import { outOfRange, positionProblem, type RangeProblem } from './validate-coords';
 import { KML_NOT_DATA as NOT_DATA, parseKmlStream } from './parse-kml-stream';
 import { IngestError, type IngestLimits, type ParsedFeature, type ParsedUpload, type Position } from './types';
@@ -72,6 +72,7 @@ export function parseKmlDom(text: string, format: 'kml' | 'kmz' = 'kml'): Parsed
   const features: ParsedFeature[] = [];
   const warnings: string[] = [];
   const problems: RangeProblem[] = [];
+  const badTimes: BadTime[] = [];
 
   (fc.features as Feature<Geometry | null>[]).forEach((f, index) => {
     const props = (f.properties ?? {}) as Record<string, unknown>;
@@ -96,7 +97,7 @@ export function parseKmlDom(text: string, format: 'kml' | 'kmz' = 'kml'): Parsed
         const m = positionProblem(p[0], p[1]);
         if (m) problems.push({ where: j === undefined ? where : `${where} position ${j + 1}`, lon: p[0], lat: p[1], message: m });
       };
-      let times = timesFor?.[i]?.map((t) => toUtcIso(t)) ?? null;
+      let times = timesFor?.[i] ? timesToUtc(timesFor[i], where, badTimes) : null;
       if (g.type === 'LineString' || g.type === 'MultiLineString') {
         const lines = g.type === 'LineString' ? [g.coordinates] : g.coordinates;
         for (const line of lines) {
@@ -117,7 +118,7 @@ export function parseKmlDom(text: string, format: 'kml' | 'kmz' = 'kml'): Parsed
         for (const c of pts) {
           const coord = toPosition(c);
           check(coord);
-          features.push({ kind: 'point', name, coord, time: times?.[0] ?? toUtcIso(props.timestamp as string | undefined), attributes: partAttrs });
+          features.push({ kind: 'point', name, coord, time: times?.[0] ?? timeToUtc(props.timestamp, `${where} <TimeStamp>`, badTimes), attributes: partAttrs });
         }
       } else {
         warnings.push(`${where} is a ${g.type}; only lines and points are read, so it was skipped`);
@@ -126,6 +127,7 @@ export function parseKmlDom(text: string, format: 'kml' | 'kmz' = 'kml'): Parsed
   });
 
   if (problems.length) throw outOfRange(problems);
+  if (badTimes.length) throw badTimesError(badTimes);
   return { format, sourceCrs: 'EPSG:4326', features, warnings };
 }
 

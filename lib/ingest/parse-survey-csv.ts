@@ -4,6 +4,7 @@ import { datumWarning, makeTransformer } from './reproject';
 import { resolveCrsName } from './resolve-crs';
 import { checkSwap, type Oriented } from './survey-axes';
 import { buildFeatures, type Row } from './survey-features';
+import { timeProblem } from './utc-time';
 import { outOfRange, positionProblem, type RangeProblem } from './validate-coords';
 import { IngestError, type ColumnMap, type ParseOptions, type ParsedUpload, type Position } from './types';
 
@@ -106,6 +107,11 @@ export async function parseSurveyCsv(text: string, opts: ParseOptions): Promise<
     const t = delimiter !== ',' && /^[-+]?\d+,\d+$/.test(s) ? s.replace(',', '.') : s;
     return /^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$/.test(t) ? Number(t) : Number.NaN;
   };
+  // a date shaped like one but naming no real day or time (2024-02-31) would be stored rolled over or fail
+  const dateWrong = (v: string | null) => {
+    const why = timeProblem(v);
+    return why !== null && `time '${v}' names a day or time that does not exist (${why})`;
+  };
   const [ka, kb] = useXY ? (['x', 'y'] as const) : (['lon', 'lat'] as const);
   const rows: Row[] = [];
   const bad: BadRow[] = [];
@@ -124,6 +130,7 @@ export async function parseSurveyCsv(text: string, opts: ParseOptions): Promise<
       Number.isNaN(a) && `${ka === 'x' ? 'easting' : 'longitude'} '${get(ka) ?? ''}' is not a number`,
       Number.isNaN(b) && `${kb === 'y' ? 'northing' : 'latitude'} '${get(kb) ?? ''}' is not a number`,
       z !== null && Number.isNaN(z) && `height '${zRaw}' is not a number`,
+      dateWrong(get('date')),
     ].filter(Boolean);
     if (wrong.length) bad.push({ row: line, message: `row ${line}: ${wrong.join(', ')}` });
     else rows.push({ line, a, b, z, get });
