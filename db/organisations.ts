@@ -24,3 +24,10 @@ export async function insertOrganisation(db: Db, name: string, kind: OrgKind): P
   const [row] = await db<OrganisationRow>('organisations').insert({ name: name.trim(), kind }).returning('*');
   return toDto(row);
 }
+
+/** Every organisation of one kind (or all), by name: the lists owners and contractors are picked from. */
+export async function listOrganisations(db: Db, kind?: OrgKind): Promise<Organisation[]> {
+  const q = db<OrganisationRow>('organisations').orderByRaw('lower(name)');
+  if (kind) q.where({ kind });
+  return (await q).map(toDto);
+}

@@ -100,6 +100,8 @@ async function main() {
   const { createProject, createProjectSchema } = await import('../lib/services/projects');
   const db = getDb();
   const { userId } = await addUser(db, { email: 'bench@bench.example', name: 'Bench', role: 'surveyor', org: 'Bench Contractor', orgKind: 'contractor', token: false });
+  // the partner is picked from registered organisations, so the bench registers its own
+  await addUser(db, { email: 'bench-owner@bench.example', name: 'Bench Owner', role: 'owner', org: 'Bench Owner', orgKind: 'owner', token: false });
   const project = await createProject(db, (await loadPrincipal(db, userId))!, createProjectSchema.parse({ name: 'Bench', partnerOrganisation: 'Bench Owner' }));
   await closeDb();
 

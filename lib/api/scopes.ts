@@ -1,6 +1,7 @@
 import { getCorrection } from '@/db/corrections';
 import type { Db } from '@/db/client';
 import { getJob } from '@/db/jobs';
+import { getOrgChange } from '@/db/org-changes';
 import { getUserRow } from '@/db/users';
 import { getApiToken } from '@/db/api-tokens';
 import { getUpload } from '@/db/uploads';
@@ -48,4 +49,11 @@ export async function byCorrectionParam(params: Record<string, string>, db: Db):
   if (!/^\d{1,15}$/.test(params.correctionId ?? '')) return undefined;
   const c = await getCorrection(db, Number(params.correctionId));
   return c && { projectId: c.projectId };
+}
+
+/** A proposed change of owner or contractor belongs to its project; the route's projectId must match it. */
+export async function byOrgChangeParam(params: Record<string, string>, db: Db): Promise<Scope | undefined> {
+  if (!/^\d{1,15}$/.test(params.changeId ?? '') || !isUuid(params.projectId)) return undefined;
+  const c = await getOrgChange(db, Number(params.changeId));
+  return c && c.projectId === params.projectId ? { projectId: c.projectId } : undefined;
 }

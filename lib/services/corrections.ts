@@ -8,11 +8,12 @@ import { getUpload } from '@/db/uploads';
 import { AppError } from '@/lib/api/errors';
 import { auditActor, type Principal } from '@/lib/auth/principal';
 import { ACCURACY_CLASSES, DEFAULT_SIGMA_M } from '@/lib/records/accuracy-classes';
+import { plausibleDate, RANGES, rangedNumber } from '@/lib/records/plausible-ranges';
 import { addPromotedRoute } from './planned';
 import { requestReconciliation } from './reconcile';
 
 const reason = z.string().trim().min(3, 'Say why: the reason goes into the audit log.').max(1000);
-const chainage = z.number({ message: 'Give a chainage in metres.' }).min(0, 'A chainage is 0 m or more.');
+const chainage = rangedNumber(RANGES.chainageM);
 
 /** One correction of a section, by kind; every kind carries the engineer's reason. */
 export const correctionSchema = z.discriminatedUnion('kind', [
@@ -23,7 +24,7 @@ export const correctionSchema = z.discriminatedUnion('kind', [
     kind: z.literal('mark_built'),
     sourceUploadId: z.uuid('Choose an upload of this project, or leave it empty.').optional(),
     accuracyClass: z.enum(ACCURACY_CLASSES).optional(),
-    laidOn: z.iso.date('Give the date laid as YYYY-MM-DD.').optional(),
+    laidOn: plausibleDate('the date laid').optional(),
     fromChainageM: chainage.optional(),
     toChainageM: chainage.optional(),
     reason,

@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import type { Knex } from 'knex';
-import { findOrganisationByName, insertOrganisation } from '@/db/organisations';
+import { findOrganisationByName, getOrganisation, type Organisation } from '@/db/organisations';
 import { getProject, insertProject, sridExists, updateProject, type Project, type ProjectValues } from '@/db/projects';
 import { writeAudit } from '@/db/audit';
 import { AppError } from '@/lib/api/errors';
@@ -8,6 +8,7 @@ import { auditActor, type Principal } from '@/lib/auth/principal';
 import type { OrgKind } from '@/lib/auth/roles';
 
 import { ACCURACY_CLASSES } from '@/lib/records/accuracy-classes';
+import { RANGES, rangedNumber } from '@/lib/records/plausible-ranges';
 
 const timeZones = new Set<string>([...Intl.supportedValuesOf('timeZone'), 'UTC']);
 
@@ -16,61 +17,87 @@ const extentSchema = z
   .refine(([w, , e]) => w < e, 'West must be less than east (extents across the antimeridian are not supported).')
   .refine(([, s, , n]) => s < n, 'South must be less than north.');
 
+// '25832' and 'EPSG:25832' both name the grid: surveyors often type the bare code
 const crsSchema = z
   .string()
   .trim()
-  .regex(/^EPSG:\d{4,6}$/i, 'Give the coordinate system as EPSG:<code>, e.g. EPSG:25832.')
-  .transform((s) => Number(s.split(':')[1]));
+  .regex(/^(EPSG:)?\d{4,6}$/i, 'Give the EPSG code of the grid, e.g. 25832 or EPSG:25832.')
+  .transform((s) => Number(s.replace(/^EPSG:/i, '')));
+
+const sigmasSchema = z.partialRecord(z.enum(ACCURACY_CLASSES), rangedNumber(RANGES.sigmaM));
+
+const PARTNER_MOVED = 'The network owner and the contractor change only by a proposal that the other organisation confirms (POST /api/projects/{id}/org-changes).';
 
 const settingsShape = {
   name: z.string().trim().min(1, 'Name the project.').max(200),
-  partnerOrganisation: z.string().trim().min(2, 'Name the partner organisation.').max(200),
+  /** the partner organisation, picked from the registered ones: its id, or its exact name (API clients) */
+  partnerOrganisationId: z.uuid('Pick the partner organisation from the list.').optional(),
+  partnerOrganisation: z.string().trim().min(1).max(200).optional(),
   areaName: z.string().trim().max(200).default(''),
   defaultCrs: crsSchema.default(4326),
   extent: extentSchema.nullable().default(null),
   timeZone: z.string().refine((tz) => timeZones.has(tz), 'Unknown time zone; use an IANA name such as Europe/Berlin.').default('UTC'),
   unitSystem: z.enum(['metric', 'imperial']).default('metric'),
-  minCoverDepthM: z.number().min(0, 'Cover depth cannot be negative.').max(5, 'Cover depth over 5 m is not plausible.').default(0.3),
-  lateralToleranceM: z.number().positive('Tolerance must be above zero.').max(50).default(0.5),
+  minCoverDepthM: rangedNumber(RANGES.minCoverDepthM).default(0.3),
+  lateralToleranceM: rangedNumber(RANGES.lateralToleranceM).default(0.5),
   defaultAccuracyClass: z.enum(ACCURACY_CLASSES).default('unknown'),
-  accuracySigmas: z.partialRecord(z.enum(ACCURACY_CLASSES), z.number().positive('σ must be above zero.').max(100, 'σ over 100 m is not a survey.')).default({}),
+  accuracySigmas: sigmasSchema.default({}),
 };
 
-export const createProjectSchema = z.object(settingsShape);
+export const createProjectSchema = z
+  .object(settingsShape)
+  .refine((v) => v.partnerOrganisationId !== undefined || v.partnerOrganisation !== undefined, {
+    message: 'Pick the partner organisation from the list.',
+    path: ['partnerOrganisationId'],
+  });
 export const updateProjectSchema = z
   .object({
     name: settingsShape.name,
-    partnerOrganisation: settingsShape.partnerOrganisation,
     areaName: z.string().trim().max(200),
     defaultCrs: crsSchema,
     extent: extentSchema.nullable(),
     timeZone: z.string().refine((tz) => timeZones.has(tz), 'Unknown time zone; use an IANA name such as Europe/Berlin.'),
     unitSystem: settingsShape.unitSystem.unwrap(),
-    minCoverDepthM: z.number().min(0).max(5),
-    lateralToleranceM: z.number().positive().max(50),
+    minCoverDepthM: rangedNumber(RANGES.minCoverDepthM),
+    lateralToleranceM: rangedNumber(RANGES.lateralToleranceM),
     defaultAccuracyClass: z.enum(ACCURACY_CLASSES),
-    accuracySigmas: settingsShape.accuracySigmas.unwrap(),
+    accuracySigmas: sigmasSchema,
+    // named only to be refused: a typed name once moved the project to a new (misspelt) organisation
+    partnerOrganisation: z.unknown(),
+    partnerOrganisationId: z.unknown(),
+    ownerOrgId: z.unknown(),
+    contractorOrgId: z.unknown(),
   })
-  .partial();
+  .partial()
+  .superRefine((v, ctx) => {
+    for (const k of ['partnerOrganisation', 'partnerOrganisationId', 'ownerOrgId', 'contractorOrgId'] as const) {
+      if (v[k] !== undefined) ctx.addIssue({ code: 'custom', path: [k], message: PARTNER_MOVED });
+    }
+  });
 
 type CreateInput = z.infer<typeof createProjectSchema>;
 type UpdateInput = z.infer<typeof updateProjectSchema>;
 
 const partnerKind = (own: OrgKind): OrgKind => (own === 'owner' ? 'contractor' : 'owner');
 
-/** Finds the partner organisation by name, or creates it; refuses a name that belongs to the wrong side. */
-async function resolvePartner(trx: Knex.Transaction, actor: Principal, name: string): Promise<string> {
+/** The picked partner organisation; refuses an unknown one (nothing is created here) or one of the wrong side. */
+async function resolvePartner(trx: Knex.Transaction, actor: Principal, input: { partnerOrganisationId?: string; partnerOrganisation?: string }): Promise<string> {
   const kind = partnerKind(actor.organisationKind);
-  const found = await findOrganisationByName(trx, name);
-  if (found) {
-    if (found.id === actor.organisationId || found.kind !== kind) {
-      throw new AppError('invalid', `"${name}" cannot be the partner: the partner must be a ${kind === 'owner' ? 'network owner' : 'contractor'}.`, [
-        { path: 'partnerOrganisation', message: `Name a ${kind === 'owner' ? 'network owner' : 'contractor'} organisation.` },
-      ]);
-    }
-    return found.id;
+  const side = kind === 'owner' ? 'network owner' : 'contractor';
+  const path = input.partnerOrganisationId !== undefined ? 'partnerOrganisationId' : 'partnerOrganisation';
+  let found: Organisation | undefined;
+  if (input.partnerOrganisationId !== undefined) found = await getOrganisation(trx, input.partnerOrganisationId);
+  else if (input.partnerOrganisation !== undefined) found = await findOrganisationByName(trx, input.partnerOrganisation);
+  if (!found) {
+    const what = input.partnerOrganisationId !== undefined ? 'That organisation' : `"${input.partnerOrganisation}"`;
+    throw new AppError('invalid', `${what} is not a registered organisation: pick the ${side} from the list, or register it first.`, [
+      { path, message: `Pick a registered ${side}, or register it first.` },
+    ]);
   }
-  return (await insertOrganisation(trx, name, kind)).id;
+  if (found.id === actor.organisationId || found.kind !== kind) {
+    throw new AppError('invalid', `"${found.name}" cannot be the partner: the partner must be a ${side}.`, [{ path, message: `Pick a ${side} organisation.` }]);
+  }
+  return found.id;
 }
 
 async function checkSrid(trx: Knex.Transaction, srid: number | undefined): Promise<void> {
@@ -95,12 +122,12 @@ async function guardUniqueName(err: unknown, name: string): Promise<never> {
   throw err;
 }
 
-/** Creates a project of the admin's organisation with the named partner (created when missing). */
+/** Creates a project of the admin's organisation with the picked partner organisation. */
 export async function createProject(db: Knex, actor: Principal, input: CreateInput): Promise<Project> {
   return db
     .transaction(async (trx) => {
       await checkSrid(trx, input.defaultCrs);
-      const partnerId = await resolvePartner(trx, actor, input.partnerOrganisation);
+      const partnerId = await resolvePartner(trx, actor, input);
       const own = actor.organisationId;
       const values: ProjectValues = {
         name: input.name,
@@ -146,11 +173,6 @@ export async function changeProject(db: Knex, actor: Principal, projectId: strin
         defaultAccuracyClass: input.defaultAccuracyClass,
         accuracySigmas: input.accuracySigmas,
       };
-      if (input.partnerOrganisation !== undefined) {
-        const partnerId = await resolvePartner(trx, actor, input.partnerOrganisation);
-        if (actor.organisationKind === 'owner') patch.contractorOrgId = partnerId;
-        else patch.ownerOrgId = partnerId;
-      }
       const after = await updateProject(trx, projectId, patch);
       await writeAudit(trx, auditActor(actor), {
         projectId,

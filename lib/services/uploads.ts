@@ -27,6 +27,7 @@ import { parseUpload } from '@/lib/ingest/parse-upload';
 import { combinedSha, removeOriginals, storeOriginals } from './originals';
 import { IngestError, type ColumnMap, type ParsedUpload } from '@/lib/ingest/types';
 import { ACCURACY_CLASSES, DEFAULT_SIGMA_M, type AccuracyClass } from '@/lib/records/accuracy-classes';
+import { plausibleDate } from '@/lib/records/plausible-ranges';
 import { originalsStore } from '@/lib/storage/originals-store';
 
 export const UPLOAD_CONTENTS = ['trench', 'road_crossings', 'test_pits', 'depth_shots', 'mixed'] as const;
@@ -42,7 +43,7 @@ const columnMapSchema = z
 const settingsShape = {
   crs: epsgField.optional(),
   accuracy: z.enum(ACCURACY_CLASSES).optional(),
-  surveyDate: z.iso.date('Give the survey date as YYYY-MM-DD.').optional(),
+  surveyDate: plausibleDate('the survey date').optional(),
   crew: z.string().trim().max(200).optional(),
   content: z.enum(UPLOAD_CONTENTS).optional(),
 };

@@ -30,6 +30,12 @@ interface Ctx {
   correctionId: number;
   foreignCorrectionId: number;
   spareTokenId: (req: APIRequestContext) => Promise<string>;
+  /** projects between the demo owner and contractor for the owner-change rows, one with a pending proposal */
+  transferProjectId: string;
+  proposeProjectId: string;
+  orgChangeId: number;
+  foreignOrgChangeId: number;
+  newOwnerOrgId: string;
 }
 
 interface SectionRef {
@@ -305,6 +311,39 @@ const MATRIX: Record<string, Row | PublicRow> = {
     allowed: 'engineer',
     success: 200,
   },
+  'GET /api/organisations': { url: () => '/api/organisations?kind=owner', foreign: NO_OBJECT, denied: 'engineer', allowed: 'admin', success: 200 },
+  'POST /api/organisations': {
+    url: () => '/api/organisations',
+    foreign: NO_OBJECT,
+    denied: 'owner',
+    allowed: 'contractorAdmin',
+    body: () => ({ name: `Matrix Owner ${Date.now()}`, kind: 'owner' }),
+    success: 201,
+  },
+  'GET /api/projects/[projectId]/org-changes': {
+    url: (c) => `/api/projects/${c.transferProjectId}/org-changes`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/org-changes`,
+    denied: ALL_ROLES,
+    allowed: 'owner',
+    success: 200,
+  },
+  'POST /api/projects/[projectId]/org-changes': {
+    url: (c) => `/api/projects/${c.proposeProjectId}/org-changes`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/org-changes`,
+    denied: 'engineer',
+    allowed: 'contractorAdmin',
+    body: (c) => ({ side: 'owner', organisationId: c.newOwnerOrgId, reason: 'isolation matrix' }),
+    success: 201,
+  },
+  'PATCH /api/projects/[projectId]/org-changes/[changeId]': {
+    // the proposing side withdraws its own proposal: nothing moves
+    url: (c) => `/api/projects/${c.transferProjectId}/org-changes/${c.orgChangeId}`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/org-changes/${c.foreignOrgChangeId}`,
+    denied: 'engineer',
+    allowed: 'contractorAdmin',
+    body: () => ({ decision: 'withdraw' }),
+    success: 200,
+  },
   'GET /api/crs': { url: () => '/api/crs?q=25832', foreign: NO_OBJECT, denied: ALL_ROLES, allowed: 'surveyor', success: 200 },
   'GET /api/audit': { url: () => '/api/audit', foreign: NO_OBJECT, denied: 'maintenance', allowed: 'admin', success: 200 },
 };
@@ -358,8 +397,29 @@ test.beforeAll(async ({ request }) => {
 
   const projects = await json<{ projects: { id: string; name: string }[] }>(request, 'GET', '/api/projects', tokens.admin);
   const projectId = projects.body!.projects.find((p) => p.name === 'Quillhaven North, phase 1')!.id;
+  // partners are picked from registered organisations: register them (201), or find them from an earlier attempt (409)
+  const register = async (token: string, name: string, kind: 'owner' | 'contractor') => {
+    const r = await json(request, 'POST', '/api/organisations', token, { name, kind });
+    expect([201, 409]).toContain(r.status);
+    const list = await json<{ organisations: { id: string; name: string }[] }>(request, 'GET', `/api/organisations?kind=${kind}`, token);
+    return list.body!.organisations.find((o) => o.name === name)!.id;
+  };
+  await register(foreignToken, 'Larkspur Ground Works', 'contractor');
   const fp = await json<{ project: { id: string } }>(request, 'POST', '/api/projects', foreignToken, { name: `Mossgate ${Date.now()}`, partnerOrganisation: 'Larkspur Ground Works' });
   expect(fp.status).toBe(201);
+  const newOwnerOrgId = await register(tokens.admin, 'Fernbrook Fibre Trust', 'owner');
+  const tarnwickId = await register(tokens.admin, 'Tarnwick Slot & Duct Ltd', 'contractor');
+  const between = async (label: string) =>
+    (await json<{ project: { id: string } }>(request, 'POST', '/api/projects', tokens.admin, { name: `${label} ${Date.now()}`, partnerOrganisationId: tarnwickId })).body!.project.id;
+  const transferProjectId = await between('Matrix transfer');
+  const proposeProjectId = await between('Matrix proposal');
+  const propose = async (token: string, pid: string, body: unknown) => {
+    const r = await json<{ change: { id: number } }>(request, 'POST', `/api/projects/${pid}/org-changes`, token, body);
+    expect(r.status).toBe(201);
+    return r.body!.change.id;
+  };
+  const orgChangeId = await propose(tokens.contractorAdmin, transferProjectId, { side: 'owner', organisationId: newOwnerOrgId, reason: 'isolation matrix' });
+  const foreignOrgChangeId = await propose(foreignToken, fp.body!.project.id, { side: 'contractor', organisationId: tarnwickId, reason: 'isolation matrix' });
   const job = await json<{ job: { id: string } }>(request, 'POST', `/api/projects/${projectId}/audit/exports`, tokens.admin);
   const fjob = await json<{ job: { id: string } }>(request, 'POST', `/api/projects/${fp.body!.project.id}/audit/exports`, foreignToken);
   const fme = await json<{ user: { id: string } }>(request, 'GET', '/api/me', foreignToken);
@@ -410,6 +470,11 @@ test.beforeAll(async ({ request }) => {
     foreignToken,
     projectId,
     foreignProjectId: fp.body!.project.id,
+    transferProjectId,
+    proposeProjectId,
+    orgChangeId,
+    foreignOrgChangeId,
+    newOwnerOrgId,
     jobId: job.body!.job.id,
     foreignJobId: fjob.body!.job.id,
     foreignUserId: fme.body!.user.id,

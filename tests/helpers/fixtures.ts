@@ -38,3 +38,15 @@ export async function countFiles(dir: string): Promise<number> {
   await walk(dir);
   return n;
 }
+
+/**
+ * Registers an organisation on the other side of the actor's (a project picks its partner from the
+ * registered ones) and returns its name, for `createProjectSchema.parse({ partnerOrganisation: … })`.
+ * An existing one of that name is reused.
+ */
+export async function registerPartner(db: Knex, actor: Principal, name: string): Promise<string> {
+  const { findOrganisationByName, insertOrganisation } = await import('@/db/organisations');
+  const found = await findOrganisationByName(db, name);
+  if (!found) await insertOrganisation(db, name, actor.organisationKind === 'owner' ? 'contractor' : 'owner');
+  return name;
+}

@@ -7,7 +7,7 @@ import { createToken } from '@/lib/services/tokens';
 import { findUserByTokenHash } from '@/db/api-tokens';
 import { hashSecret } from '@/lib/auth/secret-token';
 import { loadPrincipal } from '@/lib/auth/principal';
-import { count, makePrincipal } from '../helpers/fixtures';
+import { count, makePrincipal, registerPartner } from '../helpers/fixtures';
 
 const db = getDb();
 afterAll(() => closeDb());
@@ -55,7 +55,7 @@ describe('audit log for user changes', () => {
 describe('audit log for project changes', () => {
   it('records create and update with before and after', async () => {
     const admin = await makePrincipal(db, 'admin', 'owner');
-    const input = createProjectSchema.parse({ name: 'Audit street works', partnerOrganisation: `Partner ${Date.now()}`, defaultCrs: 'EPSG:25833', timeZone: 'Europe/Berlin' });
+    const input = createProjectSchema.parse({ name: 'Audit street works', partnerOrganisation: await registerPartner(db, admin, `Partner ${Date.now()}`), defaultCrs: 'EPSG:25833', timeZone: 'Europe/Berlin' });
     const project = await createProject(db, admin, input);
     expect(project.defaultCrs).toBe('EPSG:25833');
     await changeProject(db, admin, project.id, { lateralToleranceM: 0.8 });

@@ -14,7 +14,7 @@ import { createProject, createProjectSchema } from '@/lib/services/projects';
 import { runReconciliation, sectionDetail } from '@/lib/services/reconcile';
 import { receiveUpload } from '@/lib/services/uploads';
 import { mulberry32 } from '@/lib/records/seeded-random';
-import { count, makePrincipal } from '../helpers/fixtures';
+import { count, makePrincipal, registerPartner } from '../helpers/fixtures';
 import { formOf } from '../helpers/upload-form';
 
 // Engineers' corrections through the real pipeline: stored, audited, applied again by every run.
@@ -79,7 +79,7 @@ async function refused(s: Section, input: unknown, code: string, message: RegExp
 beforeAll(async () => {
   const admin = await makePrincipal(db, 'admin', 'contractor');
   engineer = await makePrincipal(db, 'engineer', 'contractor', admin.organisationName);
-  project = (await getProject(db, (await createProject(db, admin, createProjectSchema.parse({ name: 'Corrections', partnerOrganisation: `C owner ${Date.now()}`, lateralToleranceM: 0.5 }))).id))!;
+  project = (await getProject(db, (await createProject(db, admin, createProjectSchema.parse({ name: 'Corrections', partnerOrganisation: await registerPartner(db, admin, `C owner ${Date.now()}`), lateralToleranceM: 0.5 }))).id))!;
   const form = await formOf([{ name: 'design.geojson', bytes: design }]);
   await importPlan(db, engineer, project, form);
   await form.cleanup();

@@ -7,7 +7,7 @@ import { getJob } from '@/db/jobs';
 import { enqueueJob, startWorkers } from '@/lib/jobs/queue';
 import { stopBoss } from '@/lib/jobs/boss';
 import { changeProject, createProject, createProjectSchema } from '@/lib/services/projects';
-import { makePrincipal } from '../helpers/fixtures';
+import { makePrincipal, registerPartner } from '../helpers/fixtures';
 
 const db = getDb();
 
@@ -31,7 +31,7 @@ async function waitFor(jobId: string) {
 describe('job queue (pg-boss, in-process worker)', () => {
   it('runs an audit export to completion and the CSV parses with an independent reader', async () => {
     const admin = await makePrincipal(db, 'admin', 'contractor');
-    const project = await createProject(db, admin, createProjectSchema.parse({ name: 'Job test, "quoted"', partnerOrganisation: `Owner ${Date.now()}` }));
+    const project = await createProject(db, admin, createProjectSchema.parse({ name: 'Job test, "quoted"', partnerOrganisation: await registerPartner(db, admin, `Owner ${Date.now()}`) }));
     for (const t of [0.6, 0.7, 0.9]) await changeProject(db, admin, project.id, { lateralToleranceM: t });
 
     const queued = await enqueueJob(db, { projectId: project.id, kind: 'audit-export', createdBy: admin.id });
@@ -55,7 +55,7 @@ describe('job queue (pg-boss, in-process worker)', () => {
 
   it('records a failure with its message', async () => {
     const admin = await makePrincipal(db, 'admin', 'owner');
-    const project = await createProject(db, admin, createProjectSchema.parse({ name: 'Failing job', partnerOrganisation: `Contractor ${Date.now()}` }));
+    const project = await createProject(db, admin, createProjectSchema.parse({ name: 'Failing job', partnerOrganisation: await registerPartner(db, admin, `Contractor ${Date.now()}`) }));
     const [row] = await db('jobs').insert({ project_id: project.id, kind: 'no-such-kind', created_by: admin.id }).returning('id');
     const { runJob } = await import('@/lib/jobs/queue');
     await runJob(db, row.id);

@@ -6,7 +6,7 @@ import { listPlannedRoutes } from '@/db/planned';
 import type { Principal } from '@/lib/auth/principal';
 import { createProject, createProjectSchema } from '@/lib/services/projects';
 import { importPlan, plannedFeatureCollection } from '@/lib/services/planned';
-import { count, makePrincipal } from '../helpers/fixtures';
+import { count, makePrincipal, registerPartner } from '../helpers/fixtures';
 import { formOf } from '../helpers/upload-form';
 
 process.env.STORAGE_DIR = path.resolve(__dirname, '../../.data/test-storage-plan');
@@ -41,7 +41,7 @@ async function send(text: string, fields: Record<string, string> = {}) {
 beforeAll(async () => {
   const admin = await makePrincipal(db, 'admin', 'contractor');
   engineer = await makePrincipal(db, 'engineer', 'contractor', admin.organisationName);
-  project = (await getProject(db, (await createProject(db, admin, createProjectSchema.parse({ name: 'Plan test', partnerOrganisation: `Plan owner ${Date.now()}` }))).id))!;
+  project = (await getProject(db, (await createProject(db, admin, createProjectSchema.parse({ name: 'Plan test', partnerOrganisation: await registerPartner(db, admin, `Plan owner ${Date.now()}`) }))).id))!;
 });
 afterAll(() => closeDb());
 

@@ -9,7 +9,7 @@ import { importPlan } from '@/lib/services/planned';
 import { createProject, createProjectSchema } from '@/lib/services/projects';
 import { excludeFromMatching, exclusionSchema, reviewSection, runReconciliation, sectionFeature } from '@/lib/services/reconcile';
 import { receiveUpload } from '@/lib/services/uploads';
-import { makePrincipal } from '../helpers/fixtures';
+import { makePrincipal, registerPartner } from '../helpers/fixtures';
 import { writeSectionsWorkbook } from '@/lib/services/sections-workbook';
 import { execFileSync } from 'node:child_process';
 import { createWriteStream } from 'node:fs';
@@ -93,7 +93,7 @@ beforeAll(async () => {
   const admin = await makePrincipal(db, 'admin', 'contractor');
   engineer = await makePrincipal(db, 'engineer', 'contractor', admin.organisationName);
   surveyor = await makePrincipal(db, 'surveyor', 'contractor', admin.organisationName);
-  project = (await getProject(db, (await createProject(db, admin, createProjectSchema.parse({ name: 'Reconcile', partnerOrganisation: `R owner ${Date.now()}`, lateralToleranceM: 0.5 }))).id))!;
+  project = (await getProject(db, (await createProject(db, admin, createProjectSchema.parse({ name: 'Reconcile', partnerOrganisation: await registerPartner(db, admin, `R owner ${Date.now()}`), lateralToleranceM: 0.5 }))).id))!;
   await plan(design('Ferrous Street'));
   await upload('walk.gpx', walkGpx(1), { accuracy: 'handheld_gnss', surveyDate: '2026-11-05' });
   await upload('rtk.csv', rtkCsv(), { accuracy: 'rtk_gnss', surveyDate: '2026-11-06' });

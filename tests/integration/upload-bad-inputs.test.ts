@@ -7,7 +7,7 @@ import type { Principal } from '@/lib/auth/principal';
 import { createProject, createProjectSchema } from '@/lib/services/projects';
 import { receiveUpload } from '@/lib/services/uploads';
 import { BAD, loadFixture } from '../fixtures/ingest/bad-inputs';
-import { count, countFiles, makePrincipal } from '../helpers/fixtures';
+import { count, countFiles, makePrincipal, registerPartner } from '../helpers/fixtures';
 import { formOf } from '../helpers/upload-form';
 
 // the limits the fixtures were made against (zip-big-honest inflates past 1 MB; zip-many-entries has 1001)
@@ -27,7 +27,7 @@ const UNSTORED = new Set(['empty_file', 'unknown_format', 'unsupported_format'])
 beforeAll(async () => {
   const admin = await makePrincipal(db, 'admin', 'owner');
   surveyor = await makePrincipal(db, 'surveyor', 'owner', admin.organisationName);
-  project = (await getProject(db, (await createProject(db, admin, createProjectSchema.parse({ name: 'Bad inputs', partnerOrganisation: `Bad contractor ${Date.now()}` }))).id))!;
+  project = (await getProject(db, (await createProject(db, admin, createProjectSchema.parse({ name: 'Bad inputs', partnerOrganisation: await registerPartner(db, admin, `Bad contractor ${Date.now()}`) }))).id))!;
 });
 afterAll(() => closeDb());
 

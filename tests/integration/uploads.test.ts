@@ -9,7 +9,7 @@ import type { Principal } from '@/lib/auth/principal';
 import { changeProject, createProject, createProjectSchema } from '@/lib/services/projects';
 import { receiveUpload, retryUpload, withdrawUpload } from '@/lib/services/uploads';
 import { originalsStore } from '@/lib/storage/originals-store';
-import { count, countFiles, makePrincipal } from '../helpers/fixtures';
+import { count, countFiles, makePrincipal, registerPartner } from '../helpers/fixtures';
 import { formOf, gpxTrack } from '../helpers/upload-form';
 
 process.env.STORAGE_DIR ??= path.resolve(__dirname, '../../.data/test-storage');
@@ -35,7 +35,7 @@ async function send(files: { name: string; bytes: Buffer | string }[], fields: R
 beforeAll(async () => {
   const admin = await makePrincipal(db, 'admin', 'contractor');
   surveyor = await makePrincipal(db, 'surveyor', 'contractor', admin.organisationName);
-  const partner = `Upload owner ${Date.now()}`;
+  const partner = await registerPartner(db, admin, `Upload owner ${Date.now()}`);
   project = (await getProject(db, (await createProject(db, admin, createProjectSchema.parse({ name: 'Uploads A', partnerOrganisation: partner, defaultAccuracyClass: 'handheld_gnss' }))).id))!;
   other = (await getProject(db, (await createProject(db, admin, createProjectSchema.parse({ name: 'Uploads B', partnerOrganisation: partner }))).id))!;
 });
@@ -161,7 +161,7 @@ describe('upload pipeline', () => {
 describe('accuracy of an upload', () => {
   it('takes σ from the class default, or from the project when it overrides the class', async () => {
     const admin = await makePrincipal(db, 'admin', 'contractor');
-    const p = await createProject(db, admin, createProjectSchema.parse({ name: 'Sigma', partnerOrganisation: `Sigma owner ${Date.now()}` }));
+    const p = await createProject(db, admin, createProjectSchema.parse({ name: 'Sigma', partnerOrganisation: await registerPartner(db, admin, `Sigma owner ${Date.now()}`) }));
     const rtk = await send([{ name: 'r.gpx', bytes: gpxTrack(5, { seed: 31337 }) }], { accuracy: 'rtk_gnss' }, (await getProject(db, p.id))!);
     expect(rtk.upload.sigmaM).toBe(0.02);
     await changeProject(db, admin, p.id, { accuracySigmas: { handheld_gnss: 2.5 } });
