@@ -57,6 +57,51 @@ export async function updateJob(
   await db('jobs').where({ id }).update(values);
 }
 
+/**
+ * Marks a queued job running, if it still is queued: a job the sweep has failed, or one delivered twice,
+ * is not run. Returns whether this caller won it.
+ */
+export async function claimJob(db: Db, id: string): Promise<boolean> {
+  const n = await db('jobs')
+    .where({ id, status: 'queued' })
+    .update({ status: 'running', progress: 0, message: 'Started', started_at: db.fn.now(), heartbeat_at: db.fn.now() });
+  return n === 1;
+}
+
+export async function setQueueJobId(db: Db, id: string, queueJobId: string): Promise<void> {
+  await db('jobs').where({ id }).update({ queue_job_id: queueJobId });
+}
+
+export async function beatJob(db: Db, id: string): Promise<void> {
+  await db('jobs').where({ id, status: 'running' }).update({ heartbeat_at: db.fn.now() });
+}
+
+export interface UnfinishedJob {
+  id: string;
+  kind: string;
+  status: 'queued' | 'running';
+  queueJobId: string | null;
+  createdAt: Date;
+  heartbeatAt: Date | null;
+  startedAt: Date | null;
+  /** the database's clock, so that ages never mix two machines' clocks */
+  now: Date;
+}
+
+export async function listUnfinishedJobs(db: Db): Promise<UnfinishedJob[]> {
+  const rows = await db('jobs')
+    .whereIn('status', ['queued', 'running'])
+    .orderBy('created_at')
+    .select('id', 'kind', 'status', 'queue_job_id', 'created_at', 'heartbeat_at', 'started_at', db.raw('now() as now'));
+  return rows.map((r) => ({ id: r.id, kind: r.kind, status: r.status, queueJobId: r.queue_job_id, createdAt: r.created_at, heartbeatAt: r.heartbeat_at, startedAt: r.started_at, now: r.now }));
+}
+
+/** Fails an unfinished job with a reason, unless it finished meanwhile. Returns whether it was changed. */
+export async function failUnfinishedJob(db: Db, id: string, status: 'queued' | 'running', reason: string): Promise<boolean> {
+  const n = await db('jobs').where({ id, status }).update({ status: 'failed', message: reason, finished_at: db.fn.now() });
+  return n === 1;
+}
+
 /** The job as the API shows it: `{id, kind, status, progress, message}` plus where to fetch its result. */
 export function publicJob(job: Job) {
   const { id, kind, status, progress, message, projectId, createdAt, finishedAt, result } = job;

@@ -99,4 +99,6 @@ export interface JobRow {
   created_at: Date;
   started_at: Date | null;
   finished_at: Date | null;
+  queue_job_id: string | null;
+  heartbeat_at: Date | null;
 }

@@ -1,12 +1,19 @@
-// npm run worker: job workers in their own process (set JOBS_IN_PROCESS=false on the web server then).
+// npm run worker: the job workers and housekeeping (stuck jobs, orphan files) in a process of their own.
+// `npm start` runs it beside the web server; JOBS_IN_PROCESS=true runs the same inside the web server instead.
 import { closeDb, getDb } from '../db/client';
+import { env } from '../lib/env';
 import { stopBoss } from '../lib/jobs/boss';
+import { startHousekeeping } from '../lib/jobs/housekeeping';
 import { startWorkers } from '../lib/jobs/queue';
 
 async function main() {
-  await startWorkers(getDb());
-  console.log('trenchbook worker: waiting for jobs (Ctrl-C to stop)');
+  env(); // fail at once, listing every malformed variable
+  const db = getDb();
+  const stopHousekeeping = await startHousekeeping(db);
+  await startWorkers(db);
+  console.log('trenchbook worker: waiting for jobs');
   const stop = async () => {
+    stopHousekeeping();
     await stopBoss();
     await closeDb();
     process.exit(0);

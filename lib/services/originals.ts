@@ -17,7 +17,7 @@ export function combinedSha(parts: { sha256: string }[]): string {
 
 const safeName = (n: string) => n.replace(/[^A-Za-z0-9._-]/g, '_').slice(-120) || 'file';
 
-/** Keeps the original bytes under `prefix/` (e.g. `uploads/<project>/<upload>`); on failure removes what it wrote. */
+/** Keeps the original bytes under `prefix/` (e.g. `uploads/<project>/<upload>`); on failure removes what it wrote, folder and all. */
 export async function storeOriginals(prefix: string, parts: ReceivedFile[], bytes: Buffer[]): Promise<StoredOriginal[]> {
   const stored: StoredOriginal[] = [];
   try {
