@@ -4,11 +4,16 @@ import { useRouter } from 'next/navigation';
 import { useMemo, useState } from 'react';
 import { Button, Field, Input, Notice, Select } from '@/components/ui/primitives';
 import { ACCURACY_CLASS_LABELS, ACCURACY_CLASSES, DEFAULT_SIGMA_M } from '@/lib/records/accuracy-classes';
+import { RANGES, rangeProblem, rangeText } from '@/lib/records/plausible-ranges';
 import { callApi } from './api-client';
+
+export interface PickableOrganisation {
+  id: string;
+  name: string;
+}
 
 export interface ProjectFormValues {
   name: string;
-  partnerOrganisation: string;
   areaName: string;
   defaultCrs: string;
   extent: [number, number, number, number] | null;
@@ -24,12 +29,13 @@ export function ProjectForm({
   mode,
   projectId,
   initial,
-  partnerLabel,
+  partner,
 }: {
   mode: 'create' | 'edit';
   projectId?: string;
   initial: ProjectFormValues;
-  partnerLabel: string;
+  /** create: the registered organisations of the other side to pick from; edit: omitted (changed by proposal) */
+  partner?: { label: string; kind: 'owner' | 'contractor'; options: PickableOrganisation[] };
 }) {
   const router = useRouter();
   const [errors, setErrors] = useState<Record<string, string>>({});
@@ -49,16 +55,21 @@ export function ProjectForm({
       if (extentParts.some((x) => x === '') || nums.some((n) => !Number.isFinite(n))) local.extent = 'Give all four bounds as decimal degrees, or none.';
       else extent = nums as [number, number, number, number];
     }
-    const num = (k: string) => (s(k) === '' ? NaN : Number(s(k)));
-    if (!Number.isFinite(num('minCoverDepthM'))) local.minCoverDepthM = 'Give the minimum cover depth in metres.';
-    if (!Number.isFinite(num('lateralToleranceM'))) local.lateralToleranceM = 'Give the lateral tolerance in metres.';
+    // a decimal comma is how many surveyors type metres
+    const num = (k: string) => (s(k) === '' ? NaN : Number(s(k).replace(',', '.')));
+    for (const k of ['minCoverDepthM', 'lateralToleranceM'] as const) {
+      const problem = rangeProblem(RANGES[k], num(k));
+      if (problem) local[k] = problem;
+    }
     const accuracySigmas: Record<string, number> = {};
     for (const c of ACCURACY_CLASSES) {
       if (s(`sigma-${c}`) === '') continue;
-      const v = Number(s(`sigma-${c}`));
-      if (!Number.isFinite(v) || v <= 0) local.accuracySigmas = `σ for ${ACCURACY_CLASS_LABELS[c]} must be a positive number of metres.`;
+      const v = num(`sigma-${c}`);
+      const problem = rangeProblem({ ...RANGES.sigmaM, what: `The typical error for ${ACCURACY_CLASS_LABELS[c]}` }, v);
+      if (problem) local.accuracySigmas = problem;
       else accuracySigmas[c] = v;
     }
+    if (partner && !s('partnerOrganisationId')) local.partnerOrganisationId = `Pick the ${partner.label.toLowerCase()} from the list, or register it first.`;
     if (Object.keys(local).length) {
       setErrors(local);
       setMessage({ tone: 'bad', text: 'Some fields need attention.' });
@@ -66,7 +77,7 @@ export function ProjectForm({
     }
     const body = {
       name: s('name'),
-      partnerOrganisation: s('partnerOrganisation'),
+      ...(partner ? { partnerOrganisationId: s('partnerOrganisationId') } : {}),
       areaName: s('areaName'),
       defaultCrs: s('defaultCrs'),
       extent,
@@ -107,13 +118,11 @@ export function ProjectForm({
       <Field label="Project name" htmlFor="name" error={err('name')}>
         <Input id="name" name="name" defaultValue={initial.name} aria-invalid={!!err('name')} />
       </Field>
-      <Field label={partnerLabel} htmlFor="partnerOrganisation" error={err('partnerOrganisation')} hint="Type the name; a new organisation is created when none has it.">
-        <Input id="partnerOrganisation" name="partnerOrganisation" defaultValue={initial.partnerOrganisation} aria-invalid={!!err('partnerOrganisation')} />
-      </Field>
+      {partner && <PartnerPicker partner={partner} error={err('partnerOrganisationId')} />}
       <Field label="Area name" htmlFor="areaName" error={err('areaName')}>
         <Input id="areaName" name="areaName" defaultValue={initial.areaName} />
       </Field>
-      <Field label="Default coordinate system" htmlFor="defaultCrs" error={err('defaultCrs')} hint="EPSG code of the surveyors' usual grid, e.g. EPSG:25832.">
+      <Field label="Default coordinate system" htmlFor="defaultCrs" error={err('defaultCrs')} hint="The EPSG number of the grid your surveyors usually work in, e.g. 25832 (ETRS89 / UTM zone 32N).">
         <Input id="defaultCrs" name="defaultCrs" defaultValue={initial.defaultCrs} aria-invalid={!!err('defaultCrs')} />
       </Field>
       <fieldset className="md:col-span-2">
@@ -140,10 +149,10 @@ export function ProjectForm({
           <option value="imperial">Imperial (ft, in)</option>
         </Select>
       </Field>
-      <Field label="Minimum cover depth (m)" htmlFor="minCoverDepthM" error={err('minCoverDepthM')} hint="From the top of the duct bundle to the finished surface, as your contract or local code requires.">
+      <Field label="Minimum cover depth (m)" htmlFor="minCoverDepthM" error={err('minCoverDepthM')} hint={`From the top of the duct bundle to the finished surface, as your contract or local code requires (${rangeText(RANGES.minCoverDepthM)}).`}>
         <Input id="minCoverDepthM" name="minCoverDepthM" inputMode="decimal" defaultValue={String(initial.minCoverDepthM)} aria-invalid={!!err('minCoverDepthM')} />
       </Field>
-      <Field label="Lateral tolerance (m)" htmlFor="lateralToleranceM" error={err('lateralToleranceM')} hint="How far the built trench may sit from the design before it counts as a deviation.">
+      <Field label="Lateral tolerance (m)" htmlFor="lateralToleranceM" error={err('lateralToleranceM')} hint={`How far the built trench may sit from the design before it counts as a deviation (${rangeText(RANGES.lateralToleranceM)}).`}>
         <Input id="lateralToleranceM" name="lateralToleranceM" inputMode="decimal" defaultValue={String(initial.lateralToleranceM)} aria-invalid={!!err('lateralToleranceM')} />
       </Field>
       <Field label="Default accuracy of uploads" htmlFor="defaultAccuracyClass" error={err('defaultAccuracyClass')}>
@@ -156,11 +165,14 @@ export function ProjectForm({
         </Select>
       </Field>
       <fieldset className="md:col-span-2">
-        <legend className="text-sm font-medium">Positional σ per accuracy class (metres per axis, 1-sigma; blank keeps the default)</legend>
+        <legend className="text-sm font-medium">Typical position error of each kind of survey, in metres</legend>
+        <p className="text-xs text-ink-soft">
+          One standard deviation east–west and north–south ({rangeText(RANGES.sigmaM)}). Leave a box empty to keep the usual figure shown under it.
+        </p>
         <div className="mt-1 grid grid-cols-2 gap-3 sm:grid-cols-5">
           {ACCURACY_CLASSES.map((c) => (
-            <Field key={c} label={ACCURACY_CLASS_LABELS[c]} htmlFor={`sigma-${c}`} hint={`default ${DEFAULT_SIGMA_M[c]} m`}>
-              <Input id={`sigma-${c}`} name={`sigma-${c}`} inputMode="decimal" defaultValue={initial.accuracySigmas[c] === undefined ? '' : String(initial.accuracySigmas[c])} />
+            <Field key={c} label={ACCURACY_CLASS_LABELS[c]} htmlFor={`sigma-${c}`} hint={`usually ${DEFAULT_SIGMA_M[c]} m`}>
+              <Input id={`sigma-${c}`} name={`sigma-${c}`} inputMode="decimal" defaultValue={initial.accuracySigmas[c] === undefined ? '' : String(initial.accuracySigmas[c])} aria-invalid={!!err('accuracySigmas')} />
             </Field>
           ))}
         </div>
@@ -172,5 +184,73 @@ export function ProjectForm({
         </Button>
       </div>
     </form>
+  );
+}
+
+/**
+ * The partner organisation, picked from the registered ones. Registering a new one is a separate,
+ * deliberate step (its own button and confirmation), so that a typo never becomes an organisation.
+ */
+function PartnerPicker({ partner, error }: { partner: NonNullable<Parameters<typeof ProjectForm>[0]['partner']>; error?: string }) {
+  const [options, setOptions] = useState(partner.options);
+  const [picked, setPicked] = useState('');
+  const [registering, setRegistering] = useState(false);
+  const [newName, setNewName] = useState('');
+  const [problem, setProblem] = useState<string | null>(null);
+  const side = partner.kind === 'owner' ? 'network owner' : 'contractor';
+
+  async function register() {
+    setProblem(null);
+    const res = await callApi<{ organisation: PickableOrganisation }>('/api/organisations', 'POST', { name: newName.trim(), kind: partner.kind });
+    if (!res.ok) {
+      setProblem(res.fieldErrors.name ?? res.message);
+      return;
+    }
+    const org = res.data.organisation;
+    setOptions((o) => [...o, org].sort((a, b) => a.name.localeCompare(b.name)));
+    setPicked(org.id);
+    setRegistering(false);
+    setNewName('');
+  }
+
+  return (
+    <div className="space-y-2">
+      <Field label={partner.label} htmlFor="partnerOrganisationId" error={error} hint={`Pick the ${side} from the organisations registered in Trenchbook.`}>
+        <Select id="partnerOrganisationId" name="partnerOrganisationId" value={picked} onChange={(e) => setPicked(e.target.value)} aria-invalid={!!error}>
+          <option value="">Pick the {side}…</option>
+          {options.map((o) => (
+            <option key={o.id} value={o.id}>
+              {o.name}
+            </option>
+          ))}
+        </Select>
+      </Field>
+      {!registering ? (
+        <button type="button" className="text-xs font-medium text-brand-dark underline" onClick={() => setRegistering(true)}>
+          Not in the list? Register a new {side}
+        </button>
+      ) : (
+        <div className="space-y-2 rounded-md border border-ink/15 bg-paper p-3" role="group" aria-label={`Register a new ${side}`}>
+          <Field label={`Full name of the new ${side}`} htmlFor="newOrganisationName" error={problem ?? undefined} hint="Check the spelling: the name is shown to everyone who works on its projects.">
+            <Input
+              id="newOrganisationName"
+              value={newName}
+              onChange={(e) => setNewName(e.target.value)}
+              onKeyDown={(e) => {
+                if (e.key === 'Enter') e.preventDefault();
+              }}
+            />
+          </Field>
+          <div className="flex flex-wrap gap-2">
+            <Button type="button" variant="secondary" disabled={newName.trim().length < 2} onClick={register}>
+              Register {newName.trim() ? `“${newName.trim()}”` : 'it'}
+            </Button>
+            <Button type="button" variant="secondary" onClick={() => setRegistering(false)}>
+              Cancel
+            </Button>
+          </div>
+        </div>
+      )}
+    </div>
   );
 }

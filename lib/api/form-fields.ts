@@ -14,9 +14,9 @@ export const jsonField = <T extends z.ZodType>(schema: T, example: string) =>
     })
     .pipe(schema);
 
-/** An EPSG code as people write it, normalised: ' epsg:25833' → 'EPSG:25833'. */
+/** An EPSG code as people write it, normalised: ' epsg:25833' → 'EPSG:25833', '25833' → 'EPSG:25833'. */
 export const epsgField = z
   .string()
   .trim()
-  .regex(/^EPSG:\d{4,6}$/i, 'Give the coordinate system as EPSG:<code>, e.g. EPSG:25833.')
-  .transform((s) => s.toUpperCase());
+  .regex(/^(EPSG:)?\d{4,6}$/i, 'Give the EPSG number of the coordinate system, e.g. 25833 or EPSG:25833.')
+  .transform((s) => `EPSG:${s.replace(/^EPSG:/i, '')}`);

@@ -145,7 +145,10 @@ export async function parseSurveyCsv(text: string, opts: ParseOptions): Promise<
   let positions: Position[];
   if (useXY) {
     if (!opts.crs) {
-      throw new IngestError('crs_required', `the CSV has easting/northing columns ('${map.x}', '${map.y}'); send the EPSG code of their coordinate system in the crs field`);
+      // the columns go with the refusal, so that a form can show them recognised while it asks for the grid
+      throw new IngestError('crs_required', `the CSV has easting/northing columns ('${map.x}', '${map.y}'); send the EPSG code of their coordinate system in the crs field`, {
+        columns: { map, guessed, headers },
+      });
     }
     const def = await resolveCrsName(opts.crs, opts.resolveCrs);
     sourceCrs = `EPSG:${def.srid}`;

@@ -1,7 +1,11 @@
 import type { Metadata } from 'next';
+import { getDb } from '@/db/client';
+import { listOrganisations } from '@/db/organisations';
 import { requireProjectPage } from '@/lib/auth/page-guards';
+import { listOrgChanges } from '@/db/org-changes';
 import { Card, Notice, PageHeader } from '@/components/ui/primitives';
 import { ProjectForm } from '@/components/forms/project-form';
+import { OrgChangePanel } from '@/components/forms/org-change-panel';
 
 export const metadata: Metadata = { title: 'Project settings' };
 
@@ -9,30 +13,42 @@ export default async function ProjectSettingsPage({ params }: { params: Promise<
   const { projectId } = await params;
   const { me, project, allowed } = await requireProjectPage(projectId, 'project.manage');
   if (!allowed) return <Notice tone="bad">Only administrators change project settings.</Notice>;
-  const ownerSide = me.organisationKind === 'owner';
+  const db = getDb();
+  const [changes, organisations] = await Promise.all([listOrgChanges(db, project.id), listOrganisations(db)]);
   return (
     <>
       <PageHeader title="Project settings" subtitle={project.name} />
-      <Card>
-        <ProjectForm
-          mode="edit"
-          projectId={project.id}
-          partnerLabel={ownerSide ? 'Contractor' : 'Network owner'}
-          initial={{
-            name: project.name,
-            partnerOrganisation: ownerSide ? project.contractorOrgName : project.ownerOrgName,
-            areaName: project.areaName,
-            defaultCrs: project.defaultCrs,
-            extent: project.extent,
-            timeZone: project.timeZone,
-            unitSystem: project.unitSystem,
-            minCoverDepthM: project.minCoverDepthM,
-            lateralToleranceM: project.lateralToleranceM,
-            defaultAccuracyClass: project.defaultAccuracyClass,
-            accuracySigmas: project.accuracySigmas,
-          }}
-        />
-      </Card>
+      <div className="space-y-6">
+        <Card>
+          <ProjectForm
+            mode="edit"
+            projectId={project.id}
+            initial={{
+              name: project.name,
+              areaName: project.areaName,
+              defaultCrs: project.defaultCrs.replace(/^EPSG:/, ''),
+              extent: project.extent,
+              timeZone: project.timeZone,
+              unitSystem: project.unitSystem,
+              minCoverDepthM: project.minCoverDepthM,
+              lateralToleranceM: project.lateralToleranceM,
+              defaultAccuracyClass: project.defaultAccuracyClass,
+              accuracySigmas: project.accuracySigmas,
+            }}
+          />
+        </Card>
+        <Card title="Network owner and contractor">
+          <OrgChangePanel
+            projectId={project.id}
+            myOrganisationId={me.organisationId}
+            owner={{ id: project.ownerOrgId, name: project.ownerOrgName }}
+            contractor={{ id: project.contractorOrgId, name: project.contractorOrgName }}
+            changes={changes}
+            organisations={organisations}
+            timeZone={project.timeZone}
+          />
+        </Card>
+      </div>
     </>
   );
 }
