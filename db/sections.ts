@@ -2,14 +2,24 @@ import type { Db } from './client';
 import type { SectionDraft } from '@/lib/matching/section-types';
 import type { LonLat } from '@/lib/matching/types';
 
-/** A stored section: the draft's measures under a lasting id, with its review and run history. */
-export interface Section extends Omit<SectionDraft, 'ref' | 'note' | 'correctionIds'> {
+export type SectionReview = 'pending' | 'approved' | 'rejected' | 'acknowledged';
+
+/**
+ * A stored section: the draft's measures under a lasting id, with its review and run history. A figure
+ * nothing measured is null, never 0: a not-built stretch has no offset and no accuracy, an unplanned line
+ * no offset from a plan.
+ */
+export interface Section extends Omit<SectionDraft, 'ref' | 'note' | 'correctionIds' | 'maxOffsetM' | 'p95OffsetM' | 'accuracyM'> {
+  maxOffsetM: number | null;
+  p95OffsetM: number | null;
+  /** 95 % horizontal radius of the as-built line's position (m) */
+  accuracyM: number | null;
   note: string | null;
   correctionIds: number[];
   id: string;
   projectId: string;
   plannedRouteRef: string | null;
-  review: 'pending' | 'approved' | 'rejected';
+  review: SectionReview;
   reviewComment: string;
   derivedFrom: string | null;
   firstRun: number;
@@ -44,11 +54,19 @@ export async function getSection(db: Db, id: string): Promise<Section | undefine
 
 const lineWkt = (coords: LonLat[]) => `LINESTRING(${coords.map((c) => `${c[0]} ${c[1]}`).join(',')})`;
 
+/** The draft's figures as stored: null where nothing was measured (the builder writes 0 there). */
+export function measuredFigures(d: Pick<SectionDraft, 'status' | 'maxOffsetM' | 'p95OffsetM' | 'accuracyM'>): { maxOffsetM: number | null; p95OffsetM: number | null; accuracyM: number | null } {
+  if (d.status === 'not_built') return { maxOffsetM: null, p95OffsetM: null, accuracyM: null };
+  if (d.status === 'unplanned') return { maxOffsetM: null, p95OffsetM: null, accuracyM: d.accuracyM };
+  return { maxOffsetM: d.maxOffsetM, p95OffsetM: d.p95OffsetM, accuracyM: d.accuracyM };
+}
+
 function values(db: Db, d: SectionDraft) {
+  const m = measuredFigures(d);
   return {
     planned_route_ref: d.ref, status: d.status, from_chainage_m: d.fromChainageM, to_chainage_m: d.toChainageM,
-    geom: db.raw('ST_GeomFromText(?, 4326)', [lineWkt(d.coords)]), length_m: d.lengthM, max_offset_m: d.maxOffsetM, p95_offset_m: d.p95OffsetM,
-    accuracy_m: d.accuracyM, source_upload_ids: d.sourceUploadIds, laid_on: d.laidOn, note: d.note ?? null, correction_ids: d.correctionIds ?? [],
+    geom: db.raw('ST_GeomFromText(?, 4326)', [lineWkt(d.coords)]), length_m: d.lengthM, max_offset_m: m.maxOffsetM, p95_offset_m: m.p95OffsetM,
+    accuracy_m: m.accuracyM, source_upload_ids: d.sourceUploadIds, laid_on: d.laidOn, note: d.note ?? null, correction_ids: d.correctionIds ?? [],
   };
 }
 
@@ -67,8 +85,20 @@ export async function retireSections(db: Db, ids: string[], run: number): Promis
   if (ids.length) await db('sections').whereIn('id', ids).update({ retired_in_run: run, updated_at: db.fn.now() });
 }
 
-export async function setSectionReview(db: Db, id: string, review: 'approved' | 'rejected', comment: string, userId: string): Promise<void> {
+export async function setSectionReview(db: Db, id: string, review: Exclude<SectionReview, 'pending'>, comment: string, userId: string): Promise<void> {
   await db('sections').where({ id }).update({ review, review_comment: comment, reviewed_by: userId, reviewed_at: db.fn.now(), updated_at: db.fn.now() });
+}
+
+/** Several sections take the same review in one statement (the caller writes an audit entry for each). */
+export async function setSectionsReview(db: Db, ids: string[], review: Exclude<SectionReview, 'pending'>, comment: string, userId: string): Promise<void> {
+  if (ids.length) await db('sections').whereIn('id', ids).update({ review, review_comment: comment, reviewed_by: userId, reviewed_at: db.fn.now(), updated_at: db.fn.now() });
+}
+
+/** Sections by id, locked for a review: a reconciliation run cannot rewrite them until the review commits. */
+export async function getSectionsForUpdate(db: Db, ids: string[]): Promise<Section[]> {
+  if (ids.length === 0) return [];
+  const rows = await db('sections').whereIn('id', ids).forUpdate().select(COLUMNS(db));
+  return rows.map(toDto);
 }
 
 /** The next run number of the project, under a lock on the project row: one reconciliation at a time. */
@@ -92,18 +122,19 @@ export async function neighbourSections(db: Db, s: Section): Promise<{ before: S
 }
 
 /** The latest run's matched observations replace the previous run's. */
-export async function replaceRouteObservations(db: Db, projectId: string, run: number, series: { ref: string; uploadId: string; chainageM: number[]; offsetM: number[] }[]): Promise<void> {
+export async function replaceRouteObservations(db: Db, projectId: string, run: number, series: { ref: string; uploadId: string; chainageM: number[]; offsetM: number[]; timeS?: (number | null)[] }[]): Promise<void> {
   await db('route_observations').where({ project_id: projectId }).delete();
-  const rows = series.map((o) => ({ project_id: projectId, run, planned_route_ref: o.ref, upload_id: o.uploadId, chainage_m: o.chainageM, offset_m: o.offsetM }));
+  const rows = series.map((o) => ({ project_id: projectId, run, planned_route_ref: o.ref, upload_id: o.uploadId, chainage_m: o.chainageM, offset_m: o.offsetM, time_s: o.timeS ?? null }));
   // a few routes at a time: a long trace's arrays make large rows
   for (let i = 0; i < rows.length; i += 20) await db('route_observations').insert(rows.slice(i, i + 20));
 }
 
-/** Matched observations on a route between two chainages, per upload, from the latest run. */
-export async function listRouteObservations(db: Db, projectId: string, ref: string, fromM: number, toM: number): Promise<{ uploadId: string; chainageM: number[]; offsetM: number[] }[]> {
-  const rows = await db('route_observations').where({ project_id: projectId, planned_route_ref: ref }).select('upload_id', 'chainage_m', 'offset_m').orderBy('upload_id');
+/** Matched observations on a route between two chainages, per upload, from the latest run; times in epoch seconds (null where unknown). */
+export async function listRouteObservations(db: Db, projectId: string, ref: string, fromM: number, toM: number): Promise<{ uploadId: string; chainageM: number[]; offsetM: number[]; timeS: (number | null)[] }[]> {
+  const rows = await db('route_observations').where({ project_id: projectId, planned_route_ref: ref }).select('upload_id', 'chainage_m', 'offset_m', 'time_s').orderBy('upload_id');
   return rows.map((r) => {
     const keep = (r.chainage_m as number[]).map((c, i) => i).filter((i) => r.chainage_m[i] >= fromM && r.chainage_m[i] <= toM);
-    return { uploadId: r.upload_id, chainageM: keep.map((i) => r.chainage_m[i]), offsetM: keep.map((i) => r.offset_m[i]) };
+    const times = r.time_s as (number | null)[] | null;
+    return { uploadId: r.upload_id, chainageM: keep.map((i) => r.chainage_m[i]), offsetM: keep.map((i) => r.offset_m[i]), timeS: keep.map((i) => times?.[i] ?? null) };
   }).filter((o) => o.chainageM.length > 0);
 }

@@ -285,6 +285,8 @@ export interface UploadExclusion {
   from: string | number;
   to: string | number;
   reason: string;
+  createdAt?: string;
+  createdByName?: string | null;
 }
 
 export async function insertUploadExclusion(db: Db, uploadId: string, e: Omit<UploadExclusion, 'id'>, userId: string): Promise<number> {
@@ -298,10 +300,53 @@ export async function insertUploadExclusion(db: Db, uploadId: string, e: Omit<Up
 }
 
 export async function listUploadExclusions(db: Db, uploadId: string): Promise<UploadExclusion[]> {
-  const rows = await db('upload_exclusions').where({ upload_id: uploadId }).orderBy('id');
-  return rows.map((r) => ({
-    id: Number(r.id), kind: r.kind, reason: r.reason,
-    from: r.kind === 'time' ? r.from_time.toISOString() : r.from_m,
-    to: r.kind === 'time' ? r.to_time.toISOString() : r.to_m,
-  }));
+  const rows = await db('upload_exclusions as e').leftJoin('users as p', 'p.id', 'e.created_by').where({ 'e.upload_id': uploadId }).orderBy('e.id').select('e.*', 'p.name as created_by_name');
+  return rows.map(exclusionDto);
+}
+
+const exclusionDto = (r: Record<string, any>): UploadExclusion => ({
+  id: Number(r.id), kind: r.kind, reason: r.reason,
+  from: r.kind === 'time' ? r.from_time.toISOString() : r.from_m,
+  to: r.kind === 'time' ? r.to_time.toISOString() : r.to_m,
+  createdAt: r.created_at.toISOString(),
+  createdByName: r.created_by_name ?? null,
+});
+
+export async function getUploadExclusion(db: Db, uploadId: string, id: number): Promise<UploadExclusion | undefined> {
+  const row = await db('upload_exclusions').where({ upload_id: uploadId, id }).first();
+  return row && exclusionDto(row);
+}
+
+export async function deleteUploadExclusion(db: Db, uploadId: string, id: number): Promise<number> {
+  return db('upload_exclusions').where({ upload_id: uploadId, id }).delete();
+}
+
+/** One stored fix of an upload: position, time (epoch seconds, null when the file gave none) and its running index. */
+export interface UploadFix {
+  lon: number;
+  lat: number;
+  t: number | null;
+  seq: number;
+}
+
+/**
+ * The upload's fixes as the matcher reads them: each line feature a trace, and the loose points of the
+ * upload one more trace in file order (one survey run), e.g. `await listUploadTraces(db, id)` → `[[fix, …], …]`.
+ */
+export async function listUploadTraces(db: Db, uploadId: string): Promise<UploadFix[][]> {
+  const rows = await db('upload_features').where({ upload_id: uploadId }).orderBy('seq').select('kind', 'times', db.raw('ST_AsGeoJSON(geom, 9)::json as geometry'));
+  const traces: UploadFix[][] = [];
+  const points: UploadFix[] = [];
+  let seq = 0;
+  for (const r of rows) {
+    const times: (Date | null)[] | null = r.times;
+    if (r.kind === 'line') {
+      traces.push(r.geometry.coordinates.map((c: number[], i: number) => ({ lon: c[0], lat: c[1], t: times?.[i] ? times[i]!.getTime() / 1000 : null, seq: seq++ })));
+    } else {
+      const c = r.geometry.coordinates;
+      points.push({ lon: c[0], lat: c[1], t: times?.[0] ? times[0]!.getTime() / 1000 : null, seq: seq++ });
+    }
+  }
+  if (points.length >= 2) traces.push(points);
+  return traces;
 }

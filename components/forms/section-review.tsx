@@ -5,22 +5,31 @@ import { useState } from 'react';
 import { Button, Field, Input, Notice, Select } from '@/components/ui/primitives';
 import { callApi } from './api-client';
 
-/** Approve or reject a section, with a comment (required to reject). */
-export function SectionReview({ sections }: { sections: { id: string; label: string; review: string }[] }) {
+/**
+ * Review one section: approve or reject a built stretch; acknowledge a not-built one (settled, with the
+ * reason) or reject it. A comment is required for all but approval.
+ */
+export function SectionReview({ sections, notBuilt = false }: { sections: { id: string; label: string; review: string }[]; notBuilt?: boolean }) {
   const router = useRouter();
   const [error, setError] = useState<string | null>(null);
   const [done, setDone] = useState<string | null>(null);
-  async function submit(e: React.FormEvent<HTMLFormElement>, decision: 'approve' | 'reject') {
-    e.preventDefault();
-    const f = new FormData(e.currentTarget.form ?? e.currentTarget);
+  async function submit(form: HTMLFormElement, decision: 'approve' | 'reject' | 'acknowledge') {
+    const f = new FormData(form);
     const res = await callApi(`/api/sections/${f.get('section')}/review`, 'POST', { decision, comment: String(f.get('comment') ?? '') });
     if (!res.ok) return setError(res.fieldErrors.comment ?? res.message);
     setError(null);
-    setDone(decision === 'approve' ? 'Approved.' : 'Rejected.');
+    setDone(decision === 'approve' ? 'Approved.' : decision === 'acknowledge' ? 'Acknowledged as not built.' : 'Rejected.');
     router.refresh();
   }
   return (
-    <form className="grid gap-3 sm:grid-cols-4" onSubmit={(e) => submit(e, 'approve')} noValidate>
+    <form
+      className="grid gap-3 sm:grid-cols-4"
+      onSubmit={(e) => {
+        e.preventDefault();
+        void submit(e.currentTarget, notBuilt ? 'acknowledge' : 'approve');
+      }}
+      noValidate
+    >
       {sections.length === 1 ? (
         <input type="hidden" name="section" value={sections[0].id} />
       ) : (
@@ -30,12 +39,12 @@ export function SectionReview({ sections }: { sections: { id: string; label: str
           </Select>
         </Field>
       )}
-      <Field label="Comment" htmlFor="review-comment" error={error ?? undefined}>
+      <Field label={notBuilt ? 'Reason (why it is not built, or why it must be)' : 'Comment'} htmlFor="review-comment" error={error ?? undefined}>
         <Input id="review-comment" name="comment" aria-invalid={!!error} />
       </Field>
-      <div className="flex items-end gap-2 sm:col-span-2">
-        <Button type="submit">Approve</Button>
-        <Button type="button" variant="danger" onClick={(e) => submit(e as unknown as React.FormEvent<HTMLFormElement>, 'reject')}>Reject</Button>
+      <div className="flex flex-wrap items-end gap-2 sm:col-span-2">
+        <Button type="submit">{notBuilt ? 'Acknowledge not built' : 'Approve'}</Button>
+        <Button type="button" variant="danger" onClick={(e) => void submit(e.currentTarget.form!, 'reject')}>Reject</Button>
         {done && <Notice tone="ok">{done}</Notice>}
       </div>
     </form>

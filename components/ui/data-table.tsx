@@ -1,14 +1,14 @@
 'use client';
 
 import Link from 'next/link';
-import { useMemo, useState } from 'react';
+import { useMemo, useState, type ReactNode } from 'react';
 import { Badge } from './primitives';
 
 export type Cell =
   | string
   | number
   | null
-  | { text: string; href?: string; tone?: 'ok' | 'warn' | 'bad' | 'info' | 'muted'; sort?: string | number };
+  | { text: string; href?: string; tone?: 'ok' | 'warn' | 'bad' | 'info' | 'muted'; swatch?: string; sort?: string | number };
 
 export interface Column {
   key: string;
@@ -25,8 +25,21 @@ const text = (c: Cell): string => (c === null ? '' : typeof c === 'object' ? c.t
 const sortKey = (c: Cell): string | number =>
   c === null ? '' : typeof c === 'object' ? (c.sort ?? c.text) : c;
 
-/** A table that sorts by any column (click the header) and filters on every cell's text. */
-export function DataTable({ columns, rows, label, empty = 'Nothing here yet.' }: { columns: Column[]; rows: Row[]; label: string; empty?: string }) {
+/** Rows picked with a checkbox each (and one for every row shown), for an action on many rows at once. */
+export interface Selection {
+  selected: ReadonlySet<string>;
+  onChange: (next: Set<string>) => void;
+  /** rows that cannot be picked get no checkbox */
+  canSelect?: (row: Row) => boolean;
+  /** how a row is named to a screen reader, e.g. "Select E-1 0–40 m" */
+  rowLabel: (row: Row) => string;
+}
+
+/**
+ * A table that sorts by any column (click the header) and filters on every cell's text; optionally rows
+ * can be picked (`selection`), and `toolbar` gets the rows the filter shows, for actions on them.
+ */
+export function DataTable({ columns, rows, label, empty = 'Nothing here yet.', selection, toolbar }: { columns: Column[]; rows: Row[]; label: string; empty?: string; selection?: Selection; toolbar?: (shown: Row[]) => ReactNode }) {
   const [sort, setSort] = useState<{ key: string; dir: 1 | -1 } | null>(null);
   const [filter, setFilter] = useState('');
 
@@ -54,10 +67,12 @@ export function DataTable({ columns, rows, label, empty = 'Nothing here yet.' }:
         onChange={(e) => setFilter(e.target.value)}
         className="w-full max-w-xs rounded-md border border-ink/20 bg-white px-3 py-1.5 text-sm"
       />
+      {toolbar?.(shown)}
       <div className="overflow-x-auto rounded-lg border border-ink/10 bg-paper-raised">
         <table className="min-w-full text-sm" aria-label={label}>
           <thead className="bg-paper-sunk text-left text-xs uppercase tracking-wide text-ink-soft">
             <tr>
+              {selection && <th scope="col" className="w-8 px-3 py-2"><SelectAll shown={shown} selection={selection} /></th>}
               {columns.map((c) => {
                 const active = sort?.key === c.key;
                 return (
@@ -85,6 +100,18 @@ export function DataTable({ columns, rows, label, empty = 'Nothing here yet.' }:
           <tbody className="divide-y divide-ink/5">
             {shown.map((r) => (
               <tr key={r.id} className="hover:bg-paper/60">
+                {selection && (
+                  <td className="px-3 py-2 align-top">
+                    {(selection.canSelect?.(r) ?? true) && (
+                      <input type="checkbox" aria-label={selection.rowLabel(r)} checked={selection.selected.has(r.id)} onChange={(e) => {
+                        const next = new Set(selection.selected);
+                        if (e.target.checked) next.add(r.id);
+                        else next.delete(r.id);
+                        selection.onChange(next);
+                      }} />
+                    )}
+                  </td>
+                )}
                 {columns.map((c) => {
                   const cell = r.cells[c.key] ?? null;
                   return (
@@ -92,8 +119,8 @@ export function DataTable({ columns, rows, label, empty = 'Nothing here yet.' }:
                       {cell !== null && typeof cell === 'object' ? (
                         cell.href ? (
                           <Link href={cell.href}>{cell.text}</Link>
-                        ) : cell.tone ? (
-                          <Badge tone={cell.tone}>{cell.text}</Badge>
+                        ) : cell.tone || cell.swatch ? (
+                          <Badge tone={cell.tone} swatch={cell.swatch}>{cell.text}</Badge>
                         ) : (
                           cell.text
                         )
@@ -107,7 +134,7 @@ export function DataTable({ columns, rows, label, empty = 'Nothing here yet.' }:
             ))}
             {shown.length === 0 && (
               <tr>
-                <td colSpan={columns.length} className="px-3 py-6 text-center text-ink-faint">
+                <td colSpan={columns.length + (selection ? 1 : 0)} className="px-3 py-6 text-center text-ink-faint">
                   {rows.length === 0 ? empty : 'No rows match the filter.'}
                 </td>
               </tr>
@@ -119,5 +146,27 @@ export function DataTable({ columns, rows, label, empty = 'Nothing here yet.' }:
         {shown.length} of {rows.length} shown
       </p>
     </div>
+  );
+}
+
+/** The header's checkbox: picks (or drops) every pickable row the filter shows. */
+function SelectAll({ shown, selection }: { shown: Row[]; selection: Selection }) {
+  const pickable = shown.filter((r) => selection.canSelect?.(r) ?? true);
+  const all = pickable.length > 0 && pickable.every((r) => selection.selected.has(r.id));
+  return (
+    <input
+      type="checkbox"
+      aria-label="Select every row shown"
+      disabled={pickable.length === 0}
+      checked={all}
+      onChange={() => {
+        const next = new Set(selection.selected);
+        for (const r of pickable) {
+          if (all) next.delete(r.id);
+          else next.add(r.id);
+        }
+        selection.onChange(next);
+      }}
+    />
   );
 }

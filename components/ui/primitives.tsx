@@ -87,7 +87,8 @@ export function Select(props: SelectHTMLAttributes<HTMLSelectElement>) {
   return <select {...props} className={cx(inputClass, props.className)} />;
 }
 
-export function Badge({ tone = 'muted', children }: { tone?: 'ok' | 'warn' | 'bad' | 'info' | 'muted'; children: ReactNode }) {
+/** A small label; with `swatch` it wears that colour (a status's map colour), so badge, legend and map agree. */
+export function Badge({ tone = 'muted', swatch, children }: { tone?: 'ok' | 'warn' | 'bad' | 'info' | 'muted'; swatch?: string; children: ReactNode }) {
   const tones = {
     ok: 'bg-status-ok/15 text-[#00664a]',
     warn: 'bg-status-warn/20 text-[#7a5400]',
@@ -95,6 +96,14 @@ export function Badge({ tone = 'muted', children }: { tone?: 'ok' | 'warn' | 'ba
     info: 'bg-status-info/15 text-[#004f7a]',
     muted: 'bg-ink/10 text-ink-soft',
   } as const;
+  if (swatch) {
+    return (
+      <span className="inline-flex items-center gap-1.5 whitespace-nowrap rounded-full border px-2 py-0.5 text-xs font-medium text-ink" style={{ borderColor: swatch, backgroundColor: `${swatch}24` }}>
+        <span aria-hidden="true" data-swatch={swatch} className="inline-block h-2 w-2 rounded-full" style={{ backgroundColor: swatch }} />
+        {children}
+      </span>
+    );
+  }
   return <span className={cx('inline-flex rounded-full px-2 py-0.5 text-xs font-medium', tones[tone])}>{children}</span>;
 }
 

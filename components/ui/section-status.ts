@@ -1,9 +1,5 @@
-// Okabe–Ito colours: distinguishable under the common colour-vision deficiencies
-export const STATUS_STYLE = {
-  as_planned: { colour: '#009e73', label: 'as planned', tone: 'ok' },
-  deviates: { colour: '#e69f00', label: 'deviates', tone: 'warn' },
-  unplanned: { colour: '#cc79a7', label: 'unplanned', tone: 'info' },
-  not_built: { colour: '#999999', label: 'not built', tone: 'muted' },
-} as const;
+// The colours and words live in lib/records/section-status.ts, shared with the exports.
+export { STATUS_STYLE, REVIEW_STYLE } from '@/lib/records/section-status';
+import { REVIEW_STYLE } from '@/lib/records/section-status';
 
-export const REVIEW_TONE = { approved: 'ok', rejected: 'bad', pending: 'muted' } as const;
+export const REVIEW_TONE = Object.fromEntries(Object.entries(REVIEW_STYLE).map(([k, v]) => [k, v.tone])) as { [K in keyof typeof REVIEW_STYLE]: (typeof REVIEW_STYLE)[K]['tone'] };

@@ -13,6 +13,7 @@ export const ERROR_CODES = {
   too_large: { status: 413, summary: 'The request body is over the size limit.' },
   unsupported_format: { status: 415, summary: 'The file or media type is not supported.' },
   invalid: { status: 422, summary: 'The content failed validation; details lists each problem.' },
+  empty_range: { status: 422, summary: 'The range left out of matching holds no fix of the upload; the message gives the fixes\' own span.' },
   // upload content (lib/ingest): one code per way a file can be refused
   empty_file: { status: 422, summary: 'The file is empty.' },
   unknown_format: { status: 415, summary: 'The content is not a format Trenchbook reads; the message lists those it does.' },

@@ -76,6 +76,8 @@ export interface RouteObservationSeries {
   uploadId: string;
   chainageM: number[];
   offsetM: number[];
+  /** each observation's time (epoch seconds), null where the fix had none */
+  timeS: (number | null)[];
 }
 
 /**
@@ -215,15 +217,16 @@ function observationSeries(byRoute: Map<string, RouteObservations[]>): RouteObse
       let series = perUpload.get(o.uploadId);
       if (!series) {
         const n = sizes.get(o.uploadId)!;
-        series = { ref, uploadId: o.uploadId, chainageM: new Array<number>(n), offsetM: new Array<number>(n), filled: 0 };
+        series = { ref, uploadId: o.uploadId, chainageM: new Array<number>(n), offsetM: new Array<number>(n), timeS: new Array<number | null>(n), filled: 0 };
         perUpload.set(o.uploadId, series);
       }
       for (const f of o.fixes) {
         series.chainageM[series.filled] = f.chainageM;
+        series.timeS[series.filled] = f.t;
         series.offsetM[series.filled++] = f.offsetM;
       }
     }
-    for (const { ref: r, uploadId, chainageM, offsetM } of perUpload.values()) observations.push({ ref: r, uploadId, chainageM, offsetM });
+    for (const { ref: r, uploadId, chainageM, offsetM, timeS } of perUpload.values()) observations.push({ ref: r, uploadId, chainageM, offsetM, timeS });
   }
   return observations;
 }

@@ -4,44 +4,28 @@ import { writeAudit, type AuditActor } from '@/db/audit';
 import { hasCurrentPlan, listPlannedRoutes } from '@/db/planned';
 import { getProject } from '@/db/projects';
 import { listCorrections, toMatchingCorrections } from '@/db/corrections';
-import { getSection, insertReconcileRun, listRouteObservations, neighbourSections, replaceRouteObservations, type Section, insertSection, listCurrentSections, nextReconcileRun, retireSections, setSectionReview, updateSectionFromDraft } from '@/db/sections';
+import { getSection, getSectionsForUpdate, setSectionsReview, insertReconcileRun, listRouteObservations, neighbourSections, replaceRouteObservations, type Section, insertSection, listCurrentSections, nextReconcileRun, retireSections, setSectionReview, updateSectionFromDraft } from '@/db/sections';
 import { AppError } from '@/lib/api/errors';
 import { auditActor, type Principal } from '@/lib/auth/principal';
 import type { Fix } from '@/lib/matching/match-types';
 import { matchSections } from '@/lib/matching/match-sections';
 import { reconcileProject, type UploadTraces } from '@/lib/matching/reconcile-project';
-import { applyExclusions, type Exclusion } from '@/lib/matching/apply-exclusions';
-import { getUpload, insertUploadExclusion, listUploadExclusions } from '@/db/uploads';
+import { applyExclusions } from '@/lib/matching/apply-exclusions';
+import { getUpload, listUploadExclusions, listUploadTraces } from '@/db/uploads';
+import { toMatchingExclusion } from './exclusions';
 import { getJob } from '@/db/jobs';
 
 const SURVEY_GRADE = new Set(['rtk_gnss', 'total_station']);
 // what is matched onto the plan: the trench line and road crossings; test pits and depth shots are records
 const MATCHED_CONTENT = ['trench', 'road_crossings', 'mixed'];
 
-/** Every stored upload of the project as traces for the matcher, read from PostGIS. */
+/** Every stored upload of the project as traces for the matcher, read from PostGIS, less what the engineer left out. */
 async function loadTraces(db: Knex, projectId: string): Promise<UploadTraces[]> {
   const uploads = await db('uploads').where({ project_id: projectId, status: 'stored' }).whereIn('content', MATCHED_CONTENT).select('id', 'sigma_m', 'accuracy_class', db.raw("to_char(survey_date, 'YYYY-MM-DD') as survey_date"));
   const out: UploadTraces[] = [];
   for (const u of uploads) {
-    const rows = await db('upload_features').where({ upload_id: u.id }).orderBy('seq').select('kind', 'times', db.raw('ST_AsGeoJSON(geom, 9)::json as geometry'));
-    const traces: Fix[][] = [];
-    let points: Fix[] = [];
-    let seq = 0;
-    for (const r of rows) {
-      if (r.kind === 'line') {
-        const times: (Date | null)[] | null = r.times;
-        traces.push(r.geometry.coordinates.map((c: number[], i: number) => ({ lon: c[0], lat: c[1], t: times?.[i] ? times[i]!.getTime() / 1000 : null, seq: seq++ })));
-      } else {
-        // loose points of one upload are one survey run, in file order
-        const c = r.geometry.coordinates;
-        points.push({ lon: c[0], lat: c[1], t: r.times?.[0] ? r.times[0].getTime() / 1000 : null, seq: seq++ });
-      }
-    }
-    if (points.length >= 2) traces.push(points);
-    points = [];
-    const exclusions: Exclusion[] = (await listUploadExclusions(db, u.id)).map((e) =>
-      e.kind === 'time' ? { kind: 'time', fromT: Date.parse(String(e.from)) / 1000, toT: Date.parse(String(e.to)) / 1000 } : { kind: 'distance', fromM: Number(e.from), toM: Number(e.to) },
-    );
+    const traces: Fix[][] = await listUploadTraces(db, u.id);
+    const exclusions = (await listUploadExclusions(db, u.id)).map(toMatchingExclusion);
     out.push({ uploadId: u.id, sigmaM: u.sigma_m, surveyGrade: SURVEY_GRADE.has(u.accuracy_class), laidOn: u.survey_date, traces: traces.flatMap((t) => applyExclusions(t, exclusions)) });
   }
   return out;
@@ -97,20 +81,78 @@ export async function runReconciliation(db: Knex, projectId: string, jobId: stri
   });
 }
 
-export const reviewSchema = z.object({ decision: z.enum(['approve', 'reject']), comment: z.string().trim().max(2000).default('') }).refine((v) => v.decision === 'approve' || v.comment.length >= 3, {
-  message: 'Say why the section is rejected.',
-  path: ['comment'],
-});
+const decisionSchema = z.enum(['approve', 'reject', 'acknowledge']);
+const REVIEW_OF = { approve: 'approved', reject: 'rejected', acknowledge: 'acknowledged' } as const;
+const needsComment = (v: { decision: z.infer<typeof decisionSchema>; comment: string }) => v.decision === 'approve' || v.comment.length >= 3;
+const COMMENT_NEEDED = { message: 'Say why: a rejection or an acknowledged not-built stretch needs a reason.', path: ['comment'] };
+
+export const reviewSchema = z.object({ decision: decisionSchema, comment: z.string().trim().max(2000).default('') }).refine(needsComment, COMMENT_NEEDED);
+
+export const bulkReviewSchema = z
+  .object({
+    sectionIds: z.array(z.uuid('Each section id is a UUID.')).min(1, 'Pick at least one section.').max(2000, 'At most 2000 sections at a time.'),
+    decision: decisionSchema,
+    comment: z.string().trim().max(2000).default(''),
+  })
+  .refine(needsComment, COMMENT_NEEDED);
+
+/**
+ * Why a section cannot take a decision, or null when it can: a retired stretch is reviewed through its
+ * successor; a not-built stretch has nothing laid to approve (it is acknowledged, with a reason, or
+ * rejected), and only a not-built stretch can be acknowledged.
+ */
+export function reviewRefusal(s: Pick<Section, 'status' | 'retiredInRun'>, decision: z.infer<typeof decisionSchema>): string | null {
+  if (s.retiredInRun !== null) return 'This section was retired by a later reconciliation run; review its successor.';
+  if (decision === 'approve' && s.status === 'not_built') return 'A not-built stretch has nothing laid to approve: acknowledge it with the reason, or reject it.';
+  if (decision === 'acknowledge' && s.status !== 'not_built') return 'Only a not-built stretch is acknowledged; a built one is approved or rejected.';
+  return null;
+}
 
 export async function reviewSection(db: Knex, actor: Principal, sectionId: string, input: z.infer<typeof reviewSchema>) {
   return db.transaction(async (trx) => {
-    const before = (await getSection(trx, sectionId))!;
-    if (before.retiredInRun !== null) throw new AppError('conflict', 'This section was retired by a later reconciliation run; review its successor.');
-    const review = input.decision === 'approve' ? 'approved' : 'rejected';
+    const [before] = await getSectionsForUpdate(trx, [sectionId]);
+    const refusal = reviewRefusal(before, input.decision);
+    if (refusal) throw new AppError('conflict', refusal);
+    const review = REVIEW_OF[input.decision];
     await setSectionReview(trx, sectionId, review, input.comment, actor.id);
     await writeAudit(trx, auditActor(actor), { projectId: before.projectId, objectType: 'section', objectId: sectionId, action: `review_${review}`, before: { review: before.review }, after: { review, comment: input.comment } });
     return (await getSection(trx, sectionId))!;
   });
+}
+
+/**
+ * Many sections of one project take the same decision in one transaction, one audit entry each. Any
+ * section that is not the project's, is retired, or does not fit the decision refuses the whole request,
+ * each listed in the error's details: nothing is half reviewed.
+ */
+export async function reviewSections(db: Knex, actor: Principal, projectId: string, input: z.infer<typeof bulkReviewSchema>) {
+  const ids = [...new Set(input.sectionIds)];
+  return db.transaction(async (trx) => {
+    const found = new Map((await getSectionsForUpdate(trx, ids)).map((s) => [s.id, s]));
+    const problems: { path: string; message: string }[] = [];
+    ids.forEach((id, i) => {
+      const s = found.get(id);
+      const refusal = !s || s.projectId !== projectId ? 'No such section in this project.' : reviewRefusal(s, input.decision);
+      if (refusal) problems.push({ path: `sectionIds.${i}`, message: `${s ? `${s.plannedRouteRef ?? 'unplanned'} ${s.fromChainageM.toFixed(0)}–${s.toChainageM.toFixed(0)} m` : id}: ${refusal}` });
+    });
+    if (problems.length) throw new AppError('conflict', `${problems.length} of the ${ids.length} sections cannot be ${REVIEW_OF[input.decision]}; nothing was changed.`, problems);
+    const review = REVIEW_OF[input.decision];
+    await setSectionsReview(trx, ids, review, input.comment, actor.id);
+    const who = auditActor(actor);
+    for (const id of ids) {
+      await writeAudit(trx, who, { projectId, objectType: 'section', objectId: id, action: `review_${review}`, before: { review: found.get(id)!.review }, after: { review, comment: input.comment, bulk: ids.length } });
+    }
+    return { reviewed: ids.length, review };
+  });
+}
+
+/** Settled sections are approved, or acknowledged as not built; a project whose every section is settled is fully approved. */
+export function reviewProgress(sections: Pick<Section, 'review' | 'status'>[]) {
+  const count = (r: Section['review']) => sections.filter((s) => s.review === r).length;
+  const approved = count('approved');
+  const acknowledged = count('acknowledged');
+  const settled = approved + acknowledged;
+  return { total: sections.length, approved, acknowledged, rejected: count('rejected'), pending: count('pending'), settled, fullyApproved: sections.length > 0 && settled === sections.length };
 }
 
 /** Queues a reconciliation unless one is already waiting: uploads in quick succession share one run. */
@@ -139,9 +181,10 @@ export function sectionFeature(s: Section) {
       toChainageM: round(s.toChainageM),
       lengthM: round(s.lengthM),
       status: s.status,
-      maxOffsetM: round(s.maxOffsetM),
-      p95OffsetM: round(s.p95OffsetM),
-      accuracyM: round(s.accuracyM),
+      // null where nothing measured it: a not-built stretch, an unplanned line's offset from a plan
+      maxOffsetM: roundOrNull(s.maxOffsetM),
+      p95OffsetM: roundOrNull(s.p95OffsetM),
+      accuracyM: roundOrNull(s.accuracyM),
       sourceUploadIds: s.sourceUploadIds,
       laidOn: s.laidOn,
       review: s.review,
@@ -150,6 +193,7 @@ export function sectionFeature(s: Section) {
 }
 
 const round = (x: number) => Math.round(x * 1000) / 1000;
+const roundOrNull = (x: number | null) => (x === null ? null : round(x));
 
 /** Planned, built and covered metres: built counts as-planned and deviating stretches of planned routes. */
 export function sectionTotals(sections: Section[]) {
@@ -157,22 +201,6 @@ export function sectionTotals(sections: Section[]) {
   const builtPlanned = sections.filter((s) => s.status === 'as_planned' || s.status === 'deviates').reduce((n, s) => n + (s.toChainageM - s.fromChainageM), 0);
   const laid = sections.filter((s) => s.status !== 'not_built').reduce((n, s) => n + s.lengthM, 0);
   return { plannedM: round(planned), builtM: round(builtPlanned), laidM: round(laid), coverage: planned > 0 ? round(builtPlanned / planned) : 0 };
-}
-
-export const exclusionSchema = z.discriminatedUnion('kind', [
-  z.object({ kind: z.literal('time'), from: z.iso.datetime({ offset: true, message: 'Give the start as an ISO time, e.g. 2026-11-03T09:40:00Z.' }), to: z.iso.datetime({ offset: true, message: 'Give the end as an ISO time.' }), reason: z.string().trim().min(3, 'Say why this stretch is left out.').max(500) }),
-  z.object({ kind: z.literal('distance'), from: z.number().min(0, 'Metres from the start of each trace, 0 or more.'), to: z.number().min(0), reason: z.string().trim().min(3, 'Say why this stretch is left out.').max(500) }),
-]).refine((e) => (e.kind === 'time' ? Date.parse(e.from) < Date.parse(e.to) : e.from < e.to), { message: 'The range must end after it starts.', path: ['to'] });
-
-/** Keeps a time or distance range of an upload out of matching (the original keeps it), audited, then reconciles. */
-export async function excludeFromMatching(db: Knex, actor: Principal, projectId: string, uploadId: string, input: z.infer<typeof exclusionSchema>) {
-  const id = await db.transaction(async (trx) => {
-    const id = await insertUploadExclusion(trx, uploadId, input, actor.id);
-    await writeAudit(trx, auditActor(actor), { projectId, objectType: 'upload', objectId: uploadId, action: 'exclude_range', after: input });
-    return id;
-  });
-  const job = await requestReconciliation(db, projectId, actor.id);
-  return { exclusion: { id, ...input }, job };
 }
 
 /**

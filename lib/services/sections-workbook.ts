@@ -1,49 +1,40 @@
 import ExcelJS from 'exceljs';
 import type { Writable } from 'node:stream';
 import type { Section } from '@/db/sections';
-
-const COLUMNS: { header: string; key: string; width: number; numFmt?: string }[] = [
-  { header: 'Section id', key: 'id', width: 38 },
-  { header: 'Route', key: 'route', width: 12 },
-  { header: 'Street', key: 'street', width: 24 },
-  { header: 'From (m)', key: 'from', width: 10, numFmt: '0.00' },
-  { header: 'To (m)', key: 'to', width: 10, numFmt: '0.00' },
-  { header: 'Length (m)', key: 'length', width: 11, numFmt: '0.00' },
-  { header: 'Status', key: 'status', width: 12 },
-  { header: 'Max offset (m)', key: 'max', width: 14, numFmt: '0.00' },
-  { header: 'P95 offset (m)', key: 'p95', width: 14, numFmt: '0.00' },
-  { header: 'Accuracy, 95 % radius (m)', key: 'acc', width: 22, numFmt: '0.00' },
-  { header: 'Source uploads', key: 'sources', width: 40 },
-  { header: 'Laid on', key: 'laid', width: 12, numFmt: 'yyyy-mm-dd' },
-  { header: 'Review', key: 'review', width: 10 },
-];
+import { EXPORT_CAUTION, exportNotes, SECTION_EXPORT_COLUMNS, type ExportContext } from './sections-export';
 
 /**
- * Writes the sections table as an Office Open XML workbook with exceljs's streaming writer, one row per
- * section, numbers as numbers and the laid date as a date, e.g. `await writeSectionsWorkbook(sections, streets, res)`.
+ * Writes the sections table as an Office Open XML workbook with exceljs's streaming writer: the sheet
+ * "Sections" (one row per section, the CSV's human headers, numbers as numbers, the laid date as a date,
+ * empty cells where nothing was measured) and the sheet "Read me" (caution and coordinate system), e.g.
+ * `await writeSectionsWorkbook(sections, context, res)`.
  */
-export async function writeSectionsWorkbook(sections: Section[], streets: Map<string, string | null>, out: Writable): Promise<void> {
+export async function writeSectionsWorkbook(sections: Section[], context: ExportContext, out: Writable): Promise<void> {
   const wb = new ExcelJS.stream.xlsx.WorkbookWriter({ stream: out, useStyles: true });
-  const ws = wb.addWorksheet('Sections', { views: [{ state: 'frozen', ySplit: 1 }] });
-  ws.columns = COLUMNS.map((c) => ({ header: c.header, key: c.key, width: c.width, style: c.numFmt ? { numFmt: c.numFmt } : {} }));
+  const ws = wb.addWorksheet('Sections', {
+    views: [{ state: 'frozen', ySplit: 1 }],
+    // printed on every page, where the sheet is read on paper
+    headerFooter: { oddFooter: `&L${EXPORT_CAUTION.replace(/&/g, '&&')}` },
+  });
+  ws.columns = SECTION_EXPORT_COLUMNS.map((c, i) => ({
+    header: c.header,
+    key: String(i),
+    width: c.width,
+    style: c.kind === 'number' ? { numFmt: '0.000' } : c.kind === 'date' ? { numFmt: 'yyyy-mm-dd' } : {},
+  }));
   ws.getRow(1).font = { bold: true };
   for (const s of sections) {
-    ws.addRow({
-      id: s.id,
-      route: s.plannedRouteRef ?? 'unplanned',
-      street: (s.plannedRouteRef && streets.get(s.plannedRouteRef)) ?? '',
-      from: s.fromChainageM,
-      to: s.toChainageM,
-      length: s.lengthM,
-      status: s.status,
-      max: s.maxOffsetM,
-      p95: s.p95OffsetM,
-      acc: s.accuracyM,
-      sources: s.sourceUploadIds.join(' '),
-      laid: s.laidOn ? new Date(`${s.laidOn}T00:00:00Z`) : null,
-      review: s.review,
-    }).commit();
+    const row: Record<string, string | number | Date | null> = {};
+    SECTION_EXPORT_COLUMNS.forEach((c, i) => {
+      const v = c.value(s, context);
+      row[String(i)] = c.kind === 'date' && typeof v === 'string' ? new Date(`${v}T00:00:00Z`) : v;
+    });
+    ws.addRow(row).commit();
   }
   ws.commit();
+  const about = wb.addWorksheet('Read me');
+  about.columns = [{ key: 'note', width: 120 }];
+  for (const line of exportNotes(context, sections.length)) about.addRow({ note: line }).commit();
+  about.commit();
   await wb.commit();
 }

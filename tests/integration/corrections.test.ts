@@ -136,7 +136,7 @@ describe('corrections of sections', () => {
     expect(north.map((s) => s.status)).toEqual(['deviates', 'as_planned']);
     expect(north[0].fromChainageM).toBe(0);
     expect(Math.abs(north[0].toChainageM - dev.toChainageM)).toBeLessThan(0.5);
-    expect(north[0].maxOffsetM).toBeCloseTo(dev.maxOffsetM, 6);
+    expect(north[0].maxOffsetM).toBeCloseTo(dev.maxOffsetM!, 6);
   });
 
   it('records why a stretch is not built, and counts part of it built on another source', async () => {

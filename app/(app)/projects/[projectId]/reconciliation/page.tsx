@@ -5,13 +5,12 @@ import { requireProjectPage } from '@/lib/auth/page-guards';
 import { can } from '@/lib/auth/roles';
 import { formatLength } from '@/lib/records/units';
 import { plannedFeatureCollection } from '@/lib/services/planned';
-import { sectionFeature, sectionTotals } from '@/lib/services/reconcile';
-import { DataTable } from '@/components/ui/data-table';
-import { Card, PageHeader } from '@/components/ui/primitives';
+import { reviewProgress, sectionFeature, sectionTotals } from '@/lib/services/reconcile';
+import { Card, Notice, PageHeader } from '@/components/ui/primitives';
 import { GeoMap, type MapLayer } from '@/components/map/geo-map';
 import { JobButton } from '@/components/forms/job-button';
-import { SectionReview } from '@/components/forms/section-review';
-import { STATUS_STYLE } from '@/components/ui/section-status';
+import { SectionsReviewTable, type SectionRowMeta } from '@/components/forms/sections-review-table';
+import { REVIEW_STYLE, STATUS_STYLE } from '@/components/ui/section-status';
 
 export const metadata: Metadata = { title: 'Planned against built' };
 
@@ -34,6 +33,11 @@ export default async function ReconciliationPage({ params }: { params: Promise<{
   ];
   const unit = project.unitSystem;
   const reviewer = can(me.role, 'section.review');
+  const progress = reviewProgress(sections);
+  // a figure nothing measured (not built; an unplanned line's offset) is a dash, never 0.00 m
+  const figure = (x: number | null) => (x === null ? { text: '—', sort: -1 } : { text: formatLength(x, unit), sort: x });
+  const label = (s: (typeof sections)[number]) => `${s.plannedRouteRef ?? 'unplanned'} ${s.fromChainageM.toFixed(0)}–${s.toChainageM.toFixed(0)} m (${STATUS_STYLE[s.status].label})`;
+  const meta: Record<string, SectionRowMeta> = Object.fromEntries(sections.map((s) => [s.id, { status: s.status, review: s.review, label: label(s) }]));
   return (
     <>
       <PageHeader
@@ -45,22 +49,35 @@ export default async function ReconciliationPage({ params }: { params: Promise<{
         <GeoMap label="Map of planned routes and built sections" layers={layers} height={480} />
         <ul className="flex flex-wrap gap-4 text-xs" aria-label="Legend">
           <li className="flex items-center gap-1"><span className="inline-block h-0.5 w-6 border-t-2 border-dashed border-[#0072b2]" /> planned route</li>
-          {Object.values(STATUS_STYLE).map((s) => (
-            <li key={s.label} className="flex items-center gap-1"><span className="inline-block h-1 w-6" style={{ background: s.colour }} /> {s.label}</li>
+          {Object.entries(STATUS_STYLE).map(([k, s]) => (
+            <li key={s.label} className="flex items-center gap-1">
+              <span aria-hidden="true" data-swatch={s.colour} className="inline-block w-6" style={k === 'not_built' ? { borderTop: `2px dashed ${s.colour}` } : { height: 4, background: s.colour }} /> {s.label}
+            </li>
           ))}
         </ul>
         <Card
           title="Sections"
           actions={
             <span className="flex gap-3 text-sm">
-              <a href={`/api/projects/${project.id}/sections?format=csv`}>Download CSV</a>
+              <a href={`/api/projects/${project.id}/sections?format=csv`} title="A zip: the CSV table and a README with the caution and the coordinate system">Download CSV (zip)</a>
               <a href={`/api/projects/${project.id}/sections?format=xlsx`}>Download Excel</a>
+              <a href={`/api/projects/${project.id}/sections?format=geojson`}>Download GeoJSON</a>
             </span>
           }
         >
-          <DataTable
-            label="Sections"
-            empty="No sections yet: import the plan, upload what was laid, then reconcile."
+          <div className="mb-4">
+            {progress.fullyApproved ? (
+              <Notice tone="ok">Fully approved: all {progress.total} sections are settled ({progress.approved} approved{progress.acknowledged ? `, ${progress.acknowledged} acknowledged as not built` : ''}).</Notice>
+            ) : progress.total > 0 ? (
+              <p className="text-sm text-ink-soft" aria-label="Review progress">
+                Review: {progress.settled} of {progress.total} sections settled ({progress.approved} approved, {progress.acknowledged} acknowledged as not built); {progress.pending} pending, {progress.rejected} rejected. A not-built stretch is settled by acknowledging it with the reason.
+              </p>
+            ) : null}
+          </div>
+          <SectionsReviewTable
+            projectId={project.id}
+            reviewer={reviewer}
+            meta={meta}
             columns={[
               { key: 'route', label: 'Route' },
               { key: 'street', label: 'Street' },
@@ -85,23 +102,18 @@ export default async function ReconciliationPage({ params }: { params: Promise<{
                   from: { text: formatLength(s.fromChainageM, unit), sort: s.fromChainageM },
                   to: { text: formatLength(s.toChainageM, unit), sort: s.toChainageM },
                   length: { text: formatLength(s.lengthM, unit), sort: s.lengthM },
-                  status: { text: STATUS_STYLE[s.status].label, tone: STATUS_STYLE[s.status].tone },
-                  max: { text: formatLength(s.maxOffsetM, unit), sort: s.maxOffsetM },
-                  p95: { text: formatLength(s.p95OffsetM, unit), sort: s.p95OffsetM },
-                  acc: { text: s.status === 'not_built' ? '—' : formatLength(s.accuracyM, unit), sort: s.accuracyM },
+                  status: { text: STATUS_STYLE[s.status].label, swatch: STATUS_STYLE[s.status].colour },
+                  max: figure(s.maxOffsetM),
+                  p95: figure(s.p95OffsetM),
+                  acc: figure(s.accuracyM),
                   sources: s.sourceUploadIds.length,
                   laid: s.laidOn ?? '—',
-                  review: { text: s.review, tone: s.review === 'approved' ? 'ok' : s.review === 'rejected' ? 'bad' : 'muted' },
+                  review: { text: REVIEW_STYLE[s.review].label, tone: REVIEW_STYLE[s.review].tone },
                 },
               };
             })}
           />
         </Card>
-        {reviewer && sections.some((s) => s.status !== 'not_built') && (
-          <Card title="Review">
-            <SectionReview sections={sections.filter((s) => s.status !== 'not_built').map((s) => ({ id: s.id, label: `${s.plannedRouteRef ?? 'unplanned'} ${s.fromChainageM.toFixed(0)}–${s.toChainageM.toFixed(0)} m (${STATUS_STYLE[s.status].label})`, review: s.review }))} />
-          </Card>
-        )}
       </div>
     </>
   );

@@ -1,12 +1,11 @@
 import { PassThrough, Readable } from 'node:stream';
-import { stringify } from 'csv-stringify/sync';
 import { NextResponse } from 'next/server';
 import { z } from 'zod';
 import { byProjectParam, withRoute } from '@/lib/api/with-route';
 import { listCurrentSections } from '@/db/sections';
 import { sectionFeature, sectionTotals } from '@/lib/services/reconcile';
+import { EXPORT_CAUTION, EXPORT_COORDINATES, EXPORT_EMPTY_CELLS, loadExportContext, sectionsCsvZip } from '@/lib/services/sections-export';
 import { writeSectionsWorkbook } from '@/lib/services/sections-workbook';
-import { listPlannedRoutes } from '@/db/planned';
 
 export const GET = withRoute(
   { action: 'section.read', scope: byProjectParam, query: z.object({ format: z.enum(['json', 'geojson', 'csv', 'xlsx']).default('json') }) },
@@ -14,20 +13,22 @@ export const GET = withRoute(
     const sections = await listCurrentSections(db, project.id);
     const features = sections.map(sectionFeature);
     if (query.format === 'geojson') {
-      return new NextResponse(JSON.stringify({ type: 'FeatureCollection', features }), { headers: { 'content-type': 'application/geo+json' } });
+      // RFC 7946 is WGS 84 by definition (no "crs" member); the caution travels as a foreign member
+      const body = { type: 'FeatureCollection', caution: EXPORT_CAUTION, coordinates: EXPORT_COORDINATES, emptyFigures: EXPORT_EMPTY_CELLS, features };
+      return new NextResponse(JSON.stringify(body), { headers: { 'content-type': 'application/geo+json', 'content-disposition': 'attachment; filename="sections.geojson"' } });
     }
     if (query.format === 'xlsx') {
-      const streets = new Map((await listPlannedRoutes(db, project.id, true)).map((r) => [r.ref, r.street]));
+      const context = await loadExportContext(db, project);
       const out = new PassThrough();
-      void writeSectionsWorkbook(sections, streets, out).catch((err) => out.destroy(err));
+      void writeSectionsWorkbook(sections, context, out).catch((err) => out.destroy(err));
       return new NextResponse(Readable.toWeb(out) as ReadableStream, {
         headers: { 'content-type': 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet', 'content-disposition': 'attachment; filename="sections.xlsx"' },
       });
     }
     if (query.format === 'csv') {
-      const columns = ['id', 'plannedRouteRef', 'fromChainageM', 'toChainageM', 'lengthM', 'status', 'maxOffsetM', 'p95OffsetM', 'accuracyM', 'sourceUploadIds', 'laidOn', 'review'];
-      const rows = features.map((f) => [f.id, f.properties.plannedRouteRef ?? '', f.properties.fromChainageM, f.properties.toChainageM, f.properties.lengthM, f.properties.status, f.properties.maxOffsetM, f.properties.p95OffsetM, f.properties.accuracyM, f.properties.sourceUploadIds.join(' '), f.properties.laidOn ?? '', f.properties.review]);
-      return new NextResponse(stringify([columns, ...rows]), { headers: { 'content-type': 'text/csv; charset=utf-8', 'content-disposition': 'attachment; filename="sections.csv"' } });
+      // a zip of the plain CSV and its README: a comment line above the header would break GDAL's CSV driver
+      const zip = sectionsCsvZip(sections, await loadExportContext(db, project));
+      return new NextResponse(new Uint8Array(zip), { headers: { 'content-type': 'application/zip', 'content-disposition': 'attachment; filename="sections-csv.zip"' } });
     }
     return { sections: features.map((f) => ({ id: f.id, ...f.properties })), totals: sectionTotals(sections) };
   },

@@ -18,7 +18,9 @@ import { SectionReview } from '@/components/forms/section-review';
 import { GeoMap, type MapLayer } from '@/components/map/geo-map';
 import { DataTable } from '@/components/ui/data-table';
 import { Badge, Card, Notice, PageHeader } from '@/components/ui/primitives';
-import { REVIEW_TONE, STATUS_STYLE } from '@/components/ui/section-status';
+import { REVIEW_STYLE, STATUS_STYLE } from '@/components/ui/section-status';
+import { R95_FACTOR } from '@/lib/records/accuracy-classes';
+import { formatInZone } from '@/lib/records/zoned-time';
 
 export const metadata: Metadata = { title: 'Section' };
 
@@ -48,14 +50,24 @@ export default async function SectionPage({ params }: { params: Promise<{ projec
   const series = d.observations.map((o) => ({ label: names.get(o.uploadId) ?? o.uploadId.slice(0, 8), points: thin(o.chainageM.map((c, i) => ({ chainageM: c, offsetM: o.offsetM[i] })), 1500) }));
   const observed = d.observations.reduce((n, o) => n + o.chainageM.length, 0);
   const asBuilt = d.route && s.status !== 'not_built' ? offsetProfile(d.route.geometry.coordinates, s.geometry.coordinates) : [];
+  // a figure nothing measured (not built; an unplanned line's offset from a plan) is a dash, never 0.00 m
+  const fig = (x: number | null) => (x === null ? '—' : formatLength(x, unit));
+  // when each source walked this stretch, on the project's clock: to pick a range to leave out
+  const walked = new Map(d.observations.map((o) => {
+    const ts = o.timeS.filter((t, i): t is number => t !== null && o.chainageM[i] >= s.fromChainageM && o.chainageM[i] <= s.toChainageM);
+    return [o.uploadId, ts.length ? { first: Math.min(...ts), last: Math.max(...ts) } : null] as const;
+  }));
+  const counted = d.sources.filter((u) => u.wonHere);
+  // offsets beyond the tolerance that the section test did not flag: the source's noise swamps them
+  const noisy = s.status === 'as_planned' && s.maxOffsetM !== null && s.maxOffsetM > d.toleranceM && counted.length > 0;
   const facts: [string, React.ReactNode][] = [
     ['Street', d.route?.street ?? '—'],
     ['Planned duct bundle', d.route?.ducts ?? '—'],
     ['Kind', d.route ? (d.route.kind === 'crossing' ? 'road crossing' : 'street route') : 'not on the plan'],
     ['Chainage', s.plannedRouteRef ? `${formatLength(s.fromChainageM, unit)} to ${formatLength(s.toChainageM, unit)}` : '—'],
     s.status === 'not_built' ? ['Planned length', formatLength(s.lengthM, unit)] : ['Laid length (from the as-built line)', formatLength(s.lengthM, unit)],
-    ['Max / 95th-percentile offset', s.status === 'not_built' ? '—' : `${formatLength(s.maxOffsetM, unit)} / ${formatLength(s.p95OffsetM, unit)}`],
-    ['Position accuracy (95 % radius)', s.status === 'not_built' ? '—' : formatLength(s.accuracyM, unit)],
+    ['Max / 95th-percentile offset', s.maxOffsetM === null ? '—' : `${fig(s.maxOffsetM)} / ${fig(s.p95OffsetM)}`],
+    ['Position accuracy (95 % radius)', fig(s.accuracyM)],
     ['Laid on', s.laidOn ?? '—'],
     ['Lateral tolerance of the project', formatLength(d.toleranceM, unit)],
     ['Runs', `first found in run ${s.firstRun}, last in run ${s.lastRun}${s.retiredInRun ? `, retired in run ${s.retiredInRun}` : ''}`],
@@ -75,8 +87,8 @@ export default async function SectionPage({ params }: { params: Promise<{ projec
         title={title}
         subtitle={
           <span className="flex flex-wrap items-center gap-2">
-            <Badge tone={style.tone}>{style.label}</Badge>
-            <Badge tone={REVIEW_TONE[s.review]}>review: {s.review}</Badge>
+            <Badge swatch={style.colour}>{style.label}</Badge>
+            <Badge tone={REVIEW_STYLE[s.review].tone}>review: {REVIEW_STYLE[s.review].label}</Badge>
             {s.reviewComment && <span>“{s.reviewComment}”</span>}
           </span>
         }
@@ -86,6 +98,17 @@ export default async function SectionPage({ params }: { params: Promise<{ projec
           <Notice tone="warn">
             A later reconciliation (run {s.retiredInRun}) no longer finds this stretch as it was; the record keeps it.{' '}
             {successors.length > 0 && <>Now: {successors.map((x, i) => <span key={x.id}>{i > 0 && ', '}<Link href={`/projects/${project.id}/sections/${x.id}`}>{x.plannedRouteRef ?? 'unplanned'} {x.fromChainageM.toFixed(1)}–{x.toChainageM.toFixed(1)} m</Link></span>)}.</>}
+          </Notice>
+        </div>
+      )}
+      {noisy && (
+        <div className="mb-4">
+          <Notice tone="info">
+            <span className="font-medium">Why this stretch is not flagged as deviating.</span> Offsets of up to {fig(s.maxOffsetM)} reach beyond the project&apos;s
+            tolerance of ±{formatLength(d.toleranceM, unit)}, but {counted.map((u) => `${u.fileName} (σ ${formatLength(u.sigmaM, unit)} per axis, 95 % radius ${formatLength(u.sigmaM * R95_FACTOR, unit)})`).join(' and ')}{' '}
+            {counted.length === 1 ? 'places each fix' : 'place each fix'} only that closely: an offset this size can be the source&apos;s own noise. A stretch is
+            flagged only where its smoothed offset exceeds the tolerance by more than its own 95 % uncertainty (here the line is known to ±{fig(s.accuracyM)}), over
+            several metres. To settle it, survey the stretch with RTK GNSS or a total station, or check it on site.
           </Notice>
         </div>
       )}
@@ -133,6 +156,7 @@ export default async function SectionPage({ params }: { params: Promise<{ projec
               { key: 'sigma', label: 'σ per axis', align: 'right' },
               { key: 'date', label: 'Survey date' },
               { key: 'crew', label: 'Crew' },
+              { key: 'walked', label: `Fixes on this stretch (${project.timeZone})` },
               { key: 'role', label: 'Here' },
             ]}
             rows={d.sources.map((u) => ({
@@ -143,14 +167,24 @@ export default async function SectionPage({ params }: { params: Promise<{ projec
                 sigma: { text: formatLength(u.sigmaM, unit), sort: u.sigmaM },
                 date: u.surveyDate ?? '—',
                 crew: u.crew || '—',
+                walked: (() => {
+                  const w = walked.get(u.id);
+                  if (!w) return '—';
+                  const text = `${formatInZone(w.first * 1000, project.timeZone)} – ${formatInZone(w.last * 1000, project.timeZone).slice(11)}`;
+                  // an engineer can take the stretch's times straight to the upload's "left out of matching" form
+                  return engineer ? { text, href: `/projects/${project.id}/uploads/${u.id}?from=${w.first}&to=${w.last}#left-out` } : text;
+                })(),
                 role: { text: u.wonHere ? 'counted' : 'seen nearby', tone: u.wonHere ? 'ok' : 'muted' },
               },
             }))}
           />
         </Card>
-        {can(me.role, 'section.review') && current && s.status !== 'not_built' && (
+        {can(me.role, 'section.review') && current && (
           <Card title="Review">
-            <SectionReview sections={[{ id: s.id, label: title, review: s.review }]} />
+            {s.status === 'not_built' && (
+              <p className="mb-3 text-sm text-ink-soft">Nothing was laid here to approve. Acknowledge the stretch as not built, with the reason, to settle it; or reject it if it must still be built.</p>
+            )}
+            <SectionReview sections={[{ id: s.id, label: title, review: s.review }]} notBuilt={s.status === 'not_built'} />
           </Card>
         )}
         <Card title="Corrections">
