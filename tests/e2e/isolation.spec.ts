@@ -36,6 +36,9 @@ interface Ctx {
   orgChangeId: number;
   foreignOrgChangeId: number;
   newOwnerOrgId: string;
+  /** a left-out range of uploadId, and one of foreignUploadId */
+  exclusionId: number;
+  foreignExclusionId: number;
 }
 
 interface SectionRef {
@@ -44,6 +47,9 @@ interface SectionRef {
   fromChainageM: number;
   toChainageM: number;
 }
+
+/** A review any current section accepts: a not-built stretch is acknowledged, a built one approved. */
+const reviewFor = (s: SectionRef | undefined) => (s?.status === 'not_built' ? { decision: 'acknowledge', comment: 'isolation matrix' } : { decision: 'approve', comment: 'isolation matrix' });
 
 /** A correction any current section accepts: a reason where nothing is built, else a split in the middle. */
 const correctionFor = (s: SectionRef) =>
@@ -57,8 +63,10 @@ interface Row {
   /** a role without the right, or why not applicable */
   denied: Who | { na: string };
   allowed: Who;
-  /** the request body; `section` is the current section when the URL names CURRENT */
+  /** the request body; `section` is the current section when the URL names CURRENT or `current` is set */
   body?: (c: Ctx, section?: SectionRef) => unknown;
+  /** the body names the current section (a route that takes section ids in its body) */
+  current?: true;
   success: number;
 }
 
@@ -259,6 +267,13 @@ const MATRIX: Record<string, Row | PublicRow> = {
     body: () => ({ kind: 'distance', from: 0, to: 1, reason: 'isolation matrix' }),
     success: 201,
   },
+  'DELETE /api/projects/[projectId]/uploads/[uploadId]/exclusions/[exclusionId]': {
+    url: (c) => `/api/projects/${c.projectId}/uploads/${c.uploadId}/exclusions/${c.exclusionId}`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/uploads/${c.foreignUploadId}/exclusions/${c.foreignExclusionId}`,
+    denied: 'surveyor',
+    allowed: 'engineer',
+    success: 200,
+  },
   'POST /api/projects/[projectId]/reconcile': {
     url: (c) => `/api/projects/${c.projectId}/reconcile`,
     foreign: (c) => `/api/projects/${c.foreignProjectId}/reconcile`,
@@ -279,7 +294,16 @@ const MATRIX: Record<string, Row | PublicRow> = {
     foreign: (c) => `/api/sections/${c.foreignSectionId}/review`,
     denied: 'surveyor',
     allowed: 'engineer',
-    body: () => ({ decision: 'approve', comment: 'isolation matrix' }),
+    body: (_c, section) => reviewFor(section),
+    success: 200,
+  },
+  'POST /api/projects/[projectId]/sections/review': {
+    url: (c) => `/api/projects/${c.projectId}/sections/review`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/sections/review`,
+    denied: 'surveyor',
+    allowed: 'engineer',
+    current: true,
+    body: (_c, section) => ({ sectionIds: [section!.id], ...reviewFor(section) }),
     success: 200,
   },
   'GET /api/sections/[sectionId]': {
@@ -457,10 +481,19 @@ test.beforeAll(async ({ request }) => {
   };
   const correctionId = await correctionOn(await currentSection(request), tokens.engineer);
   const foreignCorrectionId = await correctionOn((foreignSections as unknown as SectionRef[])[0], foreignToken);
+  const exclusionOn = async (pid: string, uploadId: string, token: string) => {
+    const r = await json<{ exclusion: { id: number } }>(request, 'POST', `/api/projects/${pid}/uploads/${uploadId}/exclusions`, token, { kind: 'distance', from: 0, to: 2, reason: 'isolation matrix' });
+    expect(r.status).toBe(201);
+    return r.body!.exclusion.id;
+  };
+  const exclusionId = await exclusionOn(projectId, upload.body!.upload!.id, tokens.engineer);
+  const foreignExclusionId = await exclusionOn(fp.body!.project.id, foreignUpload.body!.upload!.id, foreignToken);
   ctx = {
     currentSection,
     correctionId,
     foreignCorrectionId,
+    exclusionId,
+    foreignExclusionId,
     foreignSectionId: foreignSections[0].id,
     uploadId: upload.body!.upload!.id,
     spareUploadId: spareUpload.body!.upload!.id,
@@ -501,7 +534,7 @@ for (const [key, row] of Object.entries(MATRIX)) {
     const method = key.split(' ')[0];
     let url = row.url(ctx);
     if (url.endsWith('/SPARE')) url = url.replace('SPARE', await ctx.spareTokenId(request));
-    const section = url.includes('/CURRENT') ? await ctx.currentSection(request) : undefined;
+    const section = url.includes('/CURRENT') || row.current ? await ctx.currentSection(request) : undefined;
     if (section) url = url.replace('CURRENT', section.id);
     const body = row.body?.(ctx, section);
 
