@@ -14,7 +14,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { nearestPointOnLine } from '@turf/nearest-point-on-line';
 import { lineString } from '@turf/helpers';
-import { appendCandidates, CandidateColumns, makeCandidateIndex } from '../lib/matching/candidates';
+import { appendCandidatesAt, CandidateColumns, makeCandidateIndex, toFrameInto } from '../lib/matching/candidates';
 import type { Fix } from '../lib/matching/match-types';
 import { resolveMatchOptions } from '../lib/matching/match-types';
 import { reconcileProject, type UploadTraces } from '../lib/matching/reconcile-project';
@@ -62,9 +62,12 @@ function measureSearch(file: string): { searchS: number; perFix: number } {
   const run = (fixes: Fix[], index: ReturnType<typeof makeCandidateIndex>) => {
     const o = searchOptions();
     const columns = new CandidateColumns();
+    const point = { x: new Float64Array(1), y: new Float64Array(1), kx: new Float64Array(1), ky: new Float64Array(1) };
     let found = 0;
     for (const f of fixes) {
-      found += appendCandidates(index, f, o.searchRadiusM, o.maxCandidates, columns);
+      // each fix into the index's frame, then searched: what the matcher does, a trace's fixes at a time
+      toFrameInto(index, f.lon, f.lat, point, 0);
+      found += appendCandidatesAt(index, point, 0, o.searchRadiusM, o.maxCandidates, columns);
       columns.length = 0;
     }
     return found;

@@ -3,9 +3,8 @@ import type { RouteObservations, SectionDraft, SectionOptions, SectionStatus } f
 import { Scratch } from './scratch';
 import { SortedWindow, WindowExtremes } from './sliding-window';
 import type { LonLat } from './types';
+import { R95_FACTOR } from '../records/accuracy-classes';
 
-/** 95 % radius of a circular normal error with σ per axis [computed: sqrt(−2 ln 0.05)]. */
-const R95 = 2.4477;
 /** two-sided 95 % normal quantile */
 const Z95 = 1.96;
 /** a 10 % trimmed mean's standard error is about 1.03 times the mean's, for normal noise */
@@ -376,17 +375,17 @@ export function buildRouteSections(route: { ref: string; coords: LonLat[] }, sou
       const ends = [offsetAt(all, from), offsetAt(all, to)];
       coords = all.length >= 2 ? [ends[0], ...pts, ends[1]].map((f) => offsetPoint(route.coords, f.chainageM, f.offsetM)) : subLine(route.coords, from, to);
       offsets = [...pts, ...ends].map((f) => Math.abs(f.offsetM));
-      accuracyM = R95 * src.sigmaM;
+      accuracyM = R95_FACTOR * src.sigmaM;
     } else if (status === 'deviates') {
       coords = run.map((b, k) => offsetPoint(route.coords, Math.min(length, from + k + 0.5), b.anomaly));
       coords.unshift(offsetPoint(route.coords, from, run[0].anomaly));
       coords.push(offsetPoint(route.coords, to, run[run.length - 1].anomaly));
       offsets = run.map((b) => Math.abs(b.anomaly));
-      accuracyM = R95 * median(run.map((b) => b.se));
+      accuracyM = R95_FACTOR * median(run.map((b) => b.se));
     } else {
       coords = subLine(route.coords, from, to);
       offsets = run.map((b) => Math.abs(b.anomaly));
-      accuracyM = R95 * median(run.map((b) => b.se));
+      accuracyM = R95_FACTOR * median(run.map((b) => b.se));
     }
     const contributing = src ? sources.filter((s) => seen(s, o).some(([a, b]) => a < to && b > from)) : [];
     drafts.push({

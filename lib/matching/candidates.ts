@@ -1,6 +1,5 @@
 import Flatbush from 'flatbush';
 import { cumulativeChainage, lonDelta, metresPerDegreeInto } from './chainage';
-import type { Candidate } from './match-types';
 import type { PlannedRouteInput } from './types';
 
 /** Metres per degree of longitude and of latitude at a latitude (WGS 84 radii of curvature). */
@@ -249,35 +248,6 @@ function nearestRoutes(index: CandidateIndex, sc: Scratch, pts: FramePoints, at:
 }
 
 /**
- * Up to `max` candidates within `radiusM` of the fix, the best projection per route, nearest first.
- * Distances are planar in the index's frame rescaled to the fix's latitude (≪ 1 mm error within the radius);
- * chainage is the geodesic chainage of the segment's start plus the segment's geodesic length × the planar
- * fraction, so it agrees with lineLengthM at the vertices and to ~1e-6 relative within a segment.
- * `candidatesFor(index, { lon: 13.405, lat: 52.52 }, 16, 5)` → `[{ ref: 'N1', distanceM: 2.9, offsetM: -2.9, … }, …]`
- */
-export function candidatesFor(index: CandidateIndex, fix: { lon: number; lat: number }, radiusM: number, max: number): Candidate[] {
-  if (!index.tree || max <= 0) return [];
-  const sc = scratchFor(index);
-  toFrameInto(index, fix.lon, fix.lat, sc.point, 0);
-  const n = nearestRoutes(index, sc, sc.point, 0, radiusM, max);
-  const out: Candidate[] = [];
-  for (let i = 0; i < n; i++) {
-    const k = sc.order[i];
-    const a = index.segVertex[sc.bestSeg[k]];
-    const d = Math.sqrt(sc.bestD2[k]);
-    out.push({
-      route: k,
-      ref: index.routes[k].ref,
-      segment: a - index.routeStart[k],
-      chainageM: index.cum[a] + sc.bestT[k] * (index.cum[a + 1] - index.cum[a]),
-      distanceM: d,
-      offsetM: sc.bestCross[k] < 0 ? -d : d,
-    });
-  }
-  return out;
-}
-
-/**
  * The candidates of many fixes in flat columns, appended fix by fix: a 100,000-fix trace's candidates take
  * ~14 MB here instead of half a million objects. Candidate c of the whole list has route[c], chainage[c], …
  */
@@ -302,19 +272,12 @@ export class CandidateColumns {
 }
 
 /**
- * candidatesFor, appended to `out` instead of returned as objects; the same values, in the same order.
- * `appendCandidates(index, fix, 16, 5, cols)` → 3, with cols.route/chainage/distance/offset grown by three
- */
-export function appendCandidates(index: CandidateIndex, fix: { lon: number; lat: number }, radiusM: number, max: number, out: CandidateColumns): number {
-  if (!index.tree || max <= 0) return 0;
-  const sc = scratchFor(index);
-  toFrameInto(index, fix.lon, fix.lat, sc.point, 0);
-  return appendCandidatesAt(index, sc.point, 0, radiusM, max, out);
-}
-
-/**
- * appendCandidates for point `at` of points already in the index's frame (toFrameInto): the same candidates.
- * `appendCandidatesAt(index, plane, 7, 16, 5, cols)` → the candidates of the trace's eighth fix
+ * Up to `max` candidates within `radiusM` of point `at` of points in the index's frame (toFrameInto), the best
+ * projection per route, nearest first, appended to `out`. Distances are planar in the index's frame rescaled to
+ * the fix's latitude (≪ 1 mm error within the radius); chainage is the geodesic chainage of the segment's start
+ * plus the segment's geodesic length × the planar fraction, so it agrees with lineLengthM at the vertices and to
+ * ~1e-6 relative within a segment.
+ * `appendCandidatesAt(index, plane, 7, 16, 5, cols)` → 3: the candidates of the trace's eighth fix, cols grown by three
  */
 export function appendCandidatesAt(index: CandidateIndex, pts: FramePoints, at: number, radiusM: number, max: number, out: CandidateColumns): number {
   if (!index.tree || max <= 0) return 0;

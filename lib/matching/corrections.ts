@@ -3,9 +3,8 @@ import { signedOffset } from './offset-profile';
 import { subLine } from './build-sections';
 import type { SectionDraft } from './section-types';
 import type { LonLat, PlannedRouteInput } from './types';
+import { R95_FACTOR } from '../records/accuracy-classes';
 
-/** 95 % radius of a circular normal error with σ per axis [computed: sqrt(−2 ln 0.05)]. */
-const R95 = 2.4477;
 /** boundaries this close (m) are the same boundary: chainages are stored to the millimetre but drawn to the metre */
 const SAME_PLACE_M = 0.5;
 
@@ -67,7 +66,7 @@ function markBuilt(d: SectionDraft, route: PlannedRouteInput, c: Extract<Correct
   if (a - d.fromChainageM > 1e-6) out.push(part(d.fromChainageM, a));
   const built = part(a, b);
   out.push({
-    ...built, status: 'as_planned', maxOffsetM: 0, p95OffsetM: 0, accuracyM: R95 * c.sigmaM,
+    ...built, status: 'as_planned', maxOffsetM: 0, p95OffsetM: 0, accuracyM: R95_FACTOR * c.sigmaM,
     sourceUploadIds: c.sourceUploadId ? [c.sourceUploadId] : [], laidOn: c.laidOn, note: `Counted built on another source: ${c.reason}`, correctionIds: withCorrection(d.correctionIds, c.id),
   });
   if (d.toChainageM - b > 1e-6) out.push(part(b, d.toChainageM));

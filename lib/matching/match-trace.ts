@@ -19,15 +19,6 @@ export function emissionLogProb(distanceM: number, sigmaM: number): number {
   return -0.5 * z * z - Math.log(sigmaM) - LOG_SQRT_2PI;
 }
 
-/**
- * Log of Newson & Krumm's transition density: exponential in how much the route distance between two
- * candidates differs from the great-circle distance between their fixes, p = exp(−|d_route − d_gc|/β) / β.
- * `transitionLogProb(12, 12, 3)` → −log 3
- */
-export function transitionLogProb(routeM: number, greatCircleM: number, betaM: number): number {
-  return -Math.abs(routeM - greatCircleM) / betaM - Math.log(betaM);
-}
-
 /** Fix positions in the candidate index's frame, and ground metres per frame unit at each fix. */
 function toPlane(fixes: Fix[], index: CandidateIndex): FramePoints {
   const n = fixes.length;

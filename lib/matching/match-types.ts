@@ -58,19 +58,6 @@ export interface MatchResult {
   pieces: number;
 }
 
-/** A possible position of one fix on one route (the best projection onto that route). */
-export interface Candidate {
-  /** index into the routes the candidate index was built from */
-  route: number;
-  ref: string;
-  /** index of the segment (vertex i → i + 1) holding the foot point */
-  segment: number;
-  chainageM: number;
-  distanceM: number;
-  /** + left of the route direction */
-  offsetM: number;
-}
-
 /** Options with their defaults filled in. */
 export type ResolvedMatchOptions = Required<MatchOptions>;
 

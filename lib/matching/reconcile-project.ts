@@ -9,8 +9,7 @@ import type { Fix, MatchedFix } from './match-types';
 import { buildRouteGraph } from './route-graph';
 import type { RouteObservations, SectionDraft } from './section-types';
 import type { LonLat, PlannedRouteInput } from './types';
-
-const R95 = 2.4477;
+import { R95_FACTOR } from '../records/accuracy-classes';
 
 /** Matching is CPU work; between traces it lets the process serve other requests (the web server runs jobs too). */
 const breathe = () => new Promise<void>((resolve) => setImmediate(resolve));
@@ -160,7 +159,7 @@ export async function reconcileProject(
         const bias = up.surveyGrade ? 0 : 1;
         drafts.push({
           ref: null, fromChainageM: 0, toChainageM: lengthM, status: 'unplanned', coords, lengthM,
-          maxOffsetM: 0, p95OffsetM: 0, accuracyM: R95 * Math.sqrt((up.sigmaM * up.sigmaM) / (2 * k + 1) + bias * bias),
+          maxOffsetM: 0, p95OffsetM: 0, accuracyM: R95_FACTOR * Math.sqrt((up.sigmaM * up.sigmaM) / (2 * k + 1) + bias * bias),
           sourceUploadIds: [up.uploadId], laidOn: up.laidOn,
         });
       }

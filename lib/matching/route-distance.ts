@@ -1,11 +1,5 @@
 import type { PlannedRouteInput, RouteGraph } from './types';
 
-/** A position on a route: the route's index in the candidate index's route list, and metres along it. */
-export interface RoutePosition {
-  route: number;
-  chainageM: number;
-}
-
 /**
  * The planned graph prepared for shortest paths: adjacency in flat arrays (CSR), each route's edges sorted
  * by chainage, and bounded Dijkstra results cached per source node.
@@ -70,7 +64,7 @@ export interface RouteNetwork {
   /** Dijkstra's binary heap (lazy deletion: at most one entry per relaxation, so 2 × edges + 1 slots) */
   heapNode: Int32Array;
   heapKey: Float64Array;
-  /** where positionDistanceInto writes its answer ([0]), and where positionDistance passes its bound ([1]) */
+  /** where positionDistanceInto writes its answer ([0]), and a spare slot for a caller's bound ([1]) */
   distance: Float64Array;
 }
 
@@ -82,7 +76,7 @@ const POOL_LIMIT = 1 << 19;
 const PAIR_MIN_BOUND_M = 128;
 
 /**
- * Prepares `graph` (built from the same routes, in any order) for routeDistanceM.
+ * Prepares `graph` (built from the same routes, in any order) for network distances (positionDistanceInto).
  * `edgeAtChainage(makeRouteNetwork(buildRouteGraph(routes), routes), 0, 0)` → the first edge of routes[0]
  */
 export function makeRouteNetwork(graph: RouteGraph, routes: PlannedRouteInput[]): RouteNetwork {
@@ -325,21 +319,12 @@ function pairDistance(net: RouteNetwork, h: number, which: number): void {
 }
 
 /**
- * Network distance between positions x and y of `p` (routeDistanceM for positions whose edges and legs
- * locatePositions has found).
- * `positionDistance(net, cols, 0, 1, 100)` → 15 for positions 10 m and 25 m along one route
- */
-export function positionDistance(net: RouteNetwork, p: PositionColumns, x: number, y: number, boundM: number): number {
-  // the bound goes in the answer's column, one slot on: it is read before the answer is written
-  net.distance[1] = boundM;
-  positionDistanceInto(net, p, x, y, net.distance, 1);
-  return net.distance[0];
-}
-
-/**
- * positionDistance bounded by bounds[b], written to net.distance[0], for the matcher's hot loops: it asks
- * with indices and reads the answer from a column, so that no number crosses a call (V8 boxes a number
- * passed to or returned from a call it does not inline, an allocation each).
+ * Network distance between positions x and y of `p` (their edges and legs found by locatePositions):
+ * |Δchainage| on one route; across routes the shortest path over the graph from x's edge ends to y's edge
+ * ends. Paths longer than bounds[b] count as unreachable (Infinity), which keeps each search small. Written to
+ * net.distance[0], for the matcher's hot loops: it asks with indices and reads the answer from a column, so
+ * that no number crosses a call (V8 boxes a number passed to or returned from a call it does not inline, an
+ * allocation each).
  */
 export function positionDistanceInto(net: RouteNetwork, p: PositionColumns, x: number, y: number, bounds: Float64Array, b: number): void {
   const boundM = bounds[b];
@@ -405,25 +390,4 @@ export function locatePositions(net: RouteNetwork, p: PositionColumns, from: num
     p.leg0[c] = Math.max(p.chainage[c] - net.edgeFrom[e], 0);
     p.leg1[c] = Math.max(net.edgeTo[e] - p.chainage[c], 0);
   }
-}
-
-/**
- * positionDistance from each of the positions a … a + na − 1 to each of b … b + nb − 1, row-major into
- * `out`: the matcher asks for one layer's transitions in one call.
- * `routeDistanceMatrix(net, cols, 0, 2, 2, 3, 70, out)` → out[0 … 5] = distances from positions 0, 1 to 2, 3, 4
- */
-export function routeDistanceMatrix(net: RouteNetwork, p: PositionColumns, a: number, na: number, b: number, nb: number, boundM: number, out: Float64Array): void {
-  for (let i = 0; i < na; i++) for (let j = 0; j < nb; j++) out[i * nb + j] = positionDistance(net, p, a + i, b + j, boundM);
-}
-
-/**
- * Network distance between two positions on the plan: |Δchainage| on one route; across routes the shortest
- * path over the graph from a's edge ends to b's edge ends. Paths longer than `boundM` count as unreachable
- * (Infinity), which keeps each search small.
- * `routeDistanceM(net, { route: 0, chainageM: 10 }, { route: 0, chainageM: 25 }, 100)` → 15
- */
-export function routeDistanceM(net: RouteNetwork, a: RoutePosition, b: RoutePosition, boundM: number): number {
-  const p: PositionColumns = { route: Int32Array.of(a.route, b.route), chainage: Float64Array.of(a.chainageM, b.chainageM), edge: new Int32Array(2), leg0: new Float64Array(2), leg1: new Float64Array(2) };
-  locatePositions(net, p, 0, 2);
-  return positionDistance(net, p, 0, 1, boundM);
 }

@@ -10,51 +10,9 @@ export interface ViterbiResult {
 }
 
 /**
- * Best path through `counts.length` layers of `counts[k]` states each. `emission(k, j)` is the log probability of
- * state j of layer k, `transition(k, i, j)` that of moving from state i of layer k − 1 to state j of layer k.
- * A layer that no state can reach (every transition −Infinity, or every emission −Infinity) starts a new chain,
- * as Newson & Krumm (2009) restart the HMM after a break: the chain before it ends at its own best state.
- * Every layer needs at least one state.
- * `viterbi([2, 2], (k, j) => (j === k ? 0 : -5), () => 0).path` → `Int32Array [0, 1]`
- */
-export function viterbi(
-  counts: ArrayLike<number>,
-  emission: (layer: number, state: number) => number,
-  transition: (layer: number, from: number, to: number) => number,
-): ViterbiResult {
-  let total = 0;
-  for (let k = 0; k < counts.length; k++) total += counts[k] >= 1 ? counts[k] : 0;
-  const emissions = new Float64Array(total);
-  for (let k = 0, c = 0; k < counts.length; k++) for (let j = 0; j < counts[k]; j++) emissions[c++] = emission(k, j);
-  return viterbiLayers(counts, emissions, (k, out) => {
-    const [pm, m] = [counts[k - 1], counts[k]];
-    for (let i = 0; i < pm; i++) for (let j = 0; j < m; j++) out[i * m + j] = transition(k, i, j);
-  });
-}
-
-/**
- * viterbi with the emissions of all states in one flat array (layer by layer) and the transitions into
- * each layer filled in at once: `transitions(k, out)` sets out[i · counts[k] + j] for every state i of
- * layer k − 1 and j of layer k. One call a layer instead of one a pair of states.
- * `viterbiLayers([2, 2], Float64Array.of(0, -5, -5, 0), (k, out) => out.fill(0)).path` → `Int32Array [0, 1]`
- */
-export function viterbiLayers(counts: ArrayLike<number>, emissions: Float64Array, transitions: (layer: number, out: Float64Array) => void): ViterbiResult {
-  let trans = new Float64Array(0);
-  let filled = -1;
-  // the pruned recursion with no bound on a transition asks for every one: the layer's matrix, filled once
-  return viterbiPruned(counts, emissions, Infinity, (k, i, j, out) => {
-    if (filled !== k) {
-      const size = counts[k - 1] * counts[k];
-      if (trans.length < size) trans = new Float64Array(size);
-      transitions(k, trans);
-      filled = k;
-    }
-    out[0] = trans[i * counts[k] + j];
-  });
-}
-
-/**
- * The recursion behind viterbiLayers, with each transition asked for only when it can matter: no transition
+ * The best path through `counts.length` layers of `counts[k]` states each, the emissions of all states in one
+ * flat array, layer by layer; as Newson & Krumm (2009) restart the HMM after a break, a layer nothing reaches
+ * starts a new chain (the chain before it ends at its own best state). Each transition is asked for only when it can matter: no transition
  * is more likely than `maxTransition` (for Newson & Krumm's exponential, −log β), so once a state's best
  * predecessor so far beats what any less likely predecessor could reach even with that transition, the rest
  * are not asked. Predecessors are tried most likely first; ties go to the lowest predecessor index, as in

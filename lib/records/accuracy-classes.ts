@@ -24,5 +24,11 @@ export const DEFAULT_SIGMA_M: Record<AccuracyClass, number> = {
   unknown: 5,
 };
 
-/** 95 % horizontal radius of a circular normal error with σ per axis: R95 = 2.4477 σ [computed]. */
+/**
+ * The 95 % horizontal radius of a circular normal error, in units of its σ per axis: the radius r with
+ * P(|e| ≤ r) = 1 − exp(−r² / 2σ²) = 0.95 (the Rayleigh distribution), r = σ √(−2 ln 0.05) = 2.44775 σ, the
+ * square root of the chi-square 95 % quantile for 2 degrees of freedom (5.9915) [computed]; rounded to 2.4477
+ * as every stored section's radius has been. The one definition: matching, corrections and the pages use it.
+ * `R95_FACTOR * 0.02` → 0.049 m, the 95 % radius of an RTK fix of σ 2 cm
+ */
 export const R95_FACTOR = 2.4477;

@@ -1,13 +1,14 @@
 import { describe, expect, it } from 'vitest';
-import { appendCandidates, appendCandidatesAt, CandidateColumns, candidatesFor, makeCandidateIndex, toFrameInto } from '@/lib/matching/candidates';
+import { appendCandidatesAt, CandidateColumns, makeCandidateIndex, toFrameInto } from '@/lib/matching/candidates';
 import { lonDelta } from '@/lib/matching/chainage';
 import { buildRouteGraph } from '@/lib/matching/route-graph';
-import { locatePositions, makeRouteNetwork, routeDistanceM, routeDistanceMatrix, type PositionColumns } from '@/lib/matching/route-distance';
-import { viterbi, viterbiLayers, viterbiPruned } from '@/lib/matching/viterbi';
+import { locatePositions, makeRouteNetwork, type PositionColumns } from '@/lib/matching/route-distance';
+import { viterbiPruned } from '@/lib/matching/viterbi';
 import { SortedWindow, WindowExtremes } from '@/lib/matching/sliding-window';
 import { Scratch } from '@/lib/matching/scratch';
 import { seqLookup } from '@/lib/matching/reconcile-project';
 import { stableOrder } from '@/lib/matching/build-sections';
+import { candidatesFor, routeDistanceM, routeDistanceMatrix, viterbi, viterbiLayers } from '../../helpers/matching';
 import { gridScenario, mulberry32, streetScenario } from './scenario';
 
 // The matcher keeps a long trace's candidates in typed columns, finds a layer's route distances at once behind
@@ -15,37 +16,27 @@ import { gridScenario, mulberry32, streetScenario } from './scenario';
 // replaces, value for value: the bench figures in the README rest on these giving the same matches.
 
 describe('compact candidates', () => {
-  it('appendCandidates gives exactly what candidatesFor gives, fix after fix, past the columns growing', () => {
+  it('a trace\'s candidates appended to one set of columns are each fix\'s own, past the columns growing', () => {
     const gs = gridScenario(4, { blocks: 4, fixes: 3000 });
-    const index = makeCandidateIndex(gs.routes);
-    const cols = new CandidateColumns();
-    let checked = 0;
-    for (const { fix } of gs.handheld) {
-      const at = cols.length;
-      const n = appendCandidates(index, fix, 16.5, 5, cols);
-      const plain = candidatesFor(index, fix, 16.5, 5);
-      expect(n).toBe(plain.length);
-      plain.forEach((c, i) => {
-        expect([cols.route[at + i], cols.chainage[at + i], cols.distance[at + i], cols.offset[at + i]]).toEqual([c.route, c.chainageM, c.distanceM, c.offsetM]);
-        checked++;
-      });
-    }
-    expect(cols.length).toBe(checked);
-    expect(checked).toBeGreaterThan(1024 * 4); // the columns started at 1,024 and grew
-  });
-
-  it('appendCandidatesAt on the fixes in the frame columns gives what appendCandidates gives', () => {
-    const gs = gridScenario(5, { blocks: 3, fixes: 1500 });
     const index = makeCandidateIndex(gs.routes);
     const n = gs.handheld.length;
     const plane = { x: new Float64Array(n), y: new Float64Array(n), kx: new Float64Array(n), ky: new Float64Array(n) };
     gs.handheld.forEach(({ fix }, i) => toFrameInto(index, fix.lon, fix.lat, plane, i));
-    const [a, b] = [new CandidateColumns(), new CandidateColumns()];
-    gs.handheld.forEach(({ fix }, i) => expect(appendCandidatesAt(index, plane, i, 16.5, 5, a)).toBe(appendCandidates(index, fix, 16.5, 5, b)));
-    expect(a.length).toBeGreaterThan(n);
-    expect([...a.route.subarray(0, a.length)]).toEqual([...b.route.subarray(0, b.length)]);
-    expect([...a.chainage.subarray(0, a.length)]).toEqual([...b.chainage.subarray(0, b.length)]);
-    expect([...a.offset.subarray(0, a.length)]).toEqual([...b.offset.subarray(0, b.length)]);
+    const cols = new CandidateColumns();
+    let checked = 0;
+    gs.handheld.forEach(({ fix }, i) => {
+      const at = cols.length;
+      const got = appendCandidatesAt(index, plane, i, 16.5, 5, cols);
+      // the same fix searched alone, into columns of its own
+      const alone = candidatesFor(index, fix, 16.5, 5);
+      expect(got).toBe(alone.length);
+      alone.forEach((c, j) => {
+        expect([cols.route[at + j], cols.chainage[at + j], cols.distance[at + j], cols.offset[at + j]]).toEqual([c.route, c.chainageM, c.distanceM, c.offsetM]);
+        checked++;
+      });
+    });
+    expect(cols.length).toBe(checked);
+    expect(checked).toBeGreaterThan(1024 * 4); // the columns started at 1,024 and grew
   });
 
   it('lonDelta is the remainder formula, number for number, near the origin and across the antimeridian', () => {
@@ -65,7 +56,11 @@ describe('route distances a layer at a time', () => {
     const index = makeCandidateIndex(gs.routes);
     const cols = new CandidateColumns();
     const first = [0];
-    for (const { fix } of gs.handheld) if (appendCandidates(index, fix, 16.5, 5, cols) > 0) first.push(cols.length);
+    const plane = { x: new Float64Array(1), y: new Float64Array(1), kx: new Float64Array(1), ky: new Float64Array(1) };
+    for (const { fix } of gs.handheld) {
+      toFrameInto(index, fix.lon, fix.lat, plane, 0);
+      if (appendCandidatesAt(index, plane, 0, 16.5, 5, cols) > 0) first.push(cols.length);
+    }
     const net = makeRouteNetwork(graph, gs.routes);
     const n = cols.length;
     const pos: PositionColumns = { route: cols.route, chainage: cols.chainage, edge: new Int32Array(n), leg0: new Float64Array(n), leg1: new Float64Array(n) };

@@ -1,9 +1,9 @@
 import { describe, expect, it } from 'vitest';
-import { candidatesFor, makeCandidateIndex } from '@/lib/matching/candidates';
-import { emissionLogProb, matchTrace, transitionLogProb } from '@/lib/matching/match-trace';
+import { makeCandidateIndex } from '@/lib/matching/candidates';
+import { emissionLogProb, matchTrace } from '@/lib/matching/match-trace';
 import type { MatchResult, MatchedFix } from '@/lib/matching/match-types';
 import { buildRouteGraph } from '@/lib/matching/route-graph';
-import { viterbi } from '@/lib/matching/viterbi';
+import { candidatesFor, viterbi } from '../../helpers/matching';
 import { geo, gridScenario, metres, nearestXY, streetScenario, truthChainage, type TruthFix, type XY } from './scenario';
 
 // Truth is known by construction (scenario.ts); every truth metric below is GeographicLib or planar scenario
@@ -26,11 +26,6 @@ describe('Newson & Krumm model', () => {
     for (const sigma of [0.05, 4, 10]) expect(Math.exp(emissionLogProb(sigma, sigma) - emissionLogProb(0, sigma))).toBeCloseTo(0.6065, 4);
   });
 
-  it('transition is exponential in |route − great-circle|: 1/e per β of difference (eq. 2)', () => {
-    expect(Math.exp(transitionLogProb(13, 10, 3) - transitionLogProb(10, 10, 3))).toBeCloseTo(Math.exp(-1), 12);
-    expect(transitionLogProb(7, 10, 3)).toBeCloseTo(transitionLogProb(13, 10, 3), 12);
-  });
-
   it('viterbi picks the best path and restarts after a layer nothing can reach', () => {
     const em = [[0, -5], [-5, 0], [0, -1]];
     const r = viterbi([2, 2, 2], (k, j) => em[k][j], (k, i, j) => (k === 2 ? -Infinity : i === j ? 0 : -1));
@@ -41,7 +36,7 @@ describe('Newson & Krumm model', () => {
   });
 });
 
-describe('candidatesFor', () => {
+describe('the candidate search', () => {
   it('returns the best projection per route, nearest first, with geodesic chainage and a signed offset', () => {
     const sc = streetScenario(3);
     const index = makeCandidateIndex(sc.routes);
