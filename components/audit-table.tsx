@@ -1,17 +1,8 @@
 import type { AuditEntry } from '@/db/audit';
 import { DataTable } from '@/components/ui/data-table';
+import { describeAudit, words } from './audit-words';
 
-function summarise(before: unknown, after: unknown): string {
-  if (!before || !after || typeof before !== 'object' || typeof after !== 'object') {
-    return after ? JSON.stringify(after).slice(0, 160) : '';
-  }
-  const b = before as Record<string, unknown>;
-  const a = after as Record<string, unknown>;
-  const changed = Object.keys(a).filter((k) => JSON.stringify(a[k]) !== JSON.stringify(b[k]));
-  return changed.map((k) => `${k}: ${JSON.stringify(b[k])} → ${JSON.stringify(a[k])}`).join('; ').slice(0, 240);
-}
-
-/** The audit log as a sortable table, newest first, with what changed spelled out. */
+/** The audit log as a sortable table, newest first, each entry a sentence of what changed. */
 export function AuditTable({ entries, timeZone }: { entries: AuditEntry[]; timeZone: string }) {
   const fmt = new Intl.DateTimeFormat('en-GB', { dateStyle: 'medium', timeStyle: 'medium', timeZone });
   return (
@@ -19,20 +10,18 @@ export function AuditTable({ entries, timeZone }: { entries: AuditEntry[]; timeZ
       label="Activity"
       empty="Nothing recorded yet."
       columns={[
-        { key: 'at', label: 'When' },
-        { key: 'who', label: 'Who' },
-        { key: 'object', label: 'Object' },
-        { key: 'action', label: 'What' },
-        { key: 'change', label: 'Change' },
+        { key: 'change', label: 'What happened' },
+        { key: 'at', label: 'When', priority: 1 },
+        { key: 'who', label: 'Who', priority: 1 },
+        { key: 'object', label: 'About' },
       ]}
       rows={entries.map((e) => ({
         id: String(e.id),
         cells: {
           at: { text: fmt.format(new Date(e.at)), sort: e.at },
-          who: e.actorLabel,
-          object: `${e.objectType} ${e.objectId.slice(0, 8)}`,
-          action: e.action,
-          change: summarise(e.before, e.after),
+          who: e.actorLabel.replace(/\s*<[^>]*>$/, ''),
+          object: words(e.objectType),
+          change: describeAudit(e),
         },
       }))}
     />

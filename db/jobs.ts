@@ -108,3 +108,9 @@ export function publicJob(job: Job) {
   const resultUrl = status === 'completed' && typeof result?.storageKey === 'string' ? `/api/jobs/${id}/result` : null;
   return { id, kind, status, progress, message, projectId, createdAt, finishedAt, resultUrl };
 }
+
+/** A project's latest jobs, newest first: the project page shows what ran and how it ended. */
+export async function listRecentJobs(db: Db, projectId: string, limit = 5): Promise<Job[]> {
+  const rows = await db<JobRow>('jobs').where({ project_id: projectId }).orderBy('created_at', 'desc').limit(limit);
+  return rows.map(toDto);
+}

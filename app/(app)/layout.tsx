@@ -13,14 +13,15 @@ export default async function AppLayout({ children }: { children: React.ReactNod
   return (
     <div className="min-h-screen">
       <header className="border-b border-ink/10 bg-paper-raised">
-        <div className="mx-auto flex max-w-6xl flex-wrap items-center gap-x-6 gap-y-2 px-4 py-3">
-          <Link href="/projects" className="flex items-center gap-2 text-ink no-underline hover:no-underline">
+        {/* one row at every width: on a phone the mark stands for the name and the links scroll sideways */}
+        <div className="mx-auto flex max-w-6xl items-center gap-x-3 px-4 py-2 sm:gap-x-6 sm:py-3">
+          <Link href="/projects" className="flex shrink-0 items-center gap-2 text-ink no-underline hover:no-underline" aria-label="Trenchbook, all projects">
             <BrandMark />
-            <span className="text-lg font-semibold tracking-tight">Trenchbook</span>
+            <span className="hidden text-lg font-semibold tracking-tight sm:inline">Trenchbook</span>
           </Link>
           <NavLinks items={navigationFor(me.role)} />
-          <div className="ml-auto flex items-center gap-3 text-sm">
-            <span className="text-right leading-tight">
+          <div className="ml-auto flex shrink-0 items-center gap-3 text-sm">
+            <span className="hidden text-right leading-tight md:block">
               <span className="block font-medium">{me.name}</span>
               <span className="block text-xs text-ink-soft" data-testid="whoami">
                 {ROLE_LABELS[me.role]} · {me.organisationName}
@@ -30,7 +31,7 @@ export default async function AppLayout({ children }: { children: React.ReactNod
           </div>
         </div>
       </header>
-      <main className="mx-auto max-w-6xl px-4 py-8">{children}</main>
+      <main className="mx-auto max-w-6xl px-4 py-5 sm:py-8">{children}</main>
     </div>
   );
 }

@@ -69,6 +69,7 @@ export function ProjectForm({
       if (problem) local.accuracySigmas = problem;
       else accuracySigmas[c] = v;
     }
+    if (!s('name')) local.name = 'Name the project.';
     if (partner && !s('partnerOrganisationId')) local.partnerOrganisationId = `Pick the ${partner.label.toLowerCase()} from the list, or register it first.`;
     if (Object.keys(local).length) {
       setErrors(local);

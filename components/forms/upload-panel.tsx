@@ -5,6 +5,7 @@ import { useCallback, useEffect, useRef, useState } from 'react';
 import { ACCURACY_CLASS_LABELS } from '@/lib/records/accuracy-classes';
 import { Badge, Button, Field, Input, Select } from '@/components/ui/primitives';
 import { callApi } from './api-client';
+import { explainRefusal as explain, plural, RETRYABLE, storedMessage } from '@/components/ui/upload-words';
 
 type ItemState = 'mapping' | 'uploading' | 'parsing' | 'stored' | 'duplicate' | 'failed';
 
@@ -15,6 +16,8 @@ interface Item {
   sent: number;
   total: number;
   message: string;
+  /** the server's own words, where they say where in the file */
+  detail?: string;
   errorCode?: string;
   uploadId?: string;
   columns?: { headers: string[]; map: Record<string, string>; guessed: boolean };
@@ -69,7 +72,10 @@ export function UploadPanel({ projectId, defaultAccuracy, defaultCrs }: { projec
   const router = useRouter();
   const [items, setItems] = useState<Item[]>([]);
   const [hover, setHover] = useState(false);
-  const [settings, setSettings] = useState({ accuracy: defaultAccuracy, surveyDate: '', crew: '', content: 'trench', crs: '' });
+  const projectCode = defaultCrs.replace(/^EPSG:/i, '');
+  // prefilled with the project's grid; sent for survey CSVs (their eastings and northings need it) and,
+  // once someone changes it, for every file: a GeoJSON or shapefile would otherwise be read in that grid
+  const [settings, setSettings] = useState({ accuracy: defaultAccuracy, surveyDate: '', crew: '', content: 'trench', crs: projectCode, crsChanged: false });
   const [crsOptions, setCrsOptions] = useState<{ code: string; name: string }[]>([]);
   const input = useRef<HTMLInputElement>(null);
   const settingsRef = useRef(settings);
@@ -90,7 +96,8 @@ export function UploadPanel({ projectId, defaultAccuracy, defaultCrs }: { projec
   const formFor = (files: File[], extra: Record<string, string> = {}) => {
     const s = settingsRef.current;
     const form = new FormData();
-    for (const [k, v] of Object.entries({ accuracy: s.accuracy, surveyDate: s.surveyDate, crew: s.crew, content: s.content, crs: s.crs.trim(), ...extra })) if (v) form.append(k, v);
+    const crs = s.crsChanged || (files.length === 1 && looksLikeCsv(files[0])) ? s.crs.trim() : '';
+    for (const [k, v] of Object.entries({ accuracy: s.accuracy, surveyDate: s.surveyDate, crew: s.crew, content: s.content, crs, ...extra })) if (v) form.append(k, v);
     for (const f of files) form.append('file', f, f.name);
     return form;
   };
@@ -111,13 +118,14 @@ export function UploadPanel({ projectId, defaultAccuracy, defaultCrs }: { projec
       patch(item.key, {
         state: res.status === 201 ? 'stored' : 'duplicate',
         uploadId: u.id,
-        message: res.status === 201 ? `${u.featureCount} features, ${u.pointCount} points${u.warnings.length ? ` · ${u.warnings.join(' · ')}` : ''}` : 'Already uploaded to this project: nothing new stored.',
+        message: res.status === 201 ? `${storedMessage(u)}${u.warnings.length ? ` Note: ${u.warnings.join(' · ')}` : ''}` : 'This file is already in the project: nothing new was stored.',
       });
     } else {
-      patch(item.key, { state: 'failed', message: err?.message ?? `The server answered ${res.status}.`, errorCode: err?.code, uploadId: err?.details?.uploadId });
+      const why = explain(err?.code, err?.message ?? `The server answered ${res.status}.`, defaultCrs);
+      patch(item.key, { state: 'failed', message: why.text, detail: why.detail, errorCode: err?.code, uploadId: err?.details?.uploadId });
     }
     router.refresh();
-  }, [projectId, router]);
+  }, [projectId, router, defaultCrs]);
 
   const preview = useCallback(async (item: Item) => {
     // the first 256 kB, cut at a line end, is enough to read the header and guess the columns
@@ -127,10 +135,10 @@ export function UploadPanel({ projectId, defaultAccuracy, defaultCrs }: { projec
     const res = await fetch(`/api/projects/${projectId}/uploads/preview`, { method: 'POST', body: form });
     const body = await res.json().catch(() => null);
     if (res.ok && body?.preview?.columns) {
-      patch(item.key, { state: 'mapping', columns: body.preview.columns, sample: sampleRows(cut), message: `${body.preview.pointCount} points in the first part of the file${body.preview.columns.guessed ? '; columns guessed from the headers — check them' : ''}.` });
+      patch(item.key, { state: 'mapping', columns: body.preview.columns, sample: sampleRows(cut), message: `${plural(body.preview.pointCount, 'point')} in the first part of the file.${body.preview.columns.guessed ? ' The columns below were recognised from the header: check them, then upload.' : ''}` });
     } else if (body?.error?.code === 'crs_required') {
       const sample = sampleRows(cut);
-      patch(item.key, { state: 'mapping', sample, columns: body.error.details?.columns ?? { headers: sample[0] ?? [], map: {}, guessed: true }, message: `${body.error.message}. Choose it in "Coordinate system" above, then upload.` });
+      patch(item.key, { state: 'mapping', sample, columns: body.error.details?.columns ?? { headers: sample[0] ?? [], map: {}, guessed: true }, message: 'The file has eastings and northings but does not say in which grid. Enter its EPSG number under "Coordinate system" above, check the columns, then upload.' });
     } else {
       // not a survey CSV after all, or unreadable: send it as it is and let the server say what is wrong
       void upload(item);
@@ -147,10 +155,14 @@ export function UploadPanel({ projectId, defaultAccuracy, defaultCrs }: { projec
   };
 
   const retry = async (item: Item, crs: string) => {
-    patch(item.key, { state: 'parsing', message: 'Reading the stored original again…' });
-    const res = await callApi<{ upload: { featureCount: number; pointCount: number } }>(`/api/projects/${projectId}/uploads/${item.uploadId}/retry`, 'POST', { crs });
-    if (res.ok) patch(item.key, { state: 'stored', errorCode: undefined, message: `${res.data.upload.featureCount} features, ${res.data.upload.pointCount} points` });
-    else patch(item.key, { state: 'failed', message: res.message });
+    patch(item.key, { state: 'parsing', message: 'Reading the stored file again…', detail: undefined });
+    const res = await fetch(`/api/projects/${projectId}/uploads/${item.uploadId}/retry`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ crs }) });
+    const body = await res.json().catch(() => null);
+    if (res.ok) patch(item.key, { state: 'stored', errorCode: undefined, message: storedMessage(body.upload) });
+    else {
+      const why = explain(body?.error?.code, body?.error?.message ?? `The server answered ${res.status}.`, defaultCrs);
+      patch(item.key, { state: 'failed', errorCode: body?.error?.code, message: why.text, detail: why.detail });
+    }
     router.refresh();
   };
 
@@ -177,10 +189,10 @@ export function UploadPanel({ projectId, defaultAccuracy, defaultCrs }: { projec
         <Field label="Crew" htmlFor="up-crew">
           <Input id="up-crew" value={settings.crew} onChange={(e) => setSettings({ ...settings, crew: e.target.value })} placeholder="e.g. Crew 2" />
         </Field>
-        <Field label="Coordinate system" htmlFor="up-crs" hint={`Only when the file does not say; project default ${defaultCrs}.`}>
-          <Input id="up-crs" list="up-crs-options" value={settings.crs} onChange={(e) => setSettings({ ...settings, crs: e.target.value })} placeholder="EPSG code or name" />
+        <Field label="Coordinate system" htmlFor="up-crs" hint={`EPSG number of the grid, for files that do not say (survey CSVs with eastings and northings). Project's usual grid: ${projectCode}.`}>
+          <Input id="up-crs" list="up-crs-options" value={settings.crs} onChange={(e) => setSettings({ ...settings, crs: e.target.value, crsChanged: true })} placeholder="e.g. 25832, or a name to search" />
           <datalist id="up-crs-options">
-            {crsOptions.map((o) => <option key={o.code} value={o.code}>{o.name}</option>)}
+            {crsOptions.map((o) => <option key={o.code} value={o.code.replace(/^EPSG:/i, '')}>{o.name}</option>)}
           </datalist>
         </Field>
       </div>
@@ -213,8 +225,19 @@ export function UploadPanel({ projectId, defaultAccuracy, defaultCrs }: { projec
                 <progress className="h-2 w-full accent-brand" max={it.total || 1} value={it.state === 'parsing' ? it.total || 1 : it.sent} aria-label={`Progress of ${it.files[0].name}`} />
               )}
               <p className={it.state === 'failed' ? 'font-medium text-status-bad' : 'text-ink-soft'} role={it.state === 'failed' ? 'status' : undefined}>{it.message}</p>
+              {it.state === 'failed' && it.detail && (
+                <details className="text-xs text-ink-soft">
+                  <summary className="cursor-pointer">Where in the file</summary>
+                  <p className="mt-1 break-words">{it.detail}</p>
+                </details>
+              )}
               {it.state === 'mapping' && it.columns && <ColumnMapper item={it} onUpload={(map) => upload(it, map)} />}
-              {it.state === 'failed' && it.errorCode === 'crs_required' && it.uploadId && <RetryWithCrs onRetry={(crs) => retry(it, crs)} />}
+              {it.state === 'failed' && it.errorCode && RETRYABLE.has(it.errorCode) && it.uploadId && (
+                <RetryWithCrs itemKey={it.key} initial={settings.crs.trim() || projectCode} onRetry={(crs) => retry(it, crs)} />
+              )}
+              {it.state === 'failed' && (!it.errorCode || !RETRYABLE.has(it.errorCode)) && it.uploadId && (
+                <p className="text-xs text-ink-soft">Correct the file and upload it again; the refused one stays listed below with its original.</p>
+              )}
             </li>
           ))}
         </ul>
@@ -251,14 +274,16 @@ function ColumnMapper({ item, onUpload }: { item: Item; onUpload: (map: Record<s
   );
 }
 
-function RetryWithCrs({ onRetry }: { onRetry: (crs: string) => void }) {
-  const [crs, setCrs] = useState('');
+/** Reads the refused upload's stored file again in another grid: nothing is sent twice. */
+function RetryWithCrs({ itemKey, initial, onRetry }: { itemKey: string; initial: string; onRetry: (crs: string) => void }) {
+  const [crs, setCrs] = useState(initial);
+  const id = `retry-crs-${itemKey}`;
   return (
     <div className="flex flex-wrap items-end gap-2">
-      <Field label="EPSG code of the file" htmlFor="retry-crs">
-        <Input id="retry-crs" value={crs} onChange={(e) => setCrs(e.target.value)} placeholder="EPSG:25833" />
+      <Field label="Coordinate system of this file (EPSG number)" htmlFor={id}>
+        <Input id={id} value={crs} onChange={(e) => setCrs(e.target.value)} placeholder="e.g. 25832" inputMode="numeric" />
       </Field>
-      <Button type="button" onClick={() => onRetry(crs.trim())}>Read again</Button>
+      <Button type="button" disabled={!crs.trim()} onClick={() => onRetry(crs.trim())}>Read it again</Button>
     </div>
   );
 }

@@ -2,7 +2,7 @@
 
 import maplibregl from 'maplibre-gl';
 import 'maplibre-gl/dist/maplibre-gl.css';
-import { useEffect, useRef } from 'react';
+import { useEffect, useRef, useState } from 'react';
 import type { FeatureCollection } from 'geojson';
 
 export interface MapLayer {
@@ -28,14 +28,18 @@ function bounds(layers: MapLayer[]): [number, number, number, number] | null {
 /** A map of GeoJSON layers over a plain background: no external basemap or tiles are needed. */
 export function GeoMap({ layers, label, height = 420 }: { layers: MapLayer[]; label: string; height?: number }) {
   const ref = useRef<HTMLDivElement>(null);
+  const [ready, setReady] = useState(false);
   useEffect(() => {
     if (!ref.current) return;
+    setReady(false);
     const map = new maplibregl.Map({
       container: ref.current,
       style: { version: 8, sources: {}, layers: [{ id: 'paper', type: 'background', paint: { 'background-color': '#f1efe8' } }] },
       center: [0, 0],
       zoom: 1,
       attributionControl: false,
+      // on a touch screen one finger scrolls the page and two move the map, so the map is no scroll trap
+      cooperativeGestures: window.matchMedia('(pointer: coarse)').matches,
     });
     map.addControl(new maplibregl.NavigationControl({ showCompass: false }), 'top-right');
     map.addControl(new maplibregl.ScaleControl({ unit: 'metric' }), 'bottom-left');
@@ -55,13 +59,22 @@ export function GeoMap({ layers, label, height = 420 }: { layers: MapLayer[]; la
       if (b) map.fitBounds([[b[0], b[1]], [b[2], b[3]]], { padding: 40, maxZoom: 19, duration: 0 });
     });
     map.on('idle', () => {
+      setReady(true);
       (window as unknown as { __map?: { loaded: boolean } }).__map = { loaded: true };
     });
     return () => map.remove();
   }, [layers]);
   return (
     <figure>
-      <div ref={ref} role="region" aria-label={label} className="w-full overflow-hidden rounded-lg border border-ink/10" style={{ height }} />
+      <div className="relative">
+        <div ref={ref} role="region" aria-label={label} aria-busy={!ready} className="w-full overflow-hidden rounded-lg border border-ink/10" style={{ height: `min(${height}px, 65vh)` }} />
+        {!ready && (
+          <div role="status" className="pointer-events-none absolute inset-0 flex items-center justify-center gap-2 rounded-lg bg-paper/70 text-sm text-ink-soft">
+            <span aria-hidden="true" className="h-4 w-4 animate-spin rounded-full border-2 border-brand border-t-transparent" />
+            Loading the map…
+          </div>
+        )}
+      </div>
       <figcaption className="mt-1 text-xs text-ink-soft">
         Positions shown are records, not a locate. Before any digging, verify utilities on site (detection, hand-dug trial holes) and follow local codes and licensed practice.
       </figcaption>

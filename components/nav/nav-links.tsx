@@ -7,8 +7,8 @@ import type { NavItem } from '@/lib/auth/navigation';
 export function NavLinks({ items, label = 'Main' }: { items: NavItem[]; label?: string }) {
   const path = usePathname();
   return (
-    <nav aria-label={label}>
-      <ul className="flex flex-wrap gap-1 text-sm">
+    <nav aria-label={label} className="min-w-0 overflow-x-auto [scrollbar-width:none]">
+      <ul className="flex gap-1 whitespace-nowrap text-sm">
         {items.map((i) => {
           // '/projects' stays lit inside a project; project tabs light only their own subtree
           const active = path === i.href || path.startsWith(`${i.href}/`);

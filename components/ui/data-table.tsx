@@ -14,6 +14,20 @@ export interface Column {
   key: string;
   label: string;
   align?: 'left' | 'right';
+  /**
+   * On a phone each row becomes a card: the first column is its title, priority 1 (status, review) comes
+   * right under it, 2 (the default) below, and 3 only on wider screens. No sideways scrolling.
+   */
+  priority?: 1 | 2 | 3;
+}
+
+/** The classes that turn a cell into a labelled line of a card below the `sm` breakpoint. */
+function phoneCell(c: Column, first: boolean): string {
+  if (first) return 'col-span-2 order-[-2] font-medium sm:order-none sm:font-normal';
+  const label = 'before:block before:text-[11px] before:font-semibold before:uppercase before:tracking-wide before:text-ink-faint before:content-[attr(data-label)] sm:before:content-none';
+  const order = c.priority === 1 ? 'order-[-1] sm:order-none' : '';
+  const hide = c.priority === 3 ? 'hidden sm:table-cell' : 'empty:hidden sm:empty:table-cell';
+  return `${label} ${order} ${hide}`;
 }
 
 export interface Row {
@@ -69,8 +83,8 @@ export function DataTable({ columns, rows, label, empty = 'Nothing here yet.', s
       />
       {toolbar?.(shown)}
       <div className="overflow-x-auto rounded-lg border border-ink/10 bg-paper-raised">
-        <table className="min-w-full text-sm" aria-label={label}>
-          <thead className="bg-paper-sunk text-left text-xs uppercase tracking-wide text-ink-soft">
+        <table className="block w-full text-sm sm:table sm:min-w-full" aria-label={label}>
+          <thead className="hidden bg-paper-sunk text-left text-xs uppercase tracking-wide text-ink-soft sm:table-header-group">
             <tr>
               {selection && <th scope="col" className="w-8 px-3 py-2"><SelectAll shown={shown} selection={selection} /></th>}
               {columns.map((c) => {
@@ -97,11 +111,11 @@ export function DataTable({ columns, rows, label, empty = 'Nothing here yet.', s
               })}
             </tr>
           </thead>
-          <tbody className="divide-y divide-ink/5">
+          <tbody className="block divide-y divide-ink/5 sm:table-row-group">
             {shown.map((r) => (
-              <tr key={r.id} className="hover:bg-paper/60">
+              <tr key={r.id} className="grid grid-cols-2 gap-x-3 gap-y-2 px-3 py-3 hover:bg-paper/60 sm:table-row sm:p-0">
                 {selection && (
-                  <td className="px-3 py-2 align-top">
+                  <td className="order-[-3] block sm:order-none sm:table-cell sm:px-3 sm:py-2 sm:align-top">
                     {(selection.canSelect?.(r) ?? true) && (
                       <input type="checkbox" aria-label={selection.rowLabel(r)} checked={selection.selected.has(r.id)} onChange={(e) => {
                         const next = new Set(selection.selected);
@@ -112,10 +126,10 @@ export function DataTable({ columns, rows, label, empty = 'Nothing here yet.', s
                     )}
                   </td>
                 )}
-                {columns.map((c) => {
+                {columns.map((c, i) => {
                   const cell = r.cells[c.key] ?? null;
                   return (
-                    <td key={c.key} className={`px-3 py-2 align-top ${c.align === 'right' ? 'whitespace-nowrap text-right tabular-nums' : ''}`}>
+                    <td key={c.key} data-label={c.label} className={`block min-w-0 break-words sm:table-cell sm:px-3 sm:py-2 sm:align-top ${phoneCell(c, i === 0)} ${c.align === 'right' ? 'tabular-nums sm:whitespace-nowrap sm:text-right' : ''}`}>
                       {cell !== null && typeof cell === 'object' ? (
                         cell.href ? (
                           <Link href={cell.href}>{cell.text}</Link>
@@ -133,8 +147,8 @@ export function DataTable({ columns, rows, label, empty = 'Nothing here yet.', s
               </tr>
             ))}
             {shown.length === 0 && (
-              <tr>
-                <td colSpan={columns.length + (selection ? 1 : 0)} className="px-3 py-6 text-center text-ink-faint">
+              <tr className="block sm:table-row">
+                <td colSpan={columns.length + (selection ? 1 : 0)} className="block px-3 py-6 text-center text-ink-faint sm:table-cell">
                   {rows.length === 0 ? empty : 'No rows match the filter.'}
                 </td>
               </tr>

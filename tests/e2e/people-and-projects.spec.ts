@@ -58,24 +58,38 @@ test('a deactivated person is signed out on their next request', async ({ page, 
   await other.close();
 });
 
-test('an admin creates a project with a new partner, edits it, and reads the activity log', async ({ page }) => {
+test('an admin creates a project with a newly registered partner, edits it, and reads the activity log', async ({ page }) => {
   await signIn(page, DEMO.admin);
   await page.getByRole('link', { name: 'New project' }).click();
   await page.getByRole('button', { name: 'Create project' }).click();
   await expect(page.getByText('Name the project.')).toBeVisible();
+  await expect(page.getByText('Pick the contractor from the list, or register it first.')).toBeVisible();
   const name = `Saltmarsh Row ${Date.now()}`;
   await page.getByLabel('Project name').fill(name);
-  await page.getByLabel('Contractor').fill('Brindle Duct Layers');
-  await page.getByLabel('Default coordinate system').fill('EPSG:999999');
+  // the partner is picked; a new one is registered as a step of its own
+  const contractors = page.getByLabel('Contractor', { exact: true });
+  await expect(contractors.getByRole('option', { name: 'Tarnwick Slot & Duct Ltd' })).toHaveCount(1);
+  await page.getByRole('button', { name: 'Not in the list? Register a new contractor' }).click();
+  const partner = `Brindle Duct Layers ${Date.now()}`;
+  await page.getByLabel('Full name of the new contractor').fill(partner);
+  await page.getByRole('button', { name: `Register “${partner}”` }).click();
+  await expect(contractors.locator('option:checked')).toHaveText(partner);
+  await page.getByLabel('Default coordinate system').fill('999999');
   await page.getByRole('button', { name: 'Create project' }).click();
   await expect(page.getByText('EPSG:999999 is not in the catalogue.')).toBeVisible();
-  await page.getByLabel('Default coordinate system').fill('EPSG:25832');
+  // the bare EPSG number is enough
+  await page.getByLabel('Default coordinate system').fill('25832');
   await page.getByLabel('Time zone').selectOption('Europe/Berlin');
   await page.getByRole('button', { name: 'Create project' }).click();
   await expect(page.getByRole('heading', { name })).toBeVisible();
-  await expect(page.getByText('Brindle Duct Layers')).toBeVisible();
+  await expect(page.getByText(partner)).toBeVisible();
+  await expect(page.getByText('EPSG:25832')).toBeVisible();
 
   await page.getByRole('link', { name: 'Settings' }).click();
+  // a tolerance below the plausible floor is refused next to the field, with the range
+  await page.getByLabel('Lateral tolerance (m)').fill('1e-300');
+  await page.getByRole('button', { name: 'Save settings' }).click();
+  await expect(page.getByText('The lateral tolerance must be at least 0.05 m (plausible: 0.05–50 m).')).toBeVisible();
   await page.getByLabel('Lateral tolerance (m)').fill('0.75');
   await page.getByRole('button', { name: 'Save settings' }).click();
   await expect(page.getByText('Settings saved.')).toBeVisible();
@@ -83,8 +97,9 @@ test('an admin creates a project with a new partner, edits it, and reads the act
   await page.goto(page.url().replace(/\/settings$/, ''));
   await page.getByRole('link', { name: 'Activity log' }).click();
   const table = page.getByRole('table', { name: 'Activity' });
-  await expect(table).toContainText('lateralToleranceM: 0.5 → 0.75');
-  await expect(table).toContainText('create');
+  await expect(table).toContainText('Changed the lateral tolerance from 0.5 m to 0.75 m.');
+  await expect(table).toContainText(`Created the project ${name} (network owner Quillhaven Open Fibre, contractor ${partner}).`);
+  await expect(table).not.toContainText('{');
 
   await page.getByRole('button', { name: 'Export as CSV' }).click();
   const download = page.getByRole('link', { name: 'Download the CSV' });

@@ -46,8 +46,8 @@ test('a surveyor drags two files onto the page and sees progress and the result'
   ]);
   const items = page.getByTestId('upload-item');
   await expect(items).toHaveCount(2);
-  await expect(items.filter({ hasText: `walk-${stamp}.gpx` })).toContainText('1 features, 3000 points', { timeout: 20_000 });
-  await expect(items.filter({ hasText: `crossings-${stamp}.geojson` })).toContainText('2 features, 3 points');
+  await expect(items.filter({ hasText: `walk-${stamp}.gpx` })).toContainText('Read 1 line or point (3,000 positions in all).', { timeout: 20_000 });
+  await expect(items.filter({ hasText: `crossings-${stamp}.geojson` })).toContainText('Read 2 lines and points (3 positions in all).');
   const bars = await page.evaluate(() => (window as unknown as { __bars: string[] }).__bars);
   expect(bars).toEqual(expect.arrayContaining([`Progress of walk-${stamp}.gpx`, `Progress of crossings-${stamp}.geojson`]));
 
@@ -95,7 +95,36 @@ test('a survey CSV gets a column check with a preview, then lands once the coord
   await item.getByLabel('Northing').selectOption('N');
   await item.getByRole('button', { name: 'Upload with these columns' }).click();
   await expect(item).toContainText('stored');
-  await expect(item).toContainText('3 points');
+  await expect(item).toContainText('3 positions');
+});
+
+test('a CSV without its grid: the columns come recognised, the refusal says so in plain words, and it is read again from the form', async ({ page }) => {
+  await signIn(page, DEMO.surveyor);
+  await openUploads(page);
+  // the field starts with the project's grid, as a bare number
+  const crs = page.getByLabel('Coordinate system', { exact: true });
+  await expect(crs).toHaveValue('25832');
+  await crs.fill('');
+  const stamp = Date.now() % 100000;
+  const csv = `pt,easting,northing\n1,507300.${stamp},5773500.00\n2,507310.00,5773505.00\n`;
+  await drop(page, [{ name: `no-grid-${stamp}.csv`, text: csv }]);
+  const item = page.getByTestId('upload-item').filter({ hasText: `no-grid-${stamp}.csv` });
+  await expect(item).toContainText('check columns');
+  await expect(item).toContainText('does not say in which grid');
+  // the server recognised the columns from the header: they come pre-filled
+  await expect(item.getByLabel('Point id')).toHaveValue('pt');
+  await expect(item.getByLabel('Easting')).toHaveValue('easting');
+  await expect(item.getByLabel('Northing')).toHaveValue('northing');
+  await item.getByRole('button', { name: 'Upload with these columns' }).click();
+  await expect(item).toContainText('refused');
+  await expect(item).toContainText('The file does not say which coordinate system its coordinates are in.');
+  await expect(item).not.toContainText('crs field');
+  const retry = item.getByLabel('Coordinate system of this file (EPSG number)');
+  await expect(retry).toHaveValue('25832');
+  await item.getByRole('button', { name: 'Read it again' }).click();
+  await expect(item).toContainText('stored');
+  await expect(item).toContainText('Read 2 lines and points (2 positions in all).');
+  await expect(page.getByRole('table', { name: 'Uploads' }).getByRole('row').filter({ hasText: `no-grid-${stamp}.csv` })).toContainText('EPSG:25832');
 });
 
 test('a surveyor replaces an upload with a corrected file, then withdraws the correction', async ({ page }) => {

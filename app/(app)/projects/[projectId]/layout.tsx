@@ -15,8 +15,10 @@ export default async function ProjectLayout({ children, params }: { children: Re
   if (can(me.role, 'audit.read')) items.push({ href: `${base}/activity`, label: 'Activity log' });
   return (
     <div>
-      <div className="mb-6 flex flex-wrap items-center gap-3 border-b border-ink/10 pb-3">
-        <a href={base} className="text-sm font-semibold text-ink">{project.name}</a>
+      <div className="mb-6 flex items-center gap-3 border-b border-ink/10 pb-3">
+        <a href={base} className="max-w-[40%] shrink-0 truncate text-sm font-semibold text-ink sm:max-w-xs" title={project.name}>
+          {project.name}
+        </a>
         <NavLinks items={items} label="Project" />
       </div>
       {children}

@@ -7,10 +7,12 @@ import { ACCURACY_CLASS_LABELS } from '@/lib/records/accuracy-classes';
 import { DataTable } from '@/components/ui/data-table';
 import { Card, PageHeader } from '@/components/ui/primitives';
 import { UploadPanel } from '@/components/forms/upload-panel';
+import { explainRefusal } from '@/components/ui/upload-words';
 
 export const metadata: Metadata = { title: 'Field uploads' };
 
 const STATUS_TONE = { stored: 'ok', failed: 'bad', withdrawn: 'muted', superseded: 'muted' } as const;
+const STATUS_WORD = { stored: 'stored', failed: 'refused', withdrawn: 'withdrawn', superseded: 'replaced' } as const;
 
 export default async function UploadsPage({ params }: { params: Promise<{ projectId: string }> }) {
   const { projectId } = await params;
@@ -31,17 +33,17 @@ export default async function UploadsPage({ params }: { params: Promise<{ projec
         label="Uploads"
         empty="Nothing uploaded yet."
         columns={[
-          { key: 'file', label: 'File' },
+          { key: 'file', label: 'File', priority: 1 },
           { key: 'format', label: 'Format' },
-          { key: 'crs', label: 'CRS' },
-          { key: 'features', label: 'Features', align: 'right' },
-          { key: 'points', label: 'Points', align: 'right' },
+          { key: 'crs', label: 'Coordinate system' },
+          { key: 'features', label: 'Lines and points', align: 'right' },
+          { key: 'points', label: 'Positions', align: 'right' },
           { key: 'accuracy', label: 'Accuracy' },
           { key: 'surveyed', label: 'Survey date' },
           { key: 'who', label: 'Who' },
           { key: 'when', label: 'When' },
-          { key: 'status', label: 'Status' },
-          { key: 'notes', label: 'Warnings / error' },
+          { key: 'status', label: 'Status', priority: 1 },
+          { key: 'notes', label: 'Notes' },
         ]}
         rows={uploads.map((u) => ({
           id: u.id,
@@ -55,8 +57,8 @@ export default async function UploadsPage({ params }: { params: Promise<{ projec
             surveyed: u.surveyDate ?? '—',
             who: u.uploadedByName ?? '—',
             when: { text: fmt.format(new Date(u.createdAt)), sort: u.createdAt },
-            status: { text: u.status, tone: STATUS_TONE[u.status] },
-            notes: u.error ? u.error.message : u.warnings.join(' · '),
+            status: { text: STATUS_WORD[u.status], tone: STATUS_TONE[u.status] },
+            notes: u.error ? explainRefusal(u.error.code, u.error.message, project.defaultCrs).text : u.warnings.join(' · '),
           },
         }))}
       />

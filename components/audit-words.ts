@@ -1,0 +1,137 @@
+// The activity log in sentences a person reads, not the JSON the audit table stores.
+
+import { ACCURACY_CLASS_LABELS } from '@/lib/records/accuracy-classes';
+import { plural } from '@/components/ui/upload-words';
+
+export interface AuditLike {
+  objectType: string;
+  action: string;
+  before: unknown;
+  after: unknown;
+}
+
+type Obj = Record<string, unknown>;
+const isObj = (v: unknown): v is Obj => typeof v === 'object' && v !== null && !Array.isArray(v);
+
+const metres = (v: unknown) => (typeof v === 'number' ? `${v} m` : say(v));
+
+/** Field names of the stored objects, and how their values read. */
+const FIELDS: Record<string, { name: string; value?: (v: unknown) => string }> = {
+  name: { name: 'the name' },
+  areaName: { name: 'the area' },
+  defaultCrs: { name: 'the coordinate system' },
+  extent: { name: 'the extent', value: (v) => (Array.isArray(v) ? `W ${v[0]}, S ${v[1]}, E ${v[2]}, N ${v[3]}` : 'not set') },
+  timeZone: { name: 'the time zone' },
+  unitSystem: { name: 'the units', value: (v) => (v === 'imperial' ? 'imperial' : 'metric') },
+  minCoverDepthM: { name: 'the minimum cover depth', value: metres },
+  lateralToleranceM: { name: 'the lateral tolerance', value: metres },
+  defaultAccuracyClass: { name: 'the usual survey accuracy', value: (v) => ACCURACY_CLASS_LABELS[v as keyof typeof ACCURACY_CLASS_LABELS] ?? say(v) },
+  accuracySigmas: {
+    name: 'the typical position errors',
+    value: (v) => {
+      if (!isObj(v) || Object.keys(v).length === 0) return 'the usual figures';
+      return Object.entries(v)
+        .map(([k, s]) => `${ACCURACY_CLASS_LABELS[k as keyof typeof ACCURACY_CLASS_LABELS] ?? k} ${s} m`)
+        .join(', ');
+    },
+  },
+  ownerOrgName: { name: 'the network owner' },
+  contractorOrgName: { name: 'the contractor' },
+  ownerOrganisation: { name: 'the network owner' },
+  contractorOrganisation: { name: 'the contractor' },
+  role: { name: 'the role' },
+  active: { name: 'access', value: (v) => (v ? 'active' : 'deactivated') },
+  status: { name: 'the status' },
+  review: { name: 'the review' },
+  comment: { name: 'the comment' },
+  reason: { name: 'the reason' },
+};
+
+// ids and internal columns add nothing a person can act on
+const HIDDEN = new Set(['id', 'ownerOrgId', 'contractorOrgId', 'createdAt', 'updatedAt', 'sha256', 'passwordHash']);
+
+/** Any stored value in words: no braces, no quotes. */
+export function say(v: unknown): string {
+  if (v === null || v === undefined || v === '') return 'nothing';
+  if (typeof v === 'boolean') return v ? 'yes' : 'no';
+  if (Array.isArray(v)) return v.length === 0 ? 'nothing' : v.map(say).join(', ');
+  if (isObj(v)) {
+    return Object.entries(v)
+      .filter(([k]) => !HIDDEN.has(k))
+      .map(([k, x]) => `${words(k)} ${say(x)}`)
+      .join(', ');
+  }
+  return String(v);
+}
+
+/** camelCase or snake_case to plain words: "lateralToleranceM" → "lateral tolerance m". */
+export function words(key: string): string {
+  return FIELDS[key]?.name.replace(/^the /, '') ?? key.replace(/_/g, ' ').replace(/([a-z])([A-Z])/g, '$1 $2').toLowerCase();
+}
+
+const valueOf = (k: string, v: unknown) => (FIELDS[k]?.value ?? say)(v);
+
+/** "the lateral tolerance from 0.5 m to 0.75 m; the area from nothing to Quillhaven North" */
+function changes(before: unknown, after: unknown): string {
+  const b = isObj(before) ? before : {};
+  const a = isObj(after) ? after : {};
+  const keys = Object.keys(a).filter((k) => !HIDDEN.has(k) && JSON.stringify(a[k]) !== JSON.stringify(b[k]));
+  return keys.map((k) => `${FIELDS[k]?.name ?? words(k)} from ${valueOf(k, b[k])} to ${valueOf(k, a[k])}`).join('; ');
+}
+
+const SIDE = (v: unknown) => (v === 'owner' ? 'network owner' : 'contractor');
+const capital = (s: string) => (s ? s[0].toUpperCase() + s.slice(1) : s);
+/** A person's own words, ended with one full stop. */
+const quoted = (v: unknown) => `${say(v).replace(/[.\s]+$/, '')}.`;
+
+/**
+ * One audit entry as a sentence. `describeAudit({ objectType: 'project', action: 'update',
+ * before: { lateralToleranceM: 0.5 }, after: { lateralToleranceM: 0.75 } })` is
+ * "Changed the lateral tolerance from 0.5 m to 0.75 m."
+ */
+export function describeAudit(e: AuditLike): string {
+  const a = isObj(e.after) ? e.after : {};
+  const b = isObj(e.before) ? e.before : {};
+  const key = `${e.objectType} ${e.action}`;
+  switch (key) {
+    case 'project create':
+      return `Created the project ${say(a.name)} (network owner ${say(a.ownerOrgName)}, contractor ${say(a.contractorOrgName)}).`;
+    case 'project update': {
+      const c = changes(b, a);
+      return c ? `Changed ${c}.` : 'Saved the settings without changes.';
+    }
+    case 'project extent_from_plan':
+      return `Set the project's extent from the planned network (${valueOf('extent', a.extent)}).`;
+    case 'org_change propose':
+      return `Proposed to change the ${SIDE(a.side)} from ${say(a.from)} to ${say(a.to)}, waiting for ${say(a.waitingFor)} to confirm. Reason: ${quoted(a.reason)}`;
+    case 'org_change confirm':
+      return `Confirmed the change of ${SIDE(a.side)} from ${say(a.from)} to ${say(a.to)}.${a.note ? ` Note: ${quoted(a.note)}` : ''}`;
+    case 'org_change decline':
+      return `Declined the change of ${SIDE(a.side)} from ${say(a.from)} to ${say(a.to)}.${a.note ? ` Note: ${quoted(a.note)}` : ''}`;
+    case 'org_change withdraw':
+      return `Withdrew the proposal to change the ${SIDE(a.side)} to ${say(a.to)}.`;
+    case 'organisation register':
+    case 'organisation create':
+      return `Registered the ${SIDE(a.kind)} ${say(a.name)}.`;
+    case 'upload create': {
+      const names = say(a.fileName);
+      if (a.status === 'failed') return `Uploaded ${names}; it was refused (${say(a.error)}) and kept for another try.`;
+      return `Uploaded ${names}: ${plural(Number(a.featureCount), 'line or point', 'lines and points')}, ${plural(Number(a.pointCount), 'position')}${a.crs ? ` in ${say(a.crs)}` : ''}.`;
+    }
+    case 'upload retry':
+      return `Read a refused upload again${isObj(a.settings) && a.settings.crs ? ` in ${say(a.settings.crs)}` : ''}: ${a.status === 'stored' ? 'now stored' : `still refused (${say(a.error)})`}.`;
+    case 'upload withdraw':
+      return `Withdrew an upload from the record. Reason: ${quoted(a.reason)}`;
+    case 'upload exclude_range':
+      return `Left ${a.kind === 'time' ? `the time from ${say(a.from)} to ${say(a.to)}` : `${say(a.from)}–${say(a.to)} m`} of an upload out of matching. Reason: ${quoted(a.reason)}`;
+    case 'upload include_range':
+      return 'Took a left-out range of an upload back into matching.';
+    default: {
+      const c = changes(b, a);
+      const what = `${capital(words(e.action))} ${words(e.objectType)}`;
+      if (c && Object.keys(b).length > 0) return `${what}: ${c}.`;
+      const details = say(a);
+      return details && details !== 'nothing' ? `${what}: ${details}.` : `${what}.`;
+    }
+  }
+}

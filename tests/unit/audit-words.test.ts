@@ -1,0 +1,44 @@
+import { describe, expect, it } from 'vitest';
+import { describeAudit, say, words } from '@/components/audit-words';
+import { plural } from '@/components/ui/upload-words';
+
+describe('the activity log in words', () => {
+  it('says which setting changed, from what to what, with units', () => {
+    const before = { id: 'p1', name: 'Harrow Lane', lateralToleranceM: 0.5, minCoverDepthM: 0.3, accuracySigmas: {}, updatedAt: 'x' };
+    const after = { id: 'p1', name: 'Harrow Lane', lateralToleranceM: 0.75, minCoverDepthM: 0.3, accuracySigmas: { rtk_gnss: 0.03 }, updatedAt: 'y' };
+    expect(describeAudit({ objectType: 'project', action: 'update', before, after })).toBe(
+      'Changed the lateral tolerance from 0.5 m to 0.75 m; the typical position errors from the usual figures to RTK GNSS 0.03 m.',
+    );
+  });
+
+  it('tells a change of owner as a proposal and its answer', () => {
+    const after = { side: 'owner', from: 'Quillhaven Open Fibre', to: 'Fernbrook Fibre Trust', reason: 'The network was sold.', waitingFor: 'Quillhaven Open Fibre' };
+    expect(describeAudit({ objectType: 'org_change', action: 'propose', before: null, after })).toBe(
+      'Proposed to change the network owner from Quillhaven Open Fibre to Fernbrook Fibre Trust, waiting for Quillhaven Open Fibre to confirm. Reason: The network was sold.',
+    );
+    expect(describeAudit({ objectType: 'project', action: 'update', before: { ownerOrganisation: 'A' }, after: { ownerOrganisation: 'B' } })).toBe('Changed the network owner from A to B.');
+  });
+
+  it('never shows braces or quotes, even for an entry it has no sentence for', () => {
+    const s = describeAudit({ objectType: 'section', action: 'review_reset', before: { review: 'approved' }, after: { review: 'pending', run: 4, ids: ['a', 'b'] } });
+    expect(s).toBe('Review reset section: the review from approved to pending; run from nothing to 4; ids from nothing to a, b.');
+    expect(s).not.toMatch(/[{}"[\]]/);
+    expect(say({ kind: 'distance', from: 0, to: 12.5 })).toBe('kind distance, from 0, to 12.5');
+    expect(words('minCoverDepthM')).toBe('minimum cover depth');
+    expect(words('plan_version')).toBe('plan version');
+  });
+
+  it('tells uploads that were stored and refused apart', () => {
+    expect(describeAudit({ objectType: 'upload', action: 'create', before: null, after: { fileName: ['a.gpx'], status: 'stored', featureCount: 1, pointCount: 15, crs: 'EPSG:4326' } })).toBe(
+      'Uploaded a.gpx: 1 line or point, 15 positions in EPSG:4326.',
+    );
+    expect(describeAudit({ objectType: 'upload', action: 'create', before: null, after: { fileName: ['b.csv'], status: 'failed', error: 'crs_required' } })).toContain('refused');
+  });
+});
+
+describe('counts', () => {
+  it('uses the singular for one and the plural otherwise', () => {
+    expect([plural(0, 'point'), plural(1, 'point'), plural(2, 'point'), plural(1200, 'point')]).toEqual(['0 points', '1 point', '2 points', '1,200 points']);
+    expect(plural(1, 'line or point', 'lines and points')).toBe('1 line or point');
+  });
+});
