@@ -38,8 +38,9 @@ const dist = (p: FramePoints, i: number, j: number) => {
  * Isolated spikes of one piece (indices into fixes, in order), a flag per fix (1: a spike). A fix is a spike when it lies far from where
  * its neighbours put it: the reference is the time-interpolated position between i−1 and i+1 averaged with
  * that between i−2 and i+2 (noise of the reference ≈ σ/2, and a slowly varying bias cancels). Far means
- * beyond 3.5σ (white noise alone: < 0.5 % of fixes) AND, for timed fixes, beyond what maxSpeedMps allows
- * in the time to the nearer neighbour, or, without time, beyond gapMetres / 2. Raw fix-to-fix speeds are no
+ * beyond 3.5σ (white noise alone: under 1 % of fixes, as the deviation from the reference has 1.25σ² per
+ * axis) AND, for timed fixes, beyond what maxSpeedMps allows in the time to the nearer neighbour, or,
+ * without time, beyond gapMetres / 2. Raw fix-to-fix speeds are no
  * test at 1 Hz: 3–4 m noise alone makes consecutive handheld fixes "move" at 5 m/s.
  */
 function spikes(fixes: Fix[], piece: number[], p: FramePoints, o: ResolvedMatchOptions): Uint8Array {
