@@ -31,7 +31,10 @@ export function OffsetPlot({ series, asBuilt, toleranceM, fromM, toM, summary }:
             <CartesianGrid stroke="#e5e7eb" />
             <XAxis type="number" dataKey="chainageM" domain={[Math.floor(fromM), Math.ceil(toM)]} allowDataOverflow tickFormatter={(v: number) => `${v} m`} label={{ value: 'chainage along the planned route (m)', position: 'insideBottom', offset: -12, fontSize: 12 }} fontSize={12} />
             <YAxis type="number" dataKey="offsetM" domain={[-lim, lim]} ticks={ticks} allowDataOverflow tickFormatter={(v: number) => (step < 1 ? v.toFixed(1) : String(v))} label={{ value: 'offset, + left (m)', angle: -90, position: 'insideLeft', fontSize: 12 }} fontSize={12} width={56} />
-            <ReferenceArea y1={-toleranceM} y2={toleranceM} fill="#009e73" fillOpacity={0.12} ifOverflow="extendDomain" />
+            {/* the band spans the plotted chainages explicitly and is edged by lines, so it shows however pale the fill */}
+            <ReferenceArea x1={Math.floor(fromM)} x2={Math.ceil(toM)} y1={-toleranceM} y2={toleranceM} fill="#009e73" fillOpacity={0.18} stroke="none" ifOverflow="hidden" />
+            <ReferenceLine y={toleranceM} stroke="#009e73" strokeWidth={1.5} strokeDasharray="3 3" label={{ value: `+${toleranceM} m tolerance`, position: 'insideTopRight', fontSize: 11, fill: '#00664a' }} />
+            <ReferenceLine y={-toleranceM} stroke="#009e73" strokeWidth={1.5} strokeDasharray="3 3" label={{ value: `−${toleranceM} m tolerance`, position: 'insideBottomRight', fontSize: 11, fill: '#00664a' }} />
             <ReferenceLine y={0} stroke="#0072b2" strokeDasharray="6 4" label={{ value: 'plan', position: 'insideTopLeft', fontSize: 11 }} />
             <Tooltip formatter={(v) => `${Number(v).toFixed(2)} m`} labelFormatter={(v) => `chainage ${Number(v).toFixed(1)} m`} />
             <Legend verticalAlign="top" height={28} wrapperStyle={{ fontSize: 12 }} />
@@ -43,7 +46,7 @@ export function OffsetPlot({ series, asBuilt, toleranceM, fromM, toM, summary }:
         </ResponsiveContainer>
       </div>
       <figcaption className="mt-1 text-xs text-ink-soft">
-        Green band: the project&apos;s lateral tolerance of ±{toleranceM} m around the plan. {summary}
+        Green band between the dashed green lines: the project&apos;s lateral tolerance of ±{toleranceM} m around the plan. {summary}
       </figcaption>
     </figure>
   );

@@ -54,11 +54,10 @@ export async function excludeFromMatching(db: Knex, actor: Principal, projectId:
         span
           ? `No fix of this upload falls between ${at(Date.parse(input.from) / 1000)} and ${at(Date.parse(input.to) / 1000)} (${project.timeZone}); its fixes run from ${at(span.firstT)} to ${at(span.lastT)}.`
           : 'This upload\'s fixes carry no times: leave a stretch out by metres along the trace instead.',
-        [{ path: 'from', message: 'No fix of this upload falls in this range.' }],
       );
     }
     const longest = Math.max(0, ...traces.map((t) => t.reduce((n, f, i) => (i === 0 ? 0 : n + distanceM([t[i - 1].lon, t[i - 1].lat], [f.lon, f.lat])), 0)));
-    throw new AppError('empty_range', `No fix of this upload lies between ${input.from} and ${input.to} m along its traces; the longest trace is ${longest.toFixed(1)} m long.`, [{ path: 'from', message: 'No fix of this upload falls in this range.' }]);
+    throw new AppError('empty_range', `No fix of this upload lies between ${input.from} and ${input.to} m along its traces; the longest trace is ${longest.toFixed(1)} m long.`);
   }
   const id = await db.transaction(async (trx) => {
     const id = await insertUploadExclusion(trx, uploadId, input, actor.id);

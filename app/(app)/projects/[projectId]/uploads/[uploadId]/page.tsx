@@ -1,7 +1,8 @@
 import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
 import { getDb } from '@/db/client';
-import { getUpload, listUploadExclusions, listUploadFiles, uploadFeatureCollection } from '@/db/uploads';
+import { z } from 'zod';
+import { getUpload, listUploadFiles, uploadFeatureCollection } from '@/db/uploads';
 import { isUuid } from '@/lib/api/with-route';
 import { requireProjectPage } from '@/lib/auth/page-guards';
 import { can } from '@/lib/auth/roles';
@@ -13,7 +14,9 @@ import { GeoMap, type MapLayer } from '@/components/map/geo-map';
 import { WithdrawUpload } from '@/components/forms/withdraw-upload';
 import { plannedFeatureCollection } from '@/lib/services/planned';
 import { SupersedeUpload } from '@/components/forms/supersede-upload';
-import { ExcludeRange } from '@/components/forms/exclude-range';
+import { ExcludeRange, RemoveExclusion } from '@/components/forms/exclude-range';
+import { uploadFixOverview } from '@/lib/services/exclusions';
+import { formatInZone } from '@/lib/records/zoned-time';
 
 export const metadata: Metadata = { title: 'Upload' };
 
@@ -25,13 +28,28 @@ function extentLayer(extent: [number, number, number, number] | null): MapLayer[
   return [{ id: 'extent', colour: '#7b8a92', dashed: true, width: 1.5, data: { type: 'FeatureCollection', features: [{ type: 'Feature', properties: {}, geometry: { type: 'LineString', coordinates: ring } }] } }];
 }
 
-export default async function UploadPage({ params }: { params: Promise<{ projectId: string; uploadId: string }> }) {
+// a stretch handed over from a section page: its first and last fix time, epoch seconds
+const handedOver = z.object({ from: z.coerce.number().finite().min(0), to: z.coerce.number().finite().min(0) });
+
+export default async function UploadPage({ params, searchParams }: { params: Promise<{ projectId: string; uploadId: string }>; searchParams: Promise<Record<string, string | string[] | undefined>> }) {
   const { projectId, uploadId } = await params;
+  const stretch = handedOver.safeParse(await searchParams);
   const { me, project } = await requireProjectPage(projectId, 'upload.read');
   const db = getDb();
   const upload = isUuid(uploadId) ? await getUpload(db, uploadId) : undefined;
   if (!upload || upload.projectId !== project.id) notFound();
-  const [files, geometry, planned, exclusions] = await Promise.all([listUploadFiles(db, upload.id), uploadFeatureCollection(db, upload.id), plannedFeatureCollection(db, project.id, false), listUploadExclusions(db, upload.id)]);
+  const [files, geometry, planned, fixes] = await Promise.all([listUploadFiles(db, upload.id), uploadFeatureCollection(db, upload.id), plannedFeatureCollection(db, project.id, false), uploadFixOverview(db, upload.id)]);
+  const exclusions = fixes.exclusions;
+  // every time on this page is on the project's clock, in one form: 2026-11-05 10:00:38
+  const tz = project.timeZone;
+  const at = (iso: string | number) => formatInZone(typeof iso === 'number' ? iso * 1000 : iso, tz);
+  const engineer = upload.status === 'stored' && can(me.role, 'reconcile.run');
+  // times along the trace: about six marks a trace, from its first fix to its last
+  const marks = [...new Set(fixes.fixes.map((f) => f.trace))].map((k) => {
+    const own = fixes.fixes.filter((f) => f.trace === k && f.t !== null);
+    const step = Math.max(1, Math.ceil((own.length - 1) / 5));
+    return { trace: k, marks: own.filter((_, i) => i % step === 0 || i === own.length - 1) };
+  }).filter((m) => m.marks.length > 0);
   const facts: [string, string][] = [
     ['Format', upload.format ?? '—'],
     ['Coordinate system of the file', upload.crs ?? '—'],
@@ -40,7 +58,8 @@ export default async function UploadPage({ params }: { params: Promise<{ project
     ['Survey date', upload.surveyDate ?? '—'],
     ['Crew', upload.crew || '—'],
     ['Shows', upload.content.replace('_', ' ')],
-    ['Uploaded by', `${upload.uploadedByName ?? '—'}, ${new Date(upload.createdAt).toLocaleString('en-GB', { timeZone: project.timeZone })}`],
+    ['Fixes', `${fixes.total} in ${fixes.traces} trace${fixes.traces === 1 ? '' : 's'}${fixes.span ? `, from ${at(fixes.span.firstT)} to ${at(fixes.span.lastT)} (${tz})` : ', without times'}`],
+    ['Uploaded by', `${upload.uploadedByName ?? '—'}, ${at(upload.createdAt)} (${tz})`],
     ['SHA-256', upload.sha256],
   ];
   const attributeKeys = [...new Set(geometry.features.flatMap((f) => Object.keys(f.properties).filter((k) => !['seq', 'kind', 'name', 'pointCount'].includes(k))))].slice(0, 6);
@@ -85,19 +104,50 @@ export default async function UploadPage({ params }: { params: Promise<{ project
             </ul>
           </Card>
         </div>
-        {(exclusions.length > 0 || (upload.status === 'stored' && can(me.role, 'reconcile.run'))) && (
-          <Card title="Left out of matching">
-            {exclusions.length > 0 && (
-              <ul className="mb-4 space-y-1 text-sm">
-                {exclusions.map((e) => (
-                  <li key={e.id}>
-                    {e.kind === 'time' ? `${new Date(String(e.from)).toLocaleString('en-GB', { timeZone: project.timeZone })} – ${new Date(String(e.to)).toLocaleString('en-GB', { timeZone: project.timeZone })}` : `${e.from} – ${e.to} m along the trace`}: {e.reason}
-                  </li>
-                ))}
-              </ul>
-            )}
-            {upload.status === 'stored' && can(me.role, 'reconcile.run') && <ExcludeRange projectId={project.id} uploadId={upload.id} />}
-          </Card>
+        {(exclusions.length > 0 || engineer || marks.length > 0) && (
+          <section id="left-out" className="scroll-mt-4">
+            <Card title="Fix times and stretches left out of matching">
+              <p className="mb-3 text-sm text-ink-soft">Times are on the project&apos;s clock ({tz}), whatever the clock of this computer.</p>
+              {marks.length > 0 && (
+                <div className="mb-4 text-sm">
+                  <h3 className="mb-1 font-medium">Times along the trace</h3>
+                  <ul className="space-y-1" aria-label="Times along the trace">
+                    {marks.map((m) => (
+                      <li key={m.trace} className="flex flex-wrap gap-x-3 gap-y-1">
+                        {fixes.traces > 1 && <span className="text-ink-faint">trace {m.trace + 1}:</span>}
+                        {m.marks.map((f, i) => (
+                          <span key={i} className="tabular-nums">{at(f.t!)} <span className="text-ink-faint">at {f.alongM.toFixed(0)} m</span></span>
+                        ))}
+                      </li>
+                    ))}
+                  </ul>
+                </div>
+              )}
+              {exclusions.length > 0 && (
+                <ul className="mb-4 divide-y divide-ink/10 text-sm" aria-label="Stretches left out of matching">
+                  {exclusions.map((e) => (
+                    <li key={e.id} className="flex flex-wrap items-center justify-between gap-2 py-2">
+                      <span>
+                        <span className="font-medium tabular-nums">{e.kind === 'time' ? `${at(String(e.from))} to ${at(String(e.to))}` : `${e.from} to ${e.to} m along each trace`}</span>
+                        : {e.reason} <span className="text-ink-faint">({e.fixesLeftOut} fixes; {e.createdByName ?? 'someone'}, {e.createdAt ? at(e.createdAt) : ''})</span>
+                      </span>
+                      {engineer && <RemoveExclusion projectId={project.id} uploadId={upload.id} exclusionId={e.id} />}
+                    </li>
+                  ))}
+                </ul>
+              )}
+              {engineer && (
+                <ExcludeRange
+                  projectId={project.id}
+                  uploadId={upload.id}
+                  timeZone={tz}
+                  fixes={fixes.fixes}
+                  planned={planned}
+                  initial={stretch.success ? { fromT: stretch.data.from, toT: stretch.data.to } : undefined}
+                />
+              )}
+            </Card>
+          </section>
         )}
         <DataTable
           label="Features"
