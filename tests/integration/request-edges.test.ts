@@ -124,7 +124,7 @@ describe('JSON bodies', () => {
   });
 
   it('refuses NUL characters in any string or key with the path of the first one', async () => {
-    const err = await readJsonBody(jsonRequest('{"reason":"ok","items":[{"note":"a\\u0000b"}]}'), 1024).catch((e) => e);
+    const err = await readJsonBody(jsonRequest('{"reason":"ok","items":[{"note":"a\\u0000b"}]}'), 1024).catch((e: Error) => e) as Error;
     expect(err).toMatchObject({ code: 'invalid', status: 422 });
     expect(err.message).toContain('items.0.note');
     await expect(readJsonBody(jsonRequest('{"a\\u0000":1}'), 1024)).rejects.toMatchObject({ status: 422 });
