@@ -107,7 +107,11 @@ export function TracePicker({ fixes, planned, describe, inRange, onPick, label }
         })[0];
       handlers.current.onPick(fixes[near]);
     });
-    map.on('idle', () => setReady(true));
+    map.on('idle', () => {
+      setReady(true);
+      // for the browser tests, as GeoMap's __map: where fix i is drawn, in pixels of the map's canvas
+      (window as unknown as { __tracePicker?: unknown }).__tracePicker = { count: fixes.length, pixelOf: (i: number) => map.project([fixes[i].lon, fixes[i].lat]) };
+    });
     return () => {
       popup.remove();
       map.remove();

@@ -15,19 +15,21 @@ test('an engineer reconciles the project and reads planned against built', async
   await expect(page.getByText(/built of .* planned/)).toBeVisible();
   await page.waitForFunction(() => (window as unknown as { __map?: { loaded: boolean } }).__map?.loaded === true);
 
-  for (const [name, type, magic] of [['Download CSV', 'text/csv', 'id,plannedRouteRef'], ['Download Excel', 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet', 'PK']] as const) {
+  for (const [name, type, magic] of [['Download CSV (zip)', 'application/zip', 'PK'], ['Download Excel', 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet', 'PK']] as const) {
     const res = await page.request.get((await page.getByRole('link', { name }).getAttribute('href'))!);
     expect(res.status()).toBe(200);
     expect(res.headers()['content-type']).toContain(type);
     expect((await res.body()).subarray(0, magic.length).toString('latin1')).toBe(magic);
   }
 
-  // review: a rejection needs a reason
-  await page.getByRole('button', { name: 'Reject' }).click();
-  await expect(page.getByText('Say why the section is rejected.')).toBeVisible();
-  await page.getByLabel('Comment').fill('photos show the slot on the other side');
-  await page.getByRole('button', { name: 'Reject' }).click();
-  await expect(page.getByText('Rejected.')).toBeVisible();
+  // review: pick a section in the table; a rejection needs a reason
+  await table.getByRole('checkbox', { name: /^Select (?!every)/ }).first().check();
+  const bulk = page.getByRole('group', { name: 'Review the picked sections' });
+  await bulk.getByRole('button', { name: 'Reject' }).click();
+  await expect(bulk.getByText('Say why: a rejection or an acknowledged not-built stretch needs a reason.')).toBeVisible();
+  await bulk.getByLabel(/Comment/).fill('photos show the slot on the other side');
+  await bulk.getByRole('button', { name: 'Reject' }).click();
+  await expect(page.getByText('1 section rejected.')).toBeVisible();
   await expect(table).toContainText('rejected');
 });
 
