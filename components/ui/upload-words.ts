@@ -17,7 +17,8 @@ export function explainRefusal(code: string | undefined, serverMessage: string, 
   const grid = `This project usually works in ${projectCrs}.`;
   switch (code) {
     case 'crs_required':
-      return { text: `The file does not say which coordinate system its coordinates are in. Enter the EPSG number of the grid they were measured in and read it again. ${grid}`, detail: serverMessage };
+      // the server's words here are for API clients ("send the EPSG code in the crs field"): left out
+      return { text: `The file does not say which coordinate system its coordinates are in. Enter the EPSG number of the grid they were measured in and read it again. ${grid}` };
     case 'unknown_crs':
       return { text: `That EPSG number is not in the list of coordinate systems. Check it (for example 25832 is ETRS89 / UTM zone 32N) and read the file again.`, detail: serverMessage };
     case 'swapped_axes':

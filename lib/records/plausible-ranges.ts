@@ -44,7 +44,7 @@ export const RANGES = {
  */
 export const DATE_RANGE = { min: '1990-01-01', maxDaysAhead: 1 } as const;
 
-const fmt = (n: number) => String(n);
+const fmt = (n: number) => n.toLocaleString('en-GB', { maximumFractionDigits: 6 });
 
 /** "0.05–50 m": the range as shown beside a field. */
 export function rangeText(r: PlausibleRange): string {

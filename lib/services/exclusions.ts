@@ -1,5 +1,6 @@
 import type { Knex } from 'knex';
 import { z } from 'zod';
+import { RANGES, rangedNumber } from '@/lib/records/plausible-ranges';
 import { writeAudit } from '@/db/audit';
 import { getProject } from '@/db/projects';
 import { deleteUploadExclusion, getUploadExclusion, insertUploadExclusion, listUploadExclusions, listUploadTraces, type UploadExclusion, type UploadFix } from '@/db/uploads';
@@ -10,9 +11,12 @@ import { distanceM } from '@/lib/matching/chainage';
 import { formatInZone } from '@/lib/records/zoned-time';
 import { requestReconciliation } from './reconcile';
 
+// metres from the start of each trace, within the plausible range of a chainage (0–100 km)
+const ALONG_TRACE = { ...RANGES.chainageM, what: 'The distance along the trace' };
+
 export const exclusionSchema = z.discriminatedUnion('kind', [
   z.object({ kind: z.literal('time'), from: z.iso.datetime({ offset: true, message: 'Give the start as an ISO time, e.g. 2026-11-03T09:40:00Z.' }), to: z.iso.datetime({ offset: true, message: 'Give the end as an ISO time.' }), reason: z.string().trim().min(3, 'Say why this stretch is left out.').max(500) }),
-  z.object({ kind: z.literal('distance'), from: z.number().min(0, 'Metres from the start of each trace, 0 or more.'), to: z.number().min(0), reason: z.string().trim().min(3, 'Say why this stretch is left out.').max(500) }),
+  z.object({ kind: z.literal('distance'), from: rangedNumber(ALONG_TRACE), to: rangedNumber(ALONG_TRACE), reason: z.string().trim().min(3, 'Say why this stretch is left out.').max(500) }),
 ]).refine((e) => (e.kind === 'time' ? Date.parse(e.from) < Date.parse(e.to) : e.from < e.to), { message: 'The range must end after it starts.', path: ['to'] });
 export type ExclusionInput = z.infer<typeof exclusionSchema>;
 

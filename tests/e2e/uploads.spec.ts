@@ -12,7 +12,7 @@ const geojson = JSON.stringify({
 
 async function openUploads(page: import('@playwright/test').Page) {
   await page.getByRole('link', { name: 'Quillhaven North, phase 1' }).click();
-  await page.getByRole('link', { name: 'Field uploads' }).click();
+  await page.getByRole('navigation', { name: 'Project' }).getByRole('link', { name: 'Uploads' }).click();
   await expect(page.getByRole('heading', { name: 'Field uploads' })).toBeVisible();
 }
 

@@ -9,6 +9,7 @@ import { correctionSchema } from '@/lib/services/corrections';
 import { importPlan } from '@/lib/services/planned';
 import { changeProject, createProject, createProjectSchema, updateProjectSchema } from '@/lib/services/projects';
 import { runReconciliation } from '@/lib/services/reconcile';
+import { exclusionSchema } from '@/lib/services/exclusions';
 import { receiveUpload, uploadFieldsSchema } from '@/lib/services/uploads';
 import { DATE_RANGE, plausibleDate, RANGES, rangeProblem } from '@/lib/records/plausible-ranges';
 import { makePrincipal, registerPartner } from '../helpers/fixtures';
@@ -111,9 +112,16 @@ describe('plausible ranges of other typed numbers and dates', () => {
     for (const v of [-0.5, 100_000.5, 1e300]) {
       const got = issues(correctionSchema.safeParse({ kind: 'split', atChainageM: v, reason: 'out of range' }));
       expect(got, String(v)).toHaveLength(1);
-      expect(got[0]).toContain('0–100000 m');
+      expect(got[0]).toContain('0–100,000 m');
     }
     expect(issues(correctionSchema.safeParse({ kind: 'mark_built', fromChainageM: 0, toChainageM: 2e5, reason: 'too far' }))[0]).toContain('toChainageM');
+  });
+
+  it('exclusion distances: 0 to 100 km along the trace', () => {
+    expect(exclusionSchema.safeParse({ kind: 'distance', from: 0, to: 100_000, reason: 'whole trace' }).success).toBe(true);
+    const got = issues(exclusionSchema.safeParse({ kind: 'distance', from: 0, to: 1e300, reason: 'typo' }));
+    expect(got).toEqual(['to: The distance along the trace must be at most 100,000 m (plausible: 0–100,000 m).']);
+    expect(issues(exclusionSchema.safeParse({ kind: 'distance', from: -1, to: 5, reason: 'typo' }))[0]).toContain('from: The distance along the trace must be at least 0 m');
   });
 
   it('survey and lay dates: from 1990 to tomorrow, and real calendar dates', () => {
