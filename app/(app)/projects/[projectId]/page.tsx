@@ -19,7 +19,7 @@ export const metadata: Metadata = { title: 'Project' };
 const JOB_WORDS: Record<string, string> = { reconcile: 'Planned against built', 'audit-export': 'Activity log export' };
 const JOB_TONE = { queued: 'muted', running: 'info', completed: 'ok', failed: 'bad' } as const;
 const UPLOAD_TONE = { stored: 'ok', failed: 'bad', withdrawn: 'muted', superseded: 'muted' } as const;
-const UPLOAD_WORD = { stored: 'stored', failed: 'refused', withdrawn: 'withdrawn', superseded: 'replaced' } as const;
+const UPLOAD_WORD = { stored: 'stored', failed: 'refused', withdrawn: 'withdrawn', superseded: 'superseded' } as const;
 
 /** Kilometres once there are more than a thousand metres: "1.24 km", "640 m". */
 function distance(m: number, unitSystem: 'metric' | 'imperial'): string {

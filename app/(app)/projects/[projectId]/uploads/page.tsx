@@ -12,7 +12,7 @@ import { explainRefusal } from '@/components/ui/upload-words';
 export const metadata: Metadata = { title: 'Field uploads' };
 
 const STATUS_TONE = { stored: 'ok', failed: 'bad', withdrawn: 'muted', superseded: 'muted' } as const;
-const STATUS_WORD = { stored: 'stored', failed: 'refused', withdrawn: 'withdrawn', superseded: 'replaced' } as const;
+const STATUS_WORD = { stored: 'stored', failed: 'refused', withdrawn: 'withdrawn', superseded: 'superseded' } as const;
 
 export default async function UploadsPage({ params }: { params: Promise<{ projectId: string }> }) {
   const { projectId } = await params;

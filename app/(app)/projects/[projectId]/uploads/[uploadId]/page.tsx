@@ -8,6 +8,7 @@ import { requireProjectPage } from '@/lib/auth/page-guards';
 import { can } from '@/lib/auth/roles';
 import { ACCURACY_CLASS_LABELS, R95_FACTOR } from '@/lib/records/accuracy-classes';
 import { formatLength } from '@/lib/records/units';
+import { explainRefusal } from '@/components/ui/upload-words';
 import { DataTable } from '@/components/ui/data-table';
 import { Badge, Card, Notice, PageHeader } from '@/components/ui/primitives';
 import { GeoMap, type MapLayer } from '@/components/map/geo-map';
@@ -54,7 +55,7 @@ export default async function UploadPage({ params, searchParams }: { params: Pro
     ['Format', upload.format ?? '—'],
     ['Coordinate system of the file', upload.crs ?? '—'],
     ['Features / points', `${upload.featureCount} / ${upload.pointCount}`],
-    ['Accuracy', `${ACCURACY_CLASS_LABELS[upload.accuracyClass]}: σ ${formatLength(upload.sigmaM, project.unitSystem)} per axis, 95 % radius ${formatLength(upload.sigmaM * R95_FACTOR, project.unitSystem)}`],
+    ['Accuracy', `${ACCURACY_CLASS_LABELS[upload.accuracyClass]}: a typical error of ${formatLength(upload.sigmaM, project.unitSystem)} east–west and north–south (one standard deviation); 95 % of positions within ${formatLength(upload.sigmaM * R95_FACTOR, project.unitSystem)}`],
     ['Survey date', upload.surveyDate ?? '—'],
     ['Crew', upload.crew || '—'],
     ['Shows', upload.content.replace('_', ' ')],
@@ -67,7 +68,7 @@ export default async function UploadPage({ params, searchParams }: { params: Pro
     <>
       <PageHeader
         title={upload.fileName}
-        subtitle={<Badge tone={upload.status === 'stored' ? 'ok' : upload.status === 'failed' ? 'bad' : 'muted'}>{upload.status}</Badge>}
+        subtitle={<Badge tone={upload.status === 'stored' ? 'ok' : upload.status === 'failed' ? 'bad' : 'muted'}>{upload.status === 'failed' ? 'refused' : upload.status}</Badge>}
         actions={
           upload.status === 'stored' && can(me.role, 'upload.manage') ? (
             <>
@@ -78,7 +79,7 @@ export default async function UploadPage({ params, searchParams }: { params: Pro
         }
       />
       <div className="space-y-6">
-        {upload.error && <Notice tone="bad"><span className="font-medium">{upload.error.code}:</span> {upload.error.message}</Notice>}
+        {upload.error && <Notice tone="bad">{explainRefusal(upload.error.code, upload.error.message, project.defaultCrs).text}</Notice>}
         {upload.warnings.length > 0 && <Notice tone="warn">{upload.warnings.join(' · ')}</Notice>}
         {upload.supersededBy && <Notice tone="info">Superseded by <a href={`/projects/${project.id}/uploads/${upload.supersededBy}`}>a corrected upload</a>.</Notice>}
         {geometry.features.length > 0 && <GeoMap label="Map of the upload" layers={[...extentLayer(project.extent), { id: 'planned', data: planned, colour: '#999999', dashed: true, width: 2 }, { id: 'upload', data: geometry, colour: '#0072b2' }]} />}
