@@ -1,9 +1,11 @@
 #!/usr/bin/env bash
 # The project's private PostgreSQL 15 + PostGIS server, on 127.0.0.1 only.
-#   scripts/db.sh start|stop|status|url|destroy|createdb NAME|dropdb NAME
+#   scripts/db.sh start|stop|status|url [db]|createdb NAME|recreatedb NAME|destroy|kill
 # Data lives in <repo>/.data/pg (git-ignored). When the postgres system user cannot reach that folder
 # (e.g. a clone under a home folder of mode 700), the data goes to /var/tmp/trenchbook-<hash>/pg instead,
 # and the script says so. PGPORT (default 54329), PG_BIN, PG_DATA_ROOT, PG_OS_USER override the defaults.
+# A cluster belongs to its port: another PGPORT gets a cluster of its own (.data/pg-<port>), so one
+# variable moves every command (npm start, the worker, migrations, seeds, user:add, the tests) elsewhere.
 set -euo pipefail
 here="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
 PGPORT="${PGPORT:-54329}"
@@ -39,8 +41,8 @@ resolve_paths() {
     OS_USER="$(id -un)"
     mkdir -p "$DATA_ROOT"
   fi
-  PGDATA="$DATA_ROOT/pg"
-  LOCK="$DATA_ROOT/.db.lock"
+  if [ "$PGPORT" = 54329 ]; then PGDATA="$DATA_ROOT/pg"; else PGDATA="$DATA_ROOT/pg-$PGPORT"; fi
+  LOCK="$PGDATA.lock"
 }
 
 running() {
@@ -110,6 +112,9 @@ case "${1:-}" in
     [[ "$2" =~ ^[a-z_][a-z0-9_]*$ ]] || { echo "db: bad database name '$2'" >&2; exit 1; }
     psql_admin -d postgres -c "drop database if exists $2 with (force)" >/dev/null
     ensure_database "$2" ;;
-  destroy) stop; rm -rf "$PGDATA" ;;
-  *) echo "usage: scripts/db.sh start|stop|status|url [db]|createdb NAME|recreatedb NAME|destroy" >&2; exit 2 ;;
+  destroy) stop; rm -rf "$PGDATA" "$LOCK" ;;
+  kill) # a crash, for the fault tests: the postmaster is killed, not stopped
+    resolve_paths
+    if running; then kill -9 "$(head -1 "$PGDATA/postmaster.pid")"; echo "db: killed" >&2; else echo "db: not running" >&2; fi ;;
+  *) echo "usage: scripts/db.sh start|stop|status|url [db]|createdb NAME|recreatedb NAME|destroy|kill" >&2; exit 2 ;;
 esac

@@ -1,6 +1,7 @@
 #!/usr/bin/env bash
 # The end-to-end server: its own fresh database (trenchbook_e2e) and its own port (3100), started by Playwright.
-# Needs a finished `next build`. Never reuses a developer's running server.
+# Needs a finished `next build`. Never reuses a developer's running server. Runs the web server and the job
+# worker the way `npm start` does (scripts/server.ts, scripts/worker.ts).
 set -euo pipefail
 here="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
 cd "$here"
@@ -15,4 +16,6 @@ export EXPORTS_DIR="$here/.data/e2e-exports" STORAGE_DIR="$here/.data/e2e-storag
 export SIGNIN_MAX_PER_EMAIL=3 SIGNIN_WINDOW_SECONDS=8 SIGNIN_MAX_PER_IP=1000
 npm run --silent db:migrate
 npm run --silent db:seed
-exec npx next start -H 127.0.0.1 -p "$E2E_PORT"
+# the job worker in a process of its own, as npm start runs it; Playwright ends the whole process group
+node --import tsx scripts/worker.ts &
+PORT="$E2E_PORT" exec node --import tsx scripts/server.ts

@@ -27,6 +27,9 @@ function declaredTooLarge(req: IncomingMessage, maxJson: number): number | undef
   return type.startsWith('multipart/form-data') ? undefined : length;
 }
 
+// a database that goes away for a moment must not end the web server; requests meanwhile get a 500
+process.on('unhandledRejection', (err) => console.error('[trenchbook] server: a background call failed', err instanceof Error ? err.message : err));
+
 async function main() {
   const e = env();
   const trusted = parseProxyList(e.TRUSTED_PROXIES);
@@ -41,6 +44,12 @@ async function main() {
     // Next fills X-Forwarded-For only when it is missing: give it the address we resolved
     req.headers['x-forwarded-for'] ??= ip;
 
+    // %00 decodes to NUL, which no page or route has a use for (and PostgreSQL cannot store in text)
+    if (/%00/.test(req.url ?? '')) {
+      refuse(res, 400, errorBody('bad_request', 'The address contains a NUL character (%00), which is not allowed.'));
+      req.resume();
+      return;
+    }
     const tooLarge = declaredTooLarge(req, e.JSON_MAX_BYTES);
     if (tooLarge !== undefined) {
       refuse(res, 413, errorBody('too_large', `The request body is ${tooLarge} bytes; the limit is ${e.JSON_MAX_BYTES} bytes.`));

@@ -6,6 +6,10 @@ import { stopBoss } from '../lib/jobs/boss';
 import { startHousekeeping } from '../lib/jobs/housekeeping';
 import { startWorkers } from '../lib/jobs/queue';
 
+// The worker outlives a database that goes away: the queue's own background queries then fail now and then,
+// and a failure of one of those must not end the process; housekeeping settles the jobs once it is back.
+process.on('unhandledRejection', (err) => console.error('[trenchbook] worker: a background call failed (is the database down?)', err instanceof Error ? err.message : err));
+
 async function main() {
   env(); // fail at once, listing every malformed variable
   const db = getDb();
