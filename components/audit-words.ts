@@ -13,6 +13,7 @@ export interface AuditLike {
 type Obj = Record<string, unknown>;
 const isObj = (v: unknown): v is Obj => typeof v === 'object' && v !== null && !Array.isArray(v);
 
+const deg = (v: unknown) => (typeof v === 'number' ? String(Number(v.toFixed(5))) : say(v));
 const metres = (v: unknown) => (typeof v === 'number' ? `${v} m` : say(v));
 
 /** Field names of the stored objects, and how their values read. */
@@ -20,7 +21,8 @@ const FIELDS: Record<string, { name: string; value?: (v: unknown) => string }> =
   name: { name: 'the name' },
   areaName: { name: 'the area' },
   defaultCrs: { name: 'the coordinate system' },
-  extent: { name: 'the extent', value: (v) => (Array.isArray(v) ? `W ${v[0]}, S ${v[1]}, E ${v[2]}, N ${v[3]}` : 'not set') },
+  // five decimals of a degree is about a metre
+  extent: { name: 'the extent', value: (v) => (Array.isArray(v) ? `W ${deg(v[0])}, S ${deg(v[1])}, E ${deg(v[2])}, N ${deg(v[3])}` : 'not set') },
   timeZone: { name: 'the time zone' },
   unitSystem: { name: 'the units', value: (v) => (v === 'imperial' ? 'imperial' : 'metric') },
   minCoverDepthM: { name: 'the minimum cover depth', value: metres },
@@ -79,6 +81,19 @@ function changes(before: unknown, after: unknown): string {
   return keys.map((k) => `${FIELDS[k]?.name ?? words(k)} from ${valueOf(k, b[k])} to ${valueOf(k, a[k])}`).join('; ');
 }
 
+// short reasons for the log; the upload form says more
+const REFUSAL: Record<string, string> = {
+  crs_required: 'no coordinate system given',
+  unknown_crs: 'unknown coordinate system',
+  swapped_axes: 'coordinates look swapped',
+  out_of_range: 'positions outside the world',
+  malformed: 'damaged or unreadable rows',
+  unsafe_xml: 'refused for safety',
+  unsafe_zip: 'refused for safety',
+  zip_limits: 'zip too large when unpacked',
+  missing_parts: 'shapefile parts missing',
+  too_few_points: 'no line with two points',
+};
 const SIDE = (v: unknown) => (v === 'owner' ? 'network owner' : 'contractor');
 const capital = (s: string) => (s ? s[0].toUpperCase() + s.slice(1) : s);
 /** A person's own words, ended with one full stop. */
@@ -113,13 +128,17 @@ export function describeAudit(e: AuditLike): string {
     case 'organisation register':
     case 'organisation create':
       return `Registered the ${SIDE(a.kind)} ${say(a.name)}.`;
+    case 'reconcile_run run':
+      return `Matched the uploads to the plan: ${Number(a.matched ?? 0).toLocaleString('en-GB')} of ${plural(Number(a.fixes ?? 0), 'fix', 'fixes')} on a planned route; ${plural(Number(a.sections ?? 0), 'section')} (${Number(a.created ?? 0)} new, ${Number(a.retired ?? 0)} retired).`;
+    case 'plan_version import':
+      return `Imported version ${say(a.version)} of the planned network: ${plural(Number(a.routes ?? 0), 'route')}; ${Number(a.added ?? 0)} added, ${Number(a.removed ?? 0)} removed, ${Number(a.reshaped ?? 0)} reshaped, ${Number(a.retagged ?? 0)} retagged.`;
     case 'upload create': {
       const names = say(a.fileName);
-      if (a.status === 'failed') return `Uploaded ${names}; it was refused (${say(a.error)}) and kept for another try.`;
+      if (a.status === 'failed') return `Uploaded ${names}; it was refused (${REFUSAL[String(a.error)] ?? say(a.error)}) and kept for another try.`;
       return `Uploaded ${names}: ${plural(Number(a.featureCount), 'line or point', 'lines and points')}, ${plural(Number(a.pointCount), 'position')}${a.crs ? ` in ${say(a.crs)}` : ''}.`;
     }
     case 'upload retry':
-      return `Read a refused upload again${isObj(a.settings) && a.settings.crs ? ` in ${say(a.settings.crs)}` : ''}: ${a.status === 'stored' ? 'now stored' : `still refused (${say(a.error)})`}.`;
+      return `Read a refused upload again${isObj(a.settings) && a.settings.crs ? ` in ${say(a.settings.crs)}` : ''}: ${a.status === 'stored' ? 'now stored' : `still refused (${REFUSAL[String(a.error)] ?? say(a.error)})`}.`;
     case 'upload withdraw':
       return `Withdrew an upload from the record. Reason: ${quoted(a.reason)}`;
     case 'upload exclude_range':

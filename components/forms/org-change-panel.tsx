@@ -6,6 +6,7 @@ import type { OrgChange } from '@/db/org-changes';
 import type { Organisation } from '@/db/organisations';
 import { Badge, Button, Field, Input, Notice, Select } from '@/components/ui/primitives';
 import { callApi } from './api-client';
+import { RegisterOrganisation } from './register-organisation';
 
 type Side = 'owner' | 'contractor';
 const SIDE: Record<Side, string> = { owner: 'network owner', contractor: 'contractor' };
@@ -45,11 +46,12 @@ export function OrgChangePanel({
   const [errors, setErrors] = useState<Record<string, string>>({});
   const [message, setMessage] = useState<{ tone: 'ok' | 'bad'; text: string } | null>(null);
   const [busy, setBusy] = useState(false);
+  const [known, setKnown] = useState(organisations);
   const fmt = new Intl.DateTimeFormat('en-GB', { dateStyle: 'medium', timeStyle: 'short', timeZone });
   const pending = changes.find((c) => c.status === 'pending');
   const other = myOrganisationId === owner.id ? contractor : owner;
   const current = side === 'owner' ? owner : contractor;
-  const choices = organisations.filter((o) => o.kind === side && o.id !== current.id);
+  const choices = known.filter((o) => o.kind === side && o.id !== current.id);
 
   async function propose(e: React.FormEvent) {
     e.preventDefault();
@@ -147,7 +149,7 @@ export function OrgChangePanel({
               <option value="contractor">The contractor</option>
             </Select>
           </Field>
-          <Field label={`New ${SIDE[side]}`} htmlFor="org-change-target" error={errors.organisationId} hint={choices.length ? undefined : `No other ${SIDE[side]} is registered yet; register it when you create a project.`}>
+          <Field label={`New ${SIDE[side]}`} htmlFor="org-change-target" error={errors.organisationId} hint={choices.length ? undefined : `No other ${SIDE[side]} is registered yet.`}>
             <Select id="org-change-target" value={target} onChange={(e) => setTarget(e.target.value)} aria-invalid={!!errors.organisationId}>
               <option value="">Pick the {SIDE[side]}…</option>
               {choices.map((o) => (
@@ -157,6 +159,16 @@ export function OrgChangePanel({
               ))}
             </Select>
           </Field>
+          <div className="sm:col-start-2">
+            <RegisterOrganisation
+              key={side}
+              kind={side}
+              onRegistered={(org) => {
+                setKnown((k) => [...k, { ...org, kind: side }].sort((a, b) => a.name.localeCompare(b.name)));
+                setTarget(org.id);
+              }}
+            />
+          </div>
           <div className="sm:col-span-2">
             <Field label="Reason" htmlFor="org-change-reason" error={errors.reason} hint={`${other.name} reads this before confirming.`}>
               <Input id="org-change-reason" value={reason} onChange={(e) => setReason(e.target.value)} aria-invalid={!!errors.reason} />

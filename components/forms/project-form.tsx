@@ -6,6 +6,7 @@ import { Button, Field, Input, Notice, Select } from '@/components/ui/primitives
 import { ACCURACY_CLASS_LABELS, ACCURACY_CLASSES, DEFAULT_SIGMA_M } from '@/lib/records/accuracy-classes';
 import { RANGES, rangeProblem, rangeText } from '@/lib/records/plausible-ranges';
 import { callApi } from './api-client';
+import { RegisterOrganisation } from './register-organisation';
 
 export interface PickableOrganisation {
   id: string;
@@ -195,24 +196,7 @@ export function ProjectForm({
 function PartnerPicker({ partner, error }: { partner: NonNullable<Parameters<typeof ProjectForm>[0]['partner']>; error?: string }) {
   const [options, setOptions] = useState(partner.options);
   const [picked, setPicked] = useState('');
-  const [registering, setRegistering] = useState(false);
-  const [newName, setNewName] = useState('');
-  const [problem, setProblem] = useState<string | null>(null);
   const side = partner.kind === 'owner' ? 'network owner' : 'contractor';
-
-  async function register() {
-    setProblem(null);
-    const res = await callApi<{ organisation: PickableOrganisation }>('/api/organisations', 'POST', { name: newName.trim(), kind: partner.kind });
-    if (!res.ok) {
-      setProblem(res.fieldErrors.name ?? res.message);
-      return;
-    }
-    const org = res.data.organisation;
-    setOptions((o) => [...o, org].sort((a, b) => a.name.localeCompare(b.name)));
-    setPicked(org.id);
-    setRegistering(false);
-    setNewName('');
-  }
 
   return (
     <div className="space-y-2">
@@ -226,32 +210,13 @@ function PartnerPicker({ partner, error }: { partner: NonNullable<Parameters<typ
           ))}
         </Select>
       </Field>
-      {!registering ? (
-        <button type="button" className="text-xs font-medium text-brand-dark underline" onClick={() => setRegistering(true)}>
-          Not in the list? Register a new {side}
-        </button>
-      ) : (
-        <div className="space-y-2 rounded-md border border-ink/15 bg-paper p-3" role="group" aria-label={`Register a new ${side}`}>
-          <Field label={`Full name of the new ${side}`} htmlFor="newOrganisationName" error={problem ?? undefined} hint="Check the spelling: the name is shown to everyone who works on its projects.">
-            <Input
-              id="newOrganisationName"
-              value={newName}
-              onChange={(e) => setNewName(e.target.value)}
-              onKeyDown={(e) => {
-                if (e.key === 'Enter') e.preventDefault();
-              }}
-            />
-          </Field>
-          <div className="flex flex-wrap gap-2">
-            <Button type="button" variant="secondary" disabled={newName.trim().length < 2} onClick={register}>
-              Register {newName.trim() ? `“${newName.trim()}”` : 'it'}
-            </Button>
-            <Button type="button" variant="secondary" onClick={() => setRegistering(false)}>
-              Cancel
-            </Button>
-          </div>
-        </div>
-      )}
+      <RegisterOrganisation
+        kind={partner.kind}
+        onRegistered={(org) => {
+          setOptions((o) => [...o, org].sort((a, b) => a.name.localeCompare(b.name)));
+          setPicked(org.id);
+        }}
+      />
     </div>
   );
 }

@@ -5,7 +5,7 @@ import { useCallback, useEffect, useRef, useState } from 'react';
 import { ACCURACY_CLASS_LABELS } from '@/lib/records/accuracy-classes';
 import { Badge, Button, Field, Input, Select } from '@/components/ui/primitives';
 import { callApi } from './api-client';
-import { explainRefusal as explain, plural, RETRYABLE, storedMessage } from '@/components/ui/upload-words';
+import { explainRefusal as explain, plural, RETRYABLE, storedMessage, warningWords } from '@/components/ui/upload-words';
 
 type ItemState = 'mapping' | 'uploading' | 'parsing' | 'stored' | 'duplicate' | 'failed';
 
@@ -118,7 +118,7 @@ export function UploadPanel({ projectId, defaultAccuracy, defaultCrs }: { projec
       patch(item.key, {
         state: res.status === 201 ? 'stored' : 'duplicate',
         uploadId: u.id,
-        message: res.status === 201 ? `${storedMessage(u)}${u.warnings.length ? ` Note: ${u.warnings.join(' · ')}` : ''}` : 'This file is already in the project: nothing new was stored.',
+        message: res.status === 201 ? `${storedMessage(u)}${u.warnings.length ? ` ${u.warnings.map(warningWords).join(' ')}` : ''}` : 'This file is already in the project: nothing new was stored.',
       });
     } else {
       const why = explain(err?.code, err?.message ?? `The server answered ${res.status}.`, defaultCrs);

@@ -47,3 +47,11 @@ export function explainRefusal(code: string | undefined, serverMessage: string, 
   }
 }
 
+
+/** A parser's warning in a surveyor's words where it speaks to API clients; others are plain already. */
+export function warningWords(w: string): string {
+  if (w.startsWith('columns were guessed from the header')) return 'Columns recognised from the header.';
+  const crs = /^the file's crs member says (EPSG:\d+); (EPSG:\d+) from the request was used$/.exec(w);
+  if (crs) return `The file says ${crs[1]}; ${crs[2]}, chosen on the form, was used.`;
+  return w[0].toUpperCase() + w.slice(1) + (/[.!?]$/.test(w) ? '' : '.');
+}

@@ -32,7 +32,12 @@ describe('the activity log in words', () => {
     expect(describeAudit({ objectType: 'upload', action: 'create', before: null, after: { fileName: ['a.gpx'], status: 'stored', featureCount: 1, pointCount: 15, crs: 'EPSG:4326' } })).toBe(
       'Uploaded a.gpx: 1 line or point, 15 positions in EPSG:4326.',
     );
-    expect(describeAudit({ objectType: 'upload', action: 'create', before: null, after: { fileName: ['b.csv'], status: 'failed', error: 'crs_required' } })).toContain('refused');
+    expect(describeAudit({ objectType: 'upload', action: 'create', before: null, after: { fileName: ['b.csv'], status: 'failed', error: 'crs_required' } })).toBe(
+      'Uploaded b.csv; it was refused (no coordinate system given) and kept for another try.',
+    );
+    expect(describeAudit({ objectType: 'reconcile_run', action: 'run', before: null, after: { fixes: 3424, matched: 387, sections: 20, created: 0, retired: 1 } })).toBe(
+      'Matched the uploads to the plan: 387 of 3,424 fixes on a planned route; 20 sections (0 new, 1 retired).',
+    );
   });
 });
 

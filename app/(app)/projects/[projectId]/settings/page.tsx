@@ -27,7 +27,8 @@ export default async function ProjectSettingsPage({ params }: { params: Promise<
               name: project.name,
               areaName: project.areaName,
               defaultCrs: project.defaultCrs.replace(/^EPSG:/, ''),
-              extent: project.extent,
+              // 7 decimals of a degree is about a centimetre: PostGIS's doubles print with float noise beyond it
+              extent: project.extent && (project.extent.map((v) => Number(v.toFixed(7))) as [number, number, number, number]),
               timeZone: project.timeZone,
               unitSystem: project.unitSystem,
               minCoverDepthM: project.minCoverDepthM,

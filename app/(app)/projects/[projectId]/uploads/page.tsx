@@ -7,7 +7,7 @@ import { ACCURACY_CLASS_LABELS } from '@/lib/records/accuracy-classes';
 import { DataTable } from '@/components/ui/data-table';
 import { Card, PageHeader } from '@/components/ui/primitives';
 import { UploadPanel } from '@/components/forms/upload-panel';
-import { explainRefusal } from '@/components/ui/upload-words';
+import { explainRefusal, warningWords } from '@/components/ui/upload-words';
 
 export const metadata: Metadata = { title: 'Field uploads' };
 
@@ -33,32 +33,26 @@ export default async function UploadsPage({ params }: { params: Promise<{ projec
         label="Uploads"
         empty="Nothing uploaded yet."
         columns={[
-          { key: 'file', label: 'File', priority: 1 },
-          { key: 'format', label: 'Format' },
-          { key: 'crs', label: 'Coordinate system' },
-          { key: 'features', label: 'Lines and points', align: 'right' },
+          { key: 'file', label: 'File' },
+          { key: 'status', label: 'Status', priority: 1 },
+          { key: 'format', label: 'Format and grid' },
           { key: 'points', label: 'Positions', align: 'right' },
           { key: 'accuracy', label: 'Accuracy' },
           { key: 'surveyed', label: 'Survey date' },
-          { key: 'who', label: 'Who' },
-          { key: 'when', label: 'When' },
-          { key: 'status', label: 'Status', priority: 1 },
+          { key: 'when', label: 'Uploaded' },
           { key: 'notes', label: 'Notes' },
         ]}
         rows={uploads.map((u) => ({
           id: u.id,
           cells: {
             file: { text: u.fileName, href: `/projects/${project.id}/uploads/${u.id}` },
-            format: u.format ?? '—',
-            crs: u.crs ?? '—',
-            features: u.featureCount,
-            points: u.pointCount,
-            accuracy: `${ACCURACY_CLASS_LABELS[u.accuracyClass]} (σ ${u.sigmaM} m)`,
-            surveyed: u.surveyDate ?? '—',
-            who: u.uploadedByName ?? '—',
-            when: { text: fmt.format(new Date(u.createdAt)), sort: u.createdAt },
             status: { text: STATUS_WORD[u.status], tone: STATUS_TONE[u.status] },
-            notes: u.error ? explainRefusal(u.error.code, u.error.message, project.defaultCrs).text : u.warnings.join(' · '),
+            format: u.format ? `${u.format.toUpperCase()}${u.crs ? ` · ${u.crs}` : ''}` : '—',
+            points: u.pointCount,
+            accuracy: `${ACCURACY_CLASS_LABELS[u.accuracyClass]} (±${u.sigmaM} m)`,
+            surveyed: u.surveyDate ?? '—',
+            when: { text: `${fmt.format(new Date(u.createdAt))}${u.uploadedByName ? `, ${u.uploadedByName}` : ''}`, sort: u.createdAt },
+            notes: u.error ? explainRefusal(u.error.code, u.error.message, project.defaultCrs).text : u.warnings.map(warningWords).join(' '),
           },
         }))}
       />
