@@ -15,14 +15,19 @@ const SERIES_COLOURS = ['#0072b2', '#d55e00', '#56b4e9', '#cc79a7', '#f0e442', '
  * tolerance as a band around the plan and the section's as-built line drawn through them.
  */
 export function OffsetPlot({ series, asBuilt, toleranceM, fromM, toM, summary }: { series: OffsetSeries[]; asBuilt: { chainageM: number; offsetM: number }[]; toleranceM: number; fromM: number; toM: number; summary: string }) {
-  const all = [...series.flatMap((s) => s.points.map((p) => p.offsetM)), ...asBuilt.map((p) => p.offsetM), toleranceM, -toleranceM];
-  const span = Math.max(1, ...all.map(Math.abs));
+  // the axis spans most observations, not the wildest: a few fixes of a turn 15 m off the route would
+  // otherwise squeeze the tolerance band to a hairline. It always shows the band at a third of the height or more.
+  const observed = Float64Array.from(series.flatMap((s) => s.points.map((p) => Math.abs(p.offsetM)))).sort();
+  const typical = observed.length ? observed[Math.min(observed.length - 1, Math.floor(0.95 * observed.length))] * 1.25 : 0;
+  const span = Math.max(1, 3 * toleranceM, typical, ...asBuilt.map((p) => Math.abs(p.offsetM)));
   // symmetric ticks on a 1–2–5 step, so that 0 (the plan) and the tolerance read off at a glance
   const raw = (span * 1.1) / 3;
   const mag = 10 ** Math.floor(Math.log10(raw));
   const step = [1, 2, 5, 10].map((k) => k * mag).find((x) => x >= raw)!;
   const lim = Math.ceil((span * 1.1) / step) * step;
   const ticks = Array.from({ length: Math.round((2 * lim) / step) + 1 }, (_, i) => Math.round((-lim + i * step) * 1e6) / 1e6);
+  let beyond = 0;
+  for (let i = observed.length - 1; i >= 0 && observed[i] > lim; i--) beyond++;
   return (
     <figure role="img" aria-label={`Offset from the plan against chainage. ${summary}`} className="w-full">
       <div className="h-72 w-full">
@@ -47,6 +52,7 @@ export function OffsetPlot({ series, asBuilt, toleranceM, fromM, toM, summary }:
       </div>
       <figcaption className="mt-1 text-xs text-ink-soft">
         Green band between the dashed green lines: the project&apos;s lateral tolerance of ±{toleranceM} m around the plan. {summary}
+        {beyond > 0 && ` ${beyond} observation${beyond === 1 ? '' : 's'} beyond ±${lim} m lie${beyond === 1 ? 's' : ''} off the plot's edge.`}
       </figcaption>
     </figure>
   );

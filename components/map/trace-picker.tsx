@@ -15,7 +15,7 @@ export interface TraceFix {
 }
 
 /** Colours along the walk, first fix light to last fix dark (a sequential ramp that reads without hue). */
-const RAMP = ['#c6dbef', '#6baed6', '#2171b5', '#08306b'];
+const RAMP = ['#9ecae1', '#4292c6', '#2171b5', '#08306b'];
 const PICKED = '#d55e00';
 
 /**

@@ -4,7 +4,7 @@ import { DEMO, signIn } from '../helpers/e2e';
 test('an engineer reconciles the project and reads planned against built', async ({ page }) => {
   await signIn(page, DEMO.engineer);
   await page.getByRole('link', { name: 'Quillhaven North, phase 1' }).click();
-  await page.getByRole('link', { name: 'Planned against built' }).click();
+  await page.getByRole('navigation', { name: 'Project' }).getByRole('link', { name: 'Planned against built' }).click();
   await expect(page.getByRole('heading', { name: 'Planned against built' })).toBeVisible();
   await page.getByRole('button', { name: 'Reconcile now' }).click();
   await expect(page.getByText(/Run \d+: \d+ sections/)).toBeVisible({ timeout: 30_000 });
@@ -36,7 +36,7 @@ test('an engineer reconciles the project and reads planned against built', async
 test('a network owner reads the reconciliation but cannot run or review it', async ({ page }) => {
   await signIn(page, DEMO.owner);
   await page.getByRole('link', { name: 'Quillhaven North, phase 1' }).click();
-  await page.getByRole('link', { name: 'Planned against built' }).click();
+  await page.getByRole('navigation', { name: 'Project' }).getByRole('link', { name: 'Planned against built' }).click();
   await expect(page.getByRole('table', { name: 'Sections' })).toBeVisible();
   await expect(page.getByRole('button', { name: 'Reconcile now' })).toHaveCount(0);
   await expect(page.getByRole('button', { name: 'Approve' })).toHaveCount(0);

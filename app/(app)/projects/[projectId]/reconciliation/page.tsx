@@ -81,8 +81,7 @@ export default async function ReconciliationPage({ params }: { params: Promise<{
             columns={[
               { key: 'route', label: 'Route' },
               { key: 'street', label: 'Street' },
-              { key: 'from', label: 'From', align: 'right' },
-              { key: 'to', label: 'To', align: 'right' },
+              { key: 'chainage', label: 'Chainage', align: 'right' },
               { key: 'length', label: 'Length', align: 'right' },
               { key: 'status', label: 'Status' },
               { key: 'max', label: 'Max offset', align: 'right' },
@@ -99,8 +98,8 @@ export default async function ReconciliationPage({ params }: { params: Promise<{
                 cells: {
                   route: { text: s.plannedRouteRef ?? 'unplanned', href: `/projects/${project.id}/sections/${s.id}` },
                   street,
-                  from: { text: formatLength(s.fromChainageM, unit), sort: s.fromChainageM },
-                  to: { text: formatLength(s.toChainageM, unit), sort: s.toChainageM },
+                  // an unplanned line has no chainage on a route: metres along itself
+                  chainage: { text: `${formatLength(s.fromChainageM, unit)} – ${formatLength(s.toChainageM, unit)}`, sort: s.fromChainageM },
                   length: { text: formatLength(s.lengthM, unit), sort: s.lengthM },
                   status: { text: STATUS_STYLE[s.status].label, swatch: STATUS_STYLE[s.status].colour },
                   max: figure(s.maxOffsetM),

@@ -89,7 +89,7 @@ export default async function UploadPage({ params, searchParams }: { params: Pro
               {facts.map(([k, v]) => (
                 <div key={k} className="grid grid-cols-3 gap-2">
                   <dt className="text-ink-faint">{k}</dt>
-                  <dd className="col-span-2 break-all">{v}</dd>
+                  <dd className={`col-span-2 ${k === 'SHA-256' ? 'break-all' : 'break-words'}`}>{v}</dd>
                 </div>
               ))}
             </dl>
