@@ -3,6 +3,7 @@
 import { useRouter } from 'next/navigation';
 import { useCallback, useEffect, useRef, useState } from 'react';
 import { ACCURACY_CLASS_LABELS } from '@/lib/records/accuracy-classes';
+import { DATE_RANGE } from '@/lib/records/plausible-ranges';
 import { Badge, Button, Field, Input, Select } from '@/components/ui/primitives';
 import { callApi } from './api-client';
 import { explainRefusal as explain, plural, RETRYABLE, storedMessage, warningWords } from '@/components/ui/upload-words';
@@ -184,7 +185,7 @@ export function UploadPanel({ projectId, defaultAccuracy, defaultCrs }: { projec
           </Select>
         </Field>
         <Field label="Survey date" htmlFor="up-date">
-          <Input id="up-date" type="date" value={settings.surveyDate} onChange={(e) => setSettings({ ...settings, surveyDate: e.target.value })} />
+          <Input id="up-date" type="date" min={DATE_RANGE.min} max={new Date(Date.now() + DATE_RANGE.maxDaysAhead * 86_400_000).toISOString().slice(0, 10)} value={settings.surveyDate} onChange={(e) => setSettings({ ...settings, surveyDate: e.target.value })} />
         </Field>
         <Field label="Crew" htmlFor="up-crew">
           <Input id="up-crew" value={settings.crew} onChange={(e) => setSettings({ ...settings, crew: e.target.value })} placeholder="e.g. Crew 2" />

@@ -23,7 +23,7 @@ export interface Column {
 
 /** The classes that turn a cell into a labelled line of a card below the `sm` breakpoint. */
 function phoneCell(c: Column, first: boolean): string {
-  if (first) return 'col-span-2 order-[-2] font-medium sm:order-none sm:font-normal';
+  if (first) return 'col-span-2 order-[-2] pr-8 font-medium sm:order-none sm:pr-3 sm:font-normal';
   const label = 'before:block before:text-[11px] before:font-semibold before:uppercase before:tracking-wide before:text-ink-faint before:content-[attr(data-label)] sm:before:content-none';
   const order = c.priority === 1 ? 'order-[-1] sm:order-none' : '';
   const hide = c.priority === 3 ? 'hidden sm:table-cell' : 'empty:hidden sm:empty:table-cell';
@@ -113,9 +113,9 @@ export function DataTable({ columns, rows, label, empty = 'Nothing here yet.', s
           </thead>
           <tbody className="block divide-y divide-ink/5 sm:table-row-group">
             {shown.map((r) => (
-              <tr key={r.id} className="grid grid-cols-2 gap-x-3 gap-y-2 px-3 py-3 hover:bg-paper/60 sm:table-row sm:p-0">
+              <tr key={r.id} className="relative grid grid-cols-2 gap-x-3 gap-y-2 px-3 py-3 hover:bg-paper/60 sm:static sm:table-row sm:p-0">
                 {selection && (
-                  <td className="order-[-3] block sm:order-none sm:table-cell sm:px-3 sm:py-2 sm:align-top">
+                  <td className="absolute right-3 top-3 block sm:static sm:table-cell sm:px-3 sm:py-2 sm:align-top">
                     {(selection.canSelect?.(r) ?? true) && (
                       <input type="checkbox" aria-label={selection.rowLabel(r)} checked={selection.selected.has(r.id)} onChange={(e) => {
                         const next = new Set(selection.selected);
