@@ -8,7 +8,7 @@ import { requireProjectPage } from '@/lib/auth/page-guards';
 import { can } from '@/lib/auth/roles';
 import { ACCURACY_CLASS_LABELS, R95_FACTOR } from '@/lib/records/accuracy-classes';
 import { formatLength } from '@/lib/records/units';
-import { explainRefusal } from '@/components/ui/upload-words';
+import { explainRefusal, plural } from '@/components/ui/upload-words';
 import { DataTable } from '@/components/ui/data-table';
 import { Badge, Card, Notice, PageHeader } from '@/components/ui/primitives';
 import { GeoMap, type MapLayer } from '@/components/map/geo-map';
@@ -54,7 +54,7 @@ export default async function UploadPage({ params, searchParams }: { params: Pro
   const facts: [string, string][] = [
     ['Format', upload.format ?? '—'],
     ['Coordinate system of the file', upload.crs ?? '—'],
-    ['Features / points', `${upload.featureCount} / ${upload.pointCount}`],
+    ['Contents', `${plural(upload.featureCount, 'line or point', 'lines and points')}, ${plural(upload.pointCount, 'position')}`],
     ['Accuracy', `${ACCURACY_CLASS_LABELS[upload.accuracyClass]}: a typical error of ${formatLength(upload.sigmaM, project.unitSystem)} east–west and north–south (one standard deviation); 95 % of positions within ${formatLength(upload.sigmaM * R95_FACTOR, project.unitSystem)}`],
     ['Survey date', upload.surveyDate ?? '—'],
     ['Crew', upload.crew || '—'],
