@@ -1,7 +1,8 @@
 import type { Db } from './client';
+import type { ProjectOrgChangeRow } from './tables';
 import type { OrgKind } from '@/lib/auth/roles';
 
-export type OrgChangeStatus = 'pending' | 'confirmed' | 'declined' | 'withdrawn';
+export type OrgChangeStatus = ProjectOrgChangeRow['status'];
 
 /** A proposed change of a project's network owner or contractor, and how it was answered. */
 export interface OrgChange {
@@ -23,24 +24,13 @@ export interface OrgChange {
   answerNote: string | null;
 }
 
-interface JoinedRow {
-  id: string;
-  project_id: string;
-  side: OrgKind;
-  from_org_id: string;
+type JoinedRow = ProjectOrgChangeRow & {
   from_org_name: string;
-  to_org_id: string;
   to_org_name: string;
-  reason: string;
   proposed_by_name: string | null;
-  proposed_by_org_id: string;
   proposed_by_org_name: string;
-  proposed_at: Date;
-  status: OrgChangeStatus;
   answered_by_name: string | null;
-  answered_at: Date | null;
-  answer_note: string | null;
-}
+};
 
 const toDto = (r: JoinedRow): OrgChange => ({
   id: Number(r.id),

@@ -102,3 +102,19 @@ export interface JobRow {
   queue_job_id: string | null;
   heartbeat_at: Date | null;
 }
+
+export interface ProjectOrgChangeRow {
+  id: string; // bigint, as pg returns it
+  project_id: string;
+  side: OrgKind;
+  from_org_id: string;
+  to_org_id: string;
+  reason: string;
+  proposed_by: string | null;
+  proposed_by_org_id: string;
+  proposed_at: Date;
+  status: 'pending' | 'confirmed' | 'declined' | 'withdrawn';
+  answered_by: string | null;
+  answered_at: Date | null;
+  answer_note: string | null;
+}
