@@ -14,11 +14,13 @@ const SERIES_COLOURS = ['#0072b2', '#d55e00', '#56b4e9', '#cc79a7', '#f0e442', '
  * Lateral offset of each matched observation from the planned route against chainage, with the project's
  * tolerance as a band around the plan and the section's as-built line drawn through them.
  */
-export function OffsetPlot({ series, asBuilt, toleranceM, fromM, toM, summary }: { series: OffsetSeries[]; asBuilt: { chainageM: number; offsetM: number }[]; toleranceM: number; fromM: number; toM: number; summary: string }) {
+export function OffsetPlot({ series, asBuilt, toleranceM, fromM, toM, section, summary }: { series: OffsetSeries[]; asBuilt: { chainageM: number; offsetM: number }[]; toleranceM: number; fromM: number; toM: number; section?: [number, number]; summary: string }) {
   // the axis spans most observations, not the wildest: a few fixes of a turn 15 m off the route would
   // otherwise squeeze the tolerance band to a hairline. It always shows the band at a third of the height or more.
+  // Scaled on the section's own observations (the margins either side may hold a turn onto another street).
   const observed = Float64Array.from(series.flatMap((s) => s.points.map((p) => Math.abs(p.offsetM)))).sort();
-  const typical = observed.length ? observed[Math.min(observed.length - 1, Math.floor(0.95 * observed.length))] * 1.25 : 0;
+  const own = Float64Array.from(series.flatMap((s) => s.points.filter((p) => !section || (p.chainageM >= section[0] && p.chainageM <= section[1])).map((p) => Math.abs(p.offsetM)))).sort();
+  const typical = own.length ? own[Math.min(own.length - 1, Math.floor(0.95 * own.length))] * 1.25 : 0;
   const span = Math.max(1, 3 * toleranceM, typical, ...asBuilt.map((p) => Math.abs(p.offsetM)));
   // symmetric ticks on a 1–2–5 step, so that 0 (the plan) and the tolerance read off at a glance
   const raw = (span * 1.1) / 3;

@@ -64,12 +64,13 @@ export function SectionsReviewTable({ projectId, columns, rows, meta, reviewer }
         selection={{ selected, onChange: setSelected, rowLabel: (r) => `Select ${meta[r.id]?.label ?? r.id}` }}
         toolbar={(shown) => {
           const asPlanned = shown.filter((r) => meta[r.id]?.status === 'as_planned' && meta[r.id]?.review !== 'approved').map((r) => r.id);
+          if (asPlanned.length === 0) return <p className="text-sm text-ink-soft">Every as-planned section shown is approved.</p>;
           return (
             <div className="flex flex-wrap items-center gap-2 text-sm">
-              <Button type="button" variant="secondary" disabled={asPlanned.length === 0} onClick={() => setSelected(new Set(asPlanned))}>
+              <Button type="button" variant="secondary" onClick={() => setSelected(new Set(asPlanned))}>
                 Pick the {asPlanned.length} as-planned section{asPlanned.length === 1 ? '' : 's'} shown, not yet approved
               </Button>
-              <Button type="button" disabled={asPlanned.length === 0 || busy} onClick={() => decide('approve', asPlanned)}>
+              <Button type="button" disabled={busy} onClick={() => decide('approve', asPlanned)}>
                 Approve {asPlanned.length === 1 ? 'it' : `all ${asPlanned.length}`}
               </Button>
             </div>

@@ -18,7 +18,7 @@ export type SectionStatusKey = keyof typeof STATUS_STYLE;
 export const REVIEW_STYLE = {
   pending: { label: 'pending', tone: 'muted', settled: false },
   approved: { label: 'approved', tone: 'ok', settled: true },
-  acknowledged: { label: 'acknowledged, not built', tone: 'ok', settled: true },
+  acknowledged: { label: 'acknowledged', tone: 'ok', settled: true },
   rejected: { label: 'rejected', tone: 'bad', settled: false },
 } as const;
 

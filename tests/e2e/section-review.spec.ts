@@ -87,7 +87,7 @@ test('an engineer sees dashes where nothing was measured, one colour per status,
   await bulk.getByLabel(/Comment/).fill('the last 50 m go in with phase 2');
   await bulk.getByRole('button', { name: 'Acknowledge not built' }).click();
   await expect(page.getByText('1 section acknowledged as not built.')).toBeVisible();
-  await expect(gap).toContainText('acknowledged, not built');
+  await expect(gap).toContainText('acknowledged');
   await expect(page.getByLabel('Review progress')).toContainText(/2 of \d+ sections settled/);
 
   // the rest (the unplanned line, and whatever the turn at 100 m made of the route's end) approved together
@@ -126,6 +126,8 @@ test('the section page explains an offset beyond the tolerance that the noise sw
   await expect(page.getByText('Max / 95th-percentile offset').locator('..')).toContainText('—');
   await expect(page.getByText('Position accuracy (95 % radius)').locator('..')).toContainText('—');
   await expect(page.getByRole('button', { name: 'Acknowledge not built' })).toBeVisible();
+  await mapReady(page);
+  await page.screenshot({ path: path.join(SHOTS, 'section-not-built-desktop.png'), fullPage: true });
 });
 
 test('an engineer picks a stretch on the trace map, on the project clock, and takes it back in', async ({ page }) => {

@@ -84,12 +84,13 @@ export default async function ReconciliationPage({ params }: { params: Promise<{
               { key: 'chainage', label: 'Chainage', align: 'right' },
               { key: 'length', label: 'Length', align: 'right' },
               { key: 'status', label: 'Status' },
+              // review beside status: on a narrow screen the columns that scroll away are the figures
+              { key: 'review', label: 'Review' },
               { key: 'max', label: 'Max offset', align: 'right' },
               { key: 'p95', label: 'P95 offset', align: 'right' },
               { key: 'acc', label: 'Accuracy (95 %)', align: 'right' },
               { key: 'sources', label: 'Sources', align: 'right' },
               { key: 'laid', label: 'Laid on' },
-              { key: 'review', label: 'Review' },
             ]}
             rows={sections.map((s) => {
               const street = planned.features.find((f) => f.properties.ref === s.plannedRouteRef)?.properties.street ?? '';

@@ -141,6 +141,7 @@ export default async function SectionPage({ params }: { params: Promise<{ projec
                 toleranceM={d.toleranceM}
                 fromM={Math.max(0, s.fromChainageM - 10)}
                 toM={s.toChainageM + 10}
+                section={[s.fromChainageM, s.toChainageM]}
                 summary={`${observed} matched observations from ${d.observations.length} upload${d.observations.length === 1 ? '' : 's'} within 10 m of the section; as-built line in black.`}
               />
             )}
