@@ -391,7 +391,13 @@ function listRoutes(): string[] {
         const route = '/api/' + path.relative(root, dir).split(path.sep).join('/');
         const methods = new Set<string>();
         for (const m of src.matchAll(/export\s+(?:const|async function)\s+(GET|POST|PUT|PATCH|DELETE)\b/g)) methods.add(m[1]);
-        for (const m of src.matchAll(/handler as (GET|POST|PUT|PATCH|DELETE)/g)) methods.add(m[1]);
+        // export lists, e.g. `export { handler as GET, POST }`
+        for (const m of src.matchAll(/export\s*\{([^}]*)\}/g)) {
+          for (const part of m[1].split(',')) {
+            const name = part.trim().split(/\s+as\s+/).pop() ?? '';
+            if (/^(GET|POST|PUT|PATCH|DELETE)$/.test(name)) methods.add(name);
+          }
+        }
         for (const m of methods) out.push(`${m} ${route}`);
       }
     }
