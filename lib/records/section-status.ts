@@ -2,14 +2,15 @@
  * The one source of the sections' status and review colours and words: the map, the table's badges, the
  * legends and the exports all read them from here, so "unplanned" is the same colour everywhere.
  *
- * Colours from Okabe & Ito's palette ("Color Universal Design", 2008) [published], chosen to stay apart
- * under the common colour-vision deficiencies; not-built is also drawn dashed, so it never rests on colour alone.
+ * The built statuses take colours of Okabe & Ito's palette ("Color Universal Design", 2008) [published], not
+ * built a dark grey: all stay apart under the common colour-vision deficiencies (tests/unit/section-status.test.ts
+ * simulates them), and not built is also drawn dashed, so it never rests on colour alone.
  */
 export const STATUS_STYLE = {
   as_planned: { colour: '#009e73', label: 'as planned', tone: 'ok' },
   deviates: { colour: '#e69f00', label: 'deviates', tone: 'warn' },
   unplanned: { colour: '#cc79a7', label: 'unplanned', tone: 'info' },
-  not_built: { colour: '#999999', label: 'not built', tone: 'muted' },
+  not_built: { colour: '#4d4d4d', label: 'not built', tone: 'muted' },
 } as const;
 
 export type SectionStatusKey = keyof typeof STATUS_STYLE;
