@@ -3,9 +3,10 @@
 import { useRouter } from 'next/navigation';
 import { useRef, useState } from 'react';
 import { Button, Field, Input, Notice } from '@/components/ui/primitives';
+import { explainRefusal, plural } from '@/components/ui/upload-words';
 
 /** Sends a design file with an optional attribute mapping; shows progress and the change list. */
-export function PlanImport({ projectId }: { projectId: string }) {
+export function PlanImport({ projectId, defaultCrs = 'EPSG:4326' }: { projectId: string; defaultCrs?: string }) {
   const router = useRouter();
   const file = useRef<HTMLInputElement>(null);
   const [progress, setProgress] = useState<number | null>(null);
@@ -28,15 +29,18 @@ export function PlanImport({ projectId }: { projectId: string }) {
     xhr.upload.onprogress = (ev) => setProgress(ev.total ? ev.loaded / ev.total : 0);
     xhr.onload = () => {
       setProgress(null);
-      const body = xhr.response as { version?: { version: number; routeCount: number; changes: Record<string, string[]>; diagnostics: unknown[] }; error?: { message: string } } | null;
+      const body = xhr.response as { version?: { version: number; routeCount: number; changes: Record<string, string[]>; diagnostics: unknown[] }; error?: { code?: string; message: string } } | null;
       if (body?.version) {
         const v = body.version;
         setResult({
           tone: 'ok',
-          text: xhr.status === 200 ? `This file is already version ${v.version}; nothing changed.` : `Version ${v.version}: ${v.routeCount} routes — ${v.changes.added.length} added, ${v.changes.removed.length} removed, ${v.changes.reshaped.length} reshaped, ${v.changes.retagged.length} retagged; ${v.diagnostics.length} things to check.`,
+          text: xhr.status === 200 ? `This file is already version ${v.version}; nothing changed.` : `Version ${v.version}: ${plural(v.routeCount, 'route')} — ${v.changes.added.length} added, ${v.changes.removed.length} removed, ${v.changes.reshaped.length} reshaped, ${v.changes.retagged.length} retagged; ${v.diagnostics.length === 1 ? '1 thing' : `${v.diagnostics.length} things`} to check.`,
         });
         router.refresh();
-      } else setResult({ tone: 'bad', text: body?.error?.message ?? `The server answered ${xhr.status}.` });
+      } else if (body?.error) {
+        const why = explainRefusal(body.error.code, body.error.message, defaultCrs);
+        setResult({ tone: 'bad', text: `${why.text.replace('read it again', 'import it again')}${why.detail ? ` (${why.detail})` : ''}` });
+      } else setResult({ tone: 'bad', text: `The server answered ${xhr.status}.` });
     };
     xhr.onerror = () => {
       setProgress(null);
@@ -53,8 +57,8 @@ export function PlanImport({ projectId }: { projectId: string }) {
         <Field label="Design file" htmlFor="plan-file" hint="GeoJSON, KML/KMZ or zipped shapefile">
           <input ref={file} id="plan-file" type="file" multiple className="block w-full text-sm" />
         </Field>
-        <Field label="Coordinate system" htmlFor="plan-crs" hint="Only when the file does not say (EPSG:…)">
-          <Input id="plan-crs" name="plan-crs" placeholder="EPSG:25832" />
+        <Field label="Coordinate system" htmlFor="plan-crs" hint={`EPSG number of the grid, only when the file does not say; this project usually works in ${defaultCrs.replace(/^EPSG:/, '')}.`}>
+          <Input id="plan-crs" name="plan-crs" placeholder="e.g. 25832" />
         </Field>
       </div>
       <fieldset>

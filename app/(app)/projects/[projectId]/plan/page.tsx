@@ -39,7 +39,7 @@ export default async function PlanPage({ params }: { params: Promise<{ projectId
       <div className="space-y-6">
         {can(me.role, 'plan.import') && (
           <Card title={latest ? 'Import a revised design' : 'Import the design'}>
-            <PlanImport projectId={project.id} />
+            <PlanImport projectId={project.id} defaultCrs={project.defaultCrs} />
           </Card>
         )}
         {current.features.length > 0 && (
