@@ -51,6 +51,18 @@ export function explainRefusal(code: string | undefined, serverMessage: string, 
 /** A parser's warning in a surveyor's words where it speaks to API clients; others are plain already. */
 export function warningWords(w: string): string {
   if (w.startsWith('columns were guessed from the header')) return 'Columns recognised from the header.';
+  const mapping = /^attribute mapping guessed from the names present: (\{.*\}); send mapping to set it$/.exec(w);
+  if (mapping) {
+    const names: Record<string, string> = { ref: 'route reference', street: 'street', ducts: 'planned ducts', kind: 'street route or road crossing' };
+    let found: Record<string, string> = {};
+    try {
+      found = JSON.parse(mapping[1]) as Record<string, string>;
+    } catch {
+      // the server wrote it; fall through to the plain list
+    }
+    const list = Object.entries(found).map(([k, col]) => `${names[k] ?? k} from “${col}”`);
+    return list.length ? `Attributes recognised from the file's field names: ${list.join(', ')}. Name the fields above to choose others.` : 'No attribute names were recognised; name the fields above.';
+  }
   const crs = /^the file's crs member says (EPSG:\d+); (EPSG:\d+) from the request was used$/.exec(w);
   if (crs) return `The file says ${crs[1]}; ${crs[2]}, chosen on the form, was used.`;
   return w[0].toUpperCase() + w.slice(1) + (/[.!?]$/.test(w) ? '' : '.');

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { describeAudit, say, words } from '@/components/audit-words';
-import { plural } from '@/components/ui/upload-words';
+import { plural, warningWords } from '@/components/ui/upload-words';
 
 describe('the activity log in words', () => {
   it('says which setting changed, from what to what, with units', () => {
@@ -45,5 +45,15 @@ describe('counts', () => {
   it('uses the singular for one and the plural otherwise', () => {
     expect([plural(0, 'point'), plural(1, 'point'), plural(2, 'point'), plural(1200, 'point')]).toEqual(['0 points', '1 point', '2 points', '1,200 points']);
     expect(plural(1, 'line or point', 'lines and points')).toBe('1 line or point');
+  });
+});
+
+describe('parser warnings', () => {
+  it("turn the API's wording into words for the form", () => {
+    expect(warningWords('attribute mapping guessed from the names present: {"ref":"route_id","street":"street"}; send mapping to set it')).toBe(
+      'Attributes recognised from the file\'s field names: route reference from “route_id”, street from “street”. Name the fields above to choose others.',
+    );
+    expect(warningWords("columns were guessed from the header: id='pt', x='e'; send columns to set them explicitly")).toBe('Columns recognised from the header.');
+    expect(warningWords('feature 3 has no geometry; skipped')).toBe('Feature 3 has no geometry; skipped.');
   });
 });

@@ -9,6 +9,7 @@ import { DataTable } from '@/components/ui/data-table';
 import { Card, Notice, PageHeader } from '@/components/ui/primitives';
 import { GeoMap } from '@/components/map/geo-map';
 import { PlanImport } from '@/components/forms/plan-import';
+import { plural, warningWords } from '@/components/ui/upload-words';
 
 export const metadata: Metadata = { title: 'Planned network' };
 
@@ -34,7 +35,7 @@ export default async function PlanPage({ params }: { params: Promise<{ projectId
     <>
       <PageHeader
         title="Planned network"
-        subtitle={latest ? `Version ${latest.version}: ${current.features.length} routes, ${formatLength(total, project.unitSystem)} planned.` : 'No design imported yet.'}
+        subtitle={latest ? `Version ${latest.version}: ${plural(current.features.length, 'route')}, ${formatLength(total, project.unitSystem)} planned.` : 'No design imported yet.'}
       />
       <div className="space-y-6">
         {can(me.role, 'plan.import') && (
@@ -52,7 +53,7 @@ export default async function PlanPage({ params }: { params: Promise<{ projectId
           />
         )}
         {latest && latest.diagnostics.length > 0 && (
-          <Card title={`For the engineer: ${latest.diagnostics.length} things to check in version ${latest.version}`}>
+          <Card title={`For the engineer: ${latest.diagnostics.length === 1 ? '1 thing' : `${latest.diagnostics.length} things`} to check in version ${latest.version}`}>
             <ul className="space-y-1 text-sm">
               {latest.diagnostics.map((d, i) => (
                 <li key={i}>
@@ -63,7 +64,7 @@ export default async function PlanPage({ params }: { params: Promise<{ projectId
             </ul>
           </Card>
         )}
-        {latest?.warnings.length ? <Notice tone="warn">{latest.warnings.join(' · ')}</Notice> : null}
+        {latest?.warnings.length ? <Notice tone="warn">{latest.warnings.map(warningWords).join(' ')}</Notice> : null}
         <DataTable
           label="Planned routes"
           empty="No routes yet."
@@ -94,7 +95,7 @@ export default async function PlanPage({ params }: { params: Promise<{ projectId
             <ul className="space-y-2 text-sm">
               {versions.map((v) => (
                 <li key={v.id}>
-                  <span className="font-medium">Version {v.version}</span> — {v.fileName} ({v.format}, {v.crs}), {v.routeCount} routes, by {v.importedByName ?? '—'} on{' '}
+                  <span className="font-medium">Version {v.version}</span> — {v.fileName} ({v.format?.toUpperCase()}, {v.crs}), {plural(v.routeCount, 'route')}, by {v.importedByName ?? '—'} on{' '}
                   {new Date(v.createdAt).toLocaleString('en-GB', { timeZone: project.timeZone })}. Changes: {v.changes.added.length} added, {v.changes.removed.length} removed,{' '}
                   {v.changes.reshaped.length} reshaped, {v.changes.retagged.length} retagged.
                   {v.changes.removed.length > 0 && <span className="text-ink-soft"> Removed: {v.changes.removed.join(', ')}.</span>}
