@@ -4,7 +4,20 @@ import { CartesianGrid, ComposedChart, Legend, Line, ReferenceArea, ReferenceLin
 
 export interface OffsetSeries {
   label: string;
-  points: { chainageM: number; offsetM: number }[];
+  /** `time`: when the fix was taken, already written on the project's clock */
+  points: { chainageM: number; offsetM: number; time?: string | null }[];
+}
+
+/** What pointing at an observation tells: where, how far off, and when, so a stretch can be picked by time. */
+function ObservationTip({ active, payload }: { active?: boolean; payload?: { payload?: { chainageM?: number; offsetM?: number; time?: string | null } }[] }) {
+  const p = active ? payload?.[0]?.payload : undefined;
+  if (!p || p.chainageM === undefined || p.offsetM === undefined) return null;
+  return (
+    <div className="rounded border border-ink/15 bg-white px-2 py-1 text-xs shadow">
+      <div>chainage {p.chainageM.toFixed(1)} m, offset {p.offsetM.toFixed(2)} m</div>
+      {p.time && <div className="tabular-nums">{p.time}</div>}
+    </div>
+  );
 }
 
 // Okabe–Ito: distinguishable under the common colour-vision deficiencies; status colours are kept for the map
@@ -43,7 +56,7 @@ export function OffsetPlot({ series, asBuilt, toleranceM, fromM, toM, section, s
             <ReferenceLine y={toleranceM} stroke="#009e73" strokeWidth={1.5} strokeDasharray="3 3" label={{ value: `+${toleranceM} m tolerance`, position: 'insideTopRight', fontSize: 11, fill: '#00664a' }} />
             <ReferenceLine y={-toleranceM} stroke="#009e73" strokeWidth={1.5} strokeDasharray="3 3" label={{ value: `−${toleranceM} m tolerance`, position: 'insideBottomRight', fontSize: 11, fill: '#00664a' }} />
             <ReferenceLine y={0} stroke="#0072b2" strokeDasharray="6 4" label={{ value: 'plan', position: 'insideTopLeft', fontSize: 11 }} />
-            <Tooltip formatter={(v) => `${Number(v).toFixed(2)} m`} labelFormatter={(v) => `chainage ${Number(v).toFixed(1)} m`} />
+            <Tooltip content={<ObservationTip />} />
             <Legend verticalAlign="top" height={28} wrapperStyle={{ fontSize: 12 }} />
             {series.map((s, i) => (
               <Scatter key={s.label} name={s.label} data={s.points} fill={SERIES_COLOURS[i % SERIES_COLOURS.length]} isAnimationActive={false} shape="circle" legendType="circle" r={2} />

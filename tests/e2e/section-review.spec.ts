@@ -120,6 +120,9 @@ test('the section page explains an offset beyond the tolerance that the noise sw
   await expect(sources.getByRole('link', { name: /^2026-11-12 10:0\d:\d\d – 10:0\d:\d\d$/ })).toBeVisible();
   await mapReady(page);
   await page.screenshot({ path: path.join(SHOTS, 'section-desktop.png'), fullPage: true });
+  // the stretch's times go to the upload's form, on the same clock
+  await sources.getByRole('link', { name: /^2026-11-12 10:00:00 – / }).click();
+  await expect(page.getByRole('form', { name: 'Leave a stretch out of matching' }).getByLabel(/^From/)).toHaveValue('2026-11-12 10:00:00');
 
   await page.goto(`/projects/${projectId}/reconciliation`);
   await page.getByRole('table', { name: 'Sections' }).getByRole('row').filter({ hasText: 'not built' }).getByRole('link', { name: 'TL-1' }).click();

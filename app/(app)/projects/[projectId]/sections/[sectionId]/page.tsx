@@ -47,7 +47,10 @@ export default async function SectionPage({ params }: { params: Promise<{ projec
     { id: 'section', colour: style.colour, width: 5, dashed: s.status === 'not_built', data: { type: 'FeatureCollection', features: [{ type: 'Feature', properties: { id: s.id }, geometry: s.geometry }] } },
   ];
   const names = new Map(d.sources.map((u) => [u.id, u.fileName]));
-  const series = d.observations.map((o) => ({ label: names.get(o.uploadId) ?? o.uploadId.slice(0, 8), points: thin(o.chainageM.map((c, i) => ({ chainageM: c, offsetM: o.offsetM[i] })), 1500) }));
+  const series = d.observations.map((o) => ({
+    label: names.get(o.uploadId) ?? o.uploadId.slice(0, 8),
+    points: thin(o.chainageM.map((c, i) => ({ chainageM: c, offsetM: o.offsetM[i], time: o.timeS[i] === null ? null : formatInZone(o.timeS[i]! * 1000, project.timeZone) })), 1500),
+  }));
   const observed = d.observations.reduce((n, o) => n + o.chainageM.length, 0);
   const asBuilt = d.route && s.status !== 'not_built' ? offsetProfile(d.route.geometry.coordinates, s.geometry.coordinates) : [];
   // a figure nothing measured (not built; an unplanned line's offset from a plan) is a dash, never 0.00 m
