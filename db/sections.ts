@@ -9,7 +9,7 @@ export type SectionReview = 'pending' | 'approved' | 'rejected' | 'acknowledged'
  * nothing measured is null, never 0: a not-built stretch has no offset and no accuracy, an unplanned line
  * no offset from a plan.
  */
-export interface Section extends Omit<SectionDraft, 'ref' | 'note' | 'correctionIds' | 'maxOffsetM' | 'p95OffsetM' | 'accuracyM'> {
+export interface Section extends Omit<SectionDraft, 'ref' | 'note' | 'correctionIds' | 'maxOffsetM' | 'p95OffsetM' | 'accuracyM' | 'offsetsUnmeasured'> {
   maxOffsetM: number | null;
   p95OffsetM: number | null;
   /** 95 % horizontal radius of the as-built line's position (m) */
@@ -55,9 +55,10 @@ export async function getSection(db: Db, id: string): Promise<Section | undefine
 const lineWkt = (coords: LonLat[]) => `LINESTRING(${coords.map((c) => `${c[0]} ${c[1]}`).join(',')})`;
 
 /** The draft's figures as stored: null where nothing was measured (the builder writes 0 there). */
-export function measuredFigures(d: Pick<SectionDraft, 'status' | 'maxOffsetM' | 'p95OffsetM' | 'accuracyM'>): { maxOffsetM: number | null; p95OffsetM: number | null; accuracyM: number | null } {
+export function measuredFigures(d: Pick<SectionDraft, 'status' | 'maxOffsetM' | 'p95OffsetM' | 'accuracyM' | 'offsetsUnmeasured'>): { maxOffsetM: number | null; p95OffsetM: number | null; accuracyM: number | null } {
   if (d.status === 'not_built') return { maxOffsetM: null, p95OffsetM: null, accuracyM: null };
-  if (d.status === 'unplanned') return { maxOffsetM: null, p95OffsetM: null, accuracyM: d.accuracyM };
+  // an unplanned line has no plan to be offset from; a stretch counted built on another source, no fixes
+  if (d.status === 'unplanned' || d.offsetsUnmeasured) return { maxOffsetM: null, p95OffsetM: null, accuracyM: d.accuracyM };
   return { maxOffsetM: d.maxOffsetM, p95OffsetM: d.p95OffsetM, accuracyM: d.accuracyM };
 }
 

@@ -66,7 +66,7 @@ function markBuilt(d: SectionDraft, route: PlannedRouteInput, c: Extract<Correct
   if (a - d.fromChainageM > 1e-6) out.push(part(d.fromChainageM, a));
   const built = part(a, b);
   out.push({
-    ...built, status: 'as_planned', maxOffsetM: 0, p95OffsetM: 0, accuracyM: R95_FACTOR * c.sigmaM,
+    ...built, status: 'as_planned', maxOffsetM: 0, p95OffsetM: 0, offsetsUnmeasured: true, accuracyM: R95_FACTOR * c.sigmaM,
     sourceUploadIds: c.sourceUploadId ? [c.sourceUploadId] : [], laidOn: c.laidOn, note: `Counted built on another source: ${c.reason}`, correctionIds: withCorrection(d.correctionIds, c.id),
   });
   if (d.toChainageM - b > 1e-6) out.push(part(b, d.toChainageM));
@@ -84,9 +84,11 @@ function mergePair(a: SectionDraft, b: SectionDraft, id: number): SectionDraft {
     status: a.status === 'deviates' || b.status === 'deviates' ? 'deviates' : 'as_planned',
     coords,
     lengthM: lineLengthM(coords),
-    maxOffsetM: Math.max(a.maxOffsetM, b.maxOffsetM),
+    // a stretch counted built on another source has no offsets of its own: the measured side's stand
+    maxOffsetM: a.offsetsUnmeasured ? b.maxOffsetM : b.offsetsUnmeasured ? a.maxOffsetM : Math.max(a.maxOffsetM, b.maxOffsetM),
     // the p95 of the union is at most the larger of the two: a conservative figure without the fixes
-    p95OffsetM: Math.max(a.p95OffsetM, b.p95OffsetM),
+    p95OffsetM: a.offsetsUnmeasured ? b.p95OffsetM : b.offsetsUnmeasured ? a.p95OffsetM : Math.max(a.p95OffsetM, b.p95OffsetM),
+    ...(a.offsetsUnmeasured && b.offsetsUnmeasured ? { offsetsUnmeasured: true } : {}),
     accuracyM: Math.max(a.accuracyM, b.accuracyM),
     sourceUploadIds: [...new Set([...a.sourceUploadIds, ...b.sourceUploadIds])].sort(),
     laidOn: [a.laidOn, b.laidOn].filter((x): x is string => !!x).sort().pop() ?? null,

@@ -33,6 +33,8 @@ export interface SectionDraft {
   note?: string | null;
   /** the engineer's corrections that shaped this stretch */
   correctionIds?: number[];
+  /** counted built on another source: nothing measured its offsets (its 0s are placeholders) */
+  offsetsUnmeasured?: boolean;
 }
 
 export interface SectionOptions {

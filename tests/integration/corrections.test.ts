@@ -154,6 +154,8 @@ describe('corrections of sections', () => {
     expect(counted.sourceUploadIds).toEqual([rtkEastId]);
     // R95 = 2.4477 σ for a circular normal error [computed: sqrt(−2 ln 0.05)], σ 0.02 m of the RTK class
     expect(counted.accuracyM).toBeCloseTo(2.4477 * 0.02, 6);
+    // nothing measured its offsets: empty, not 0
+    expect([counted.maxOffsetM, counted.p95OffsetM]).toEqual([null, null]);
     expect(counted.laidOn).toBe('2026-10-20');
     const rest = east.find((s) => s.status === 'not_built')!;
     expect(Math.round(rest.fromChainageM)).toBe(130);
