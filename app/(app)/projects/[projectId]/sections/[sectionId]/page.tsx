@@ -214,7 +214,7 @@ export default async function SectionPage({ params }: { params: Promise<{ projec
                     <span className="font-medium">{KIND_TEXT[c.kind]}</span>
                     {c.kind === 'split' || c.kind === 'merge' ? ` at ${c.fromChainageM?.toFixed(1)} m` : c.fromChainageM !== null && c.kind !== 'promote' ? `, ${c.fromChainageM.toFixed(1)}–${c.toChainageM?.toFixed(1)} m` : ''}
                     {c.targetRouteRef ? ` → ${c.targetRouteRef}` : ''}
-                    {c.kind === 'promote' ? ` as ${c.plannedRouteRef}` : ''}: “{c.reason}” — {c.createdByName ?? 'someone'}, {new Date(c.createdAt).toLocaleString('en-GB', { timeZone: project.timeZone })}
+                    {c.kind === 'promote' ? ` as ${c.plannedRouteRef}` : ''}: “{c.reason}” — {c.createdByName ?? 'someone'}, {formatInZone(c.createdAt, project.timeZone)}
                     {c.withdrawnAt && <> <Badge tone="muted">withdrawn</Badge></>}
                   </span>
                   {engineer && !c.withdrawnAt && c.kind !== 'promote' && <WithdrawCorrection id={c.id} />}
