@@ -106,6 +106,9 @@ export function ExcludeRange({ projectId, uploadId, timeZone, fixes, planned, in
   }
 
   const unit = kind === 'time' ? `YYYY-MM-DD HH:MM:SS, ${timeZone}` : 'm along the trace';
+  // the examples are this upload's own first and last fix, in the form the fields take
+  const timedFixes = fixes.filter((f) => f.t !== null);
+  const example = timedFixes.length ? [onClock(Math.min(...timedFixes.map((f) => f.t!)), timeZone), onClock(Math.max(...timedFixes.map((f) => f.t!)), timeZone)] : ['', ''];
   return (
     <div className="space-y-4">
       {fixes.length > 0 && (
@@ -126,12 +129,12 @@ export function ExcludeRange({ projectId, uploadId, timeZone, fixes, planned, in
         </Field>
         <div className="sm:col-span-2">
           <Field label={`From (${unit})`} htmlFor="ex-from" error={errors.from}>
-            <Input id="ex-from" name="from" value={from} onChange={(e) => setFrom(e.target.value)} inputMode={kind === 'time' ? 'text' : 'decimal'} placeholder={kind === 'time' ? '2026-11-05 10:00:38' : '0'} aria-invalid={!!errors.from} />
+            <Input id="ex-from" name="from" value={from} onChange={(e) => setFrom(e.target.value)} inputMode={kind === 'time' ? 'text' : 'decimal'} placeholder={kind === 'time' ? example[0] : '0'} aria-invalid={!!errors.from} />
           </Field>
         </div>
         <div className="sm:col-span-2">
           <Field label={`To (${unit})`} htmlFor="ex-to" error={errors.to}>
-            <Input id="ex-to" name="to" value={to} onChange={(e) => setTo(e.target.value)} inputMode={kind === 'time' ? 'text' : 'decimal'} placeholder={kind === 'time' ? '2026-11-05 10:01:25' : '25'} aria-invalid={!!errors.to} />
+            <Input id="ex-to" name="to" value={to} onChange={(e) => setTo(e.target.value)} inputMode={kind === 'time' ? 'text' : 'decimal'} placeholder={kind === 'time' ? example[1] : '25'} aria-invalid={!!errors.to} />
           </Field>
         </div>
         <Field label="Why" htmlFor="ex-reason" error={errors.reason}>
