@@ -7,6 +7,7 @@ import { listUploads } from '@/db/uploads';
 import { REVIEW_STYLE, STATUS_STYLE } from '@/lib/records/section-status';
 import { writeZip } from '@/lib/records/write-zip';
 import { formatInZone } from '@/lib/records/zoned-time';
+import { sectionFeature } from './reconcile';
 
 /** Said in every export of the record, as on every map. */
 export const EXPORT_CAUTION =
@@ -105,4 +106,12 @@ export function sectionsCsvZip(sections: Section[], c: ExportContext): Buffer {
     ],
     c.generatedAt,
   );
+}
+
+/**
+ * The sections as an RFC 7946 FeatureCollection: WGS 84 by definition (no "crs" member); the caution and
+ * the coordinate note travel as foreign members; figures nothing measured are null.
+ */
+export function sectionsGeoJson(sections: Section[]) {
+  return { type: 'FeatureCollection' as const, caution: EXPORT_CAUTION, coordinates: EXPORT_COORDINATES, emptyFigures: EXPORT_EMPTY_CELLS, features: sections.map(sectionFeature) };
 }

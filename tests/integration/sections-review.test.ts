@@ -14,7 +14,7 @@ import { mulberry32 } from '@/lib/records/seeded-random';
 import { importPlan } from '@/lib/services/planned';
 import { createProject, createProjectSchema } from '@/lib/services/projects';
 import { bulkReviewSchema, reviewProgress, reviewSchema, reviewSection, reviewSections, runReconciliation, sectionFeature } from '@/lib/services/reconcile';
-import { loadExportContext, sectionsCsvZip } from '@/lib/services/sections-export';
+import { loadExportContext, sectionsCsvZip, sectionsGeoJson } from '@/lib/services/sections-export';
 import { writeSectionsWorkbook } from '@/lib/services/sections-workbook';
 import { receiveUpload } from '@/lib/services/uploads';
 import { count, makePrincipal, registerPartner } from '../helpers/fixtures';
@@ -256,6 +256,21 @@ describe('exports', () => {
     expect(gdalGap.geometry.type).toBe('LineString');
     const gdalBuilt = gj.features.find((f: { properties: Record<string, unknown> }) => f.properties.Status === 'as planned');
     expect(typeof gdalBuilt.properties['Length (m)']).toBe('number');
+  });
+
+  it('writes GeoJSON that GDAL reads, with null where nothing was measured and the caution as a foreign member', async () => {
+    const file = path.join(dir, 'sections.geojson');
+    const body = sectionsGeoJson(sections);
+    writeFileSync(file, JSON.stringify(body));
+    expect(body.caution).toMatch(/not a locate/);
+    // GDAL's GeoJSON driver (an independent reader of RFC 7946) reads every feature back, nulls as nulls
+    const back = JSON.parse(execFileSync('ogr2ogr', ['-f', 'GeoJSON', '/vsistdout/', file], { encoding: 'utf8' }));
+    expect(back.features).toHaveLength(sections.length);
+    const gap = back.features.find((f: { properties: Record<string, unknown> }) => f.properties.status === 'not_built');
+    expect([gap.properties.maxOffsetM, gap.properties.p95OffsetM, gap.properties.accuracyM]).toEqual([null, null, null]);
+    const built = back.features.find((f: { properties: Record<string, unknown> }) => f.properties.status === 'as_planned');
+    expect(typeof built.properties.accuracyM).toBe('number');
+    expect(execFileSync('ogrinfo', ['-ro', '-so', '-al', file], { encoding: 'utf8' })).toMatch(/WGS 84/);
   });
 
   it('writes the Excel workbook with the same headers, empty cells where nothing was measured, and a read-me sheet (openpyxl)', async () => {

@@ -4,7 +4,7 @@ import { z } from 'zod';
 import { byProjectParam, withRoute } from '@/lib/api/with-route';
 import { listCurrentSections } from '@/db/sections';
 import { sectionFeature, sectionTotals } from '@/lib/services/reconcile';
-import { EXPORT_CAUTION, EXPORT_COORDINATES, EXPORT_EMPTY_CELLS, loadExportContext, sectionsCsvZip } from '@/lib/services/sections-export';
+import { loadExportContext, sectionsCsvZip, sectionsGeoJson } from '@/lib/services/sections-export';
 import { writeSectionsWorkbook } from '@/lib/services/sections-workbook';
 
 export const GET = withRoute(
@@ -13,9 +13,7 @@ export const GET = withRoute(
     const sections = await listCurrentSections(db, project.id);
     const features = sections.map(sectionFeature);
     if (query.format === 'geojson') {
-      // RFC 7946 is WGS 84 by definition (no "crs" member); the caution travels as a foreign member
-      const body = { type: 'FeatureCollection', caution: EXPORT_CAUTION, coordinates: EXPORT_COORDINATES, emptyFigures: EXPORT_EMPTY_CELLS, features };
-      return new NextResponse(JSON.stringify(body), { headers: { 'content-type': 'application/geo+json', 'content-disposition': 'attachment; filename="sections.geojson"' } });
+      return new NextResponse(JSON.stringify(sectionsGeoJson(sections)), { headers: { 'content-type': 'application/geo+json', 'content-disposition': 'attachment; filename="sections.geojson"' } });
     }
     if (query.format === 'xlsx') {
       const context = await loadExportContext(db, project);
