@@ -15,6 +15,9 @@ export const STATUS_STYLE = {
 
 export type SectionStatusKey = keyof typeof STATUS_STYLE;
 
+/** The planned route under the sections, drawn dashed on every map of planned against built. */
+export const PLANNED_COLOUR = '#0072b2';
+
 /** A review is settled when it is approved, or when a not-built stretch is acknowledged with a reason. */
 export const REVIEW_STYLE = {
   pending: { label: 'pending', tone: 'muted', settled: false },

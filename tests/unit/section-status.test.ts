@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { STATUS_STYLE } from '@/lib/records/section-status';
+import { PLANNED_COLOUR, STATUS_STYLE } from '@/lib/records/section-status';
 
 // Machado, Oliveira & Fernandes (2009), "A physiologically-based model for simulation of color vision
 // deficiency", severity 1.0, applied to linear RGB [memory: the paper's published matrices]
@@ -24,7 +24,7 @@ const simulate = (m: number[][], c: number[]) => m.map((row) => Math.min(1, Math
 describe('status colours', () => {
   it('stay apart (CIE76 ΔE of 15 or more) for normal vision and under simulated protanopia, deuteranopia and tritanopia', () => {
     // the planned route's blue is drawn under the sections on every map: it counts too
-    const colours = { ...Object.fromEntries(Object.entries(STATUS_STYLE).map(([k, v]) => [k, v.colour])), planned: '#0072b2' };
+    const colours = { ...Object.fromEntries(Object.entries(STATUS_STYLE).map(([k, v]) => [k, v.colour])), planned: PLANNED_COLOUR };
     const close: string[] = [];
     for (const [name, m] of [['normal vision', null], ...Object.entries(SIMULATIONS)] as [string, number[][] | null][]) {
       const seen = Object.entries(colours).map(([k, hex]) => [k, lab(m ? simulate(m, rgb(hex)) : rgb(hex))] as const);

@@ -10,7 +10,7 @@ import { Card, Notice, PageHeader } from '@/components/ui/primitives';
 import { GeoMap, type MapLayer } from '@/components/map/geo-map';
 import { JobButton } from '@/components/forms/job-button';
 import { SectionsReviewTable, type SectionRowMeta } from '@/components/forms/sections-review-table';
-import { REVIEW_STYLE, STATUS_STYLE } from '@/components/ui/section-status';
+import { PLANNED_COLOUR, REVIEW_STYLE, STATUS_STYLE } from '@/components/ui/section-status';
 
 export const metadata: Metadata = { title: 'Planned against built' };
 
@@ -22,7 +22,7 @@ export default async function ReconciliationPage({ params }: { params: Promise<{
   const totals = sectionTotals(sections);
   const features = sections.map(sectionFeature);
   const layers: MapLayer[] = [
-    { id: 'planned', data: planned, colour: '#0072b2', dashed: true, width: 2 },
+    { id: 'planned', data: planned, colour: PLANNED_COLOUR, dashed: true, width: 2 },
     ...(Object.keys(STATUS_STYLE) as (keyof typeof STATUS_STYLE)[]).map((st) => ({
       id: st,
       data: { type: 'FeatureCollection' as const, features: features.filter((f) => f.properties.status === st) },
@@ -48,7 +48,7 @@ export default async function ReconciliationPage({ params }: { params: Promise<{
       <div className="space-y-6">
         <GeoMap label="Map of planned routes and built sections" layers={layers} height={480} />
         <ul className="flex flex-wrap gap-4 text-xs" aria-label="Legend">
-          <li className="flex items-center gap-1"><span className="inline-block h-0.5 w-6 border-t-2 border-dashed border-[#0072b2]" /> planned route</li>
+          <li className="flex items-center gap-1"><span aria-hidden="true" data-swatch={PLANNED_COLOUR} className="inline-block w-6" style={{ borderTop: `2px dashed ${PLANNED_COLOUR}` }} /> planned route</li>
           {Object.entries(STATUS_STYLE).map(([k, s]) => (
             <li key={s.label} className="flex items-center gap-1">
               <span aria-hidden="true" data-swatch={s.colour} className="inline-block w-6" style={k === 'not_built' ? { borderTop: `2px dashed ${s.colour}` } : { height: 4, background: s.colour }} /> {s.label}

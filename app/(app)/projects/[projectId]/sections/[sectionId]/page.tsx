@@ -18,7 +18,7 @@ import { SectionReview } from '@/components/forms/section-review';
 import { GeoMap, type MapLayer } from '@/components/map/geo-map';
 import { DataTable } from '@/components/ui/data-table';
 import { Badge, Card, Notice, PageHeader } from '@/components/ui/primitives';
-import { REVIEW_STYLE, STATUS_STYLE } from '@/components/ui/section-status';
+import { PLANNED_COLOUR, REVIEW_STYLE, STATUS_STYLE } from '@/components/ui/section-status';
 import { R95_FACTOR } from '@/lib/records/accuracy-classes';
 import { formatInZone } from '@/lib/records/zoned-time';
 
@@ -43,7 +43,7 @@ export default async function SectionPage({ params }: { params: Promise<{ projec
   const successors = current ? [] : (await listCurrentSections(db, project.id)).filter((x) => x.derivedFrom === s.id || (x.plannedRouteRef === s.plannedRouteRef && s.plannedRouteRef !== null && x.fromChainageM < s.toChainageM && x.toChainageM > s.fromChainageM));
   const title = s.plannedRouteRef ? `${s.plannedRouteRef}, ${s.fromChainageM.toFixed(1)}–${s.toChainageM.toFixed(1)} m` : `Unplanned stretch, ${formatLength(s.lengthM, unit)}`;
   const layers: MapLayer[] = [
-    ...(d.route ? [{ id: 'route', colour: '#0072b2', dashed: true, width: 2, data: { type: 'FeatureCollection' as const, features: [{ type: 'Feature' as const, properties: { ref: d.route.ref }, geometry: d.route.geometry }] } }] : []),
+    ...(d.route ? [{ id: 'route', colour: PLANNED_COLOUR, dashed: true, width: 2, data: { type: 'FeatureCollection' as const, features: [{ type: 'Feature' as const, properties: { ref: d.route.ref }, geometry: d.route.geometry }] } }] : []),
     { id: 'section', colour: style.colour, width: 5, dashed: s.status === 'not_built', data: { type: 'FeatureCollection', features: [{ type: 'Feature', properties: { id: s.id }, geometry: s.geometry }] } },
   ];
   const names = new Map(d.sources.map((u) => [u.id, u.fileName]));
