@@ -128,6 +128,13 @@ export function describeAudit(e: AuditLike): string {
     case 'organisation register':
     case 'organisation create':
       return `Registered the ${SIDE(a.kind)} ${say(a.name)}.`;
+    case 'section review_approved':
+    case 'section review_rejected':
+    case 'section review_acknowledged': {
+      const what = { review_approved: 'Approved the section', review_rejected: 'Returned the section', review_acknowledged: 'Acknowledged the section as not built' }[e.action as 'review_approved'];
+      const bulk = Number(a.bulk ?? 0) > 1 ? ` (one of ${Number(a.bulk)} reviewed together)` : '';
+      return `${what}${bulk}.${a.comment ? ` Comment: ${quoted(a.comment)}` : ''}`;
+    }
     case 'reconcile_run run':
       return `Matched the uploads to the plan: ${Number(a.matched ?? 0).toLocaleString('en-GB')} of ${plural(Number(a.fixes ?? 0), 'fix', 'fixes')} on a planned route; ${plural(Number(a.sections ?? 0), 'section')} (${Number(a.created ?? 0)} new, ${Number(a.retired ?? 0)} retired).`;
     case 'plan_version import':

@@ -96,7 +96,7 @@ const PRJ_WGS84 = 'GEOGCS["GCS_WGS_1984",DATUM["D_WGS_1984",SPHEROID["WGS_1984",
  * The CSV download: a zip of `sections.csv` (a plain table any CSV reader opens, header on line 1), its
  * `README.txt` (caution, coordinate system, what an empty cell means) and GeoCSV's `.csvt` and `.prj`.
  */
-export function sectionsCsvZip(sections: Section[], c: ExportContext): Buffer {
+export function sectionsCsvZip(sections: Section[], c: ExportContext): Promise<Buffer> {
   return writeZip(
     [
       { name: 'README.txt', data: `${exportNotes(c, sections.length).join('\r\n\r\n')}\r\n\r\nFiles: sections.csv (the table, UTF-8), sections.csvt (its column types) and sections.prj (its coordinate system), as GDAL's CSV driver reads them.\r\n` },

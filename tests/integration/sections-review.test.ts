@@ -206,7 +206,7 @@ describe('exports', () => {
   });
 
   it('downloads the CSV as a zip that Python\'s zipfile and csv modules and GDAL\'s CSV driver read', async () => {
-    const zip = sectionsCsvZip(sections, await loadExportContext(db, project));
+    const zip = await sectionsCsvZip(sections, await loadExportContext(db, project));
     const file = path.join(dir, 'sections-csv.zip');
     writeFileSync(file, zip);
     // Python's standard zipfile and csv modules (Debian's /usr/bin/python3): the independent readers

@@ -28,6 +28,14 @@ describe('the activity log in words', () => {
     expect(words('plan_version')).toBe('plan version');
   });
 
+  it('tells section reviews, one at a time and in bulk', () => {
+    expect(describeAudit({ objectType: 'section', action: 'review_approved', before: { review: 'pending' }, after: { review: 'approved', comment: 'Checked on site' } })).toBe('Approved the section. Comment: Checked on site.');
+    expect(describeAudit({ objectType: 'section', action: 'review_approved', before: { review: 'pending' }, after: { review: 'approved', bulk: 12 } })).toBe('Approved the section (one of 12 reviewed together).');
+    expect(describeAudit({ objectType: 'section', action: 'review_acknowledged', before: { review: 'pending' }, after: { review: 'acknowledged', comment: 'Dropped from the build: the owner moved the cabinet.' } })).toBe(
+      'Acknowledged the section as not built. Comment: Dropped from the build: the owner moved the cabinet.',
+    );
+  });
+
   it('tells uploads that were stored and refused apart', () => {
     expect(describeAudit({ objectType: 'upload', action: 'create', before: null, after: { fileName: ['a.gpx'], status: 'stored', featureCount: 1, pointCount: 15, crs: 'EPSG:4326' } })).toBe(
       'Uploaded a.gpx: 1 line or point, 15 positions in EPSG:4326.',

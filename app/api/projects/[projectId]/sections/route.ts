@@ -25,7 +25,7 @@ export const GET = withRoute(
     }
     if (query.format === 'csv') {
       // a zip of the plain CSV and its README: a comment line above the header would break GDAL's CSV driver
-      const zip = sectionsCsvZip(sections, await loadExportContext(db, project));
+      const zip = await sectionsCsvZip(sections, await loadExportContext(db, project));
       return new NextResponse(new Uint8Array(zip), { headers: { 'content-type': 'application/zip', 'content-disposition': 'attachment; filename="sections-csv.zip"' } });
     }
     return { sections: features.map((f) => ({ id: f.id, ...f.properties })), totals: sectionTotals(sections) };

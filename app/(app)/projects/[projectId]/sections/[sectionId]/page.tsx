@@ -108,7 +108,7 @@ export default async function SectionPage({ params }: { params: Promise<{ projec
         <div className="mb-4">
           <Notice tone="info">
             <span className="font-medium">Why this stretch is not flagged as deviating.</span> Offsets of up to {fig(s.maxOffsetM)} reach beyond the project&apos;s
-            tolerance of ±{formatLength(d.toleranceM, unit)}, but {counted.map((u) => `${u.fileName} (σ ${formatLength(u.sigmaM, unit)} per axis, 95 % radius ${formatLength(u.sigmaM * R95_FACTOR, unit)})`).join(' and ')}{' '}
+            tolerance of ±{formatLength(d.toleranceM, unit)}, but {counted.map((u) => `${u.fileName} (typical error ${formatLength(u.sigmaM, unit)} each way, 95 % radius ${formatLength(u.sigmaM * R95_FACTOR, unit)})`).join(' and ')}{' '}
             {counted.length === 1 ? 'places each fix' : 'place each fix'} only that closely: an offset this size can be the source&apos;s own noise. A stretch is
             flagged only where its smoothed offset exceeds the tolerance by more than its own 95 % uncertainty (here the line is known to ±{fig(s.accuracyM)}), over
             several metres. To settle it, survey the stretch with RTK GNSS or a total station, or check it on site.
@@ -157,7 +157,7 @@ export default async function SectionPage({ params }: { params: Promise<{ projec
             columns={[
               { key: 'file', label: 'File' },
               { key: 'accuracy', label: 'Accuracy class' },
-              { key: 'sigma', label: 'σ per axis', align: 'right' },
+              { key: 'sigma', label: 'Typical error each way', align: 'right' },
               { key: 'date', label: 'Survey date' },
               { key: 'crew', label: 'Crew' },
               { key: 'walked', label: `Fixes on this stretch (${project.timeZone})` },
