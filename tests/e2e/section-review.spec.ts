@@ -112,7 +112,7 @@ test('the section page explains an offset beyond the tolerance that the noise sw
   await page.goto(`/projects/${projectId}/reconciliation`);
   await page.getByRole('table', { name: 'Sections' }).getByRole('row').filter({ hasText: 'as planned' }).getByRole('link', { name: 'TL-1' }).click();
   await expect(page.getByText('Why this stretch is not flagged as deviating.')).toBeVisible();
-  await expect(page.getByText(/tallow-walk\.gpx \(σ [\d.]+ m per axis, 95 % radius [\d.]+ m\)/)).toBeVisible();
+  await expect(page.getByText(/tallow-walk\.gpx \(typical error [\d.]+ m each way, 95 % radius [\d.]+ m\)/)).toBeVisible();
   // the band's edges are labelled on the plot
   await expect(page.getByText('+0.5 m tolerance')).toBeVisible();
   // walked 10:00–10:01 on the project's clock (Berlin), whatever the browser's (New York: 04:00)
