@@ -1,9 +1,8 @@
 'use client';
 
-import maplibregl from 'maplibre-gl';
-import 'maplibre-gl/dist/maplibre-gl.css';
 import { useEffect, useRef, useState } from 'react';
 import type { FeatureCollection } from 'geojson';
+import { createBaseMap, MapFrame } from './map-frame';
 
 export interface MapLayer {
   id: string;
@@ -32,17 +31,7 @@ export function GeoMap({ layers, label, height = 420 }: { layers: MapLayer[]; la
   useEffect(() => {
     if (!ref.current) return;
     setReady(false);
-    const map = new maplibregl.Map({
-      container: ref.current,
-      style: { version: 8, sources: {}, layers: [{ id: 'paper', type: 'background', paint: { 'background-color': '#f1efe8' } }] },
-      center: [0, 0],
-      zoom: 1,
-      attributionControl: false,
-      // on a touch screen one finger scrolls the page and two move the map, so the map is no scroll trap
-      cooperativeGestures: window.matchMedia('(pointer: coarse)').matches,
-    });
-    map.addControl(new maplibregl.NavigationControl({ showCompass: false }), 'top-right');
-    map.addControl(new maplibregl.ScaleControl({ unit: 'metric' }), 'bottom-left');
+    const map = createBaseMap(ref.current, { center: [0, 0], zoom: 1 });
     map.on('load', () => {
       for (const l of layers) {
         map.addSource(l.id, { type: 'geojson', data: l.data });
@@ -64,20 +53,5 @@ export function GeoMap({ layers, label, height = 420 }: { layers: MapLayer[]; la
     });
     return () => map.remove();
   }, [layers]);
-  return (
-    <figure>
-      <div className="relative">
-        <div ref={ref} role="region" aria-label={label} aria-busy={!ready} className="w-full overflow-hidden rounded-lg border border-ink/10" style={{ height: `min(${height}px, 65vh)` }} />
-        {!ready && (
-          <div role="status" className="pointer-events-none absolute inset-0 flex items-center justify-center gap-2 rounded-lg bg-paper/70 text-sm text-ink-soft">
-            <span aria-hidden="true" className="h-4 w-4 animate-spin rounded-full border-2 border-brand border-t-transparent" />
-            Loading the map…
-          </div>
-        )}
-      </div>
-      <figcaption className="mt-1 text-xs text-ink-soft">
-        Positions shown are records, not a locate. Before any digging, verify utilities on site (detection, hand-dug trial holes) and follow local codes and licensed practice.
-      </figcaption>
-    </figure>
-  );
+  return <MapFrame mapRef={ref} label={label} ready={ready} height={`min(${height}px, 65vh)`} />;
 }

@@ -1,9 +1,9 @@
 'use client';
 
 import maplibregl from 'maplibre-gl';
-import 'maplibre-gl/dist/maplibre-gl.css';
 import { useEffect, useRef, useState } from 'react';
 import type { FeatureCollection } from 'geojson';
+import { createBaseMap, MapFrame } from './map-frame';
 
 export interface TraceFix {
   lon: number;
@@ -39,17 +39,8 @@ export function TracePicker({ fixes, planned, describe, inRange, onPick, label }
 
   useEffect(() => {
     if (!ref.current || fixes.length === 0) return;
-    const map = new maplibregl.Map({
-      container: ref.current,
-      style: { version: 8, sources: {}, layers: [{ id: 'paper', type: 'background', paint: { 'background-color': '#f1efe8' } }] },
-      center: [fixes[0].lon, fixes[0].lat],
-      zoom: 16,
-      attributionControl: false,
-      cooperativeGestures: window.matchMedia('(pointer: coarse)').matches,
-    });
+    const map = createBaseMap(ref.current, { center: [fixes[0].lon, fixes[0].lat], zoom: 16 });
     mapRef.current = map;
-    map.addControl(new maplibregl.NavigationControl({ showCompass: false }), 'top-right');
-    map.addControl(new maplibregl.ScaleControl({ unit: 'metric' }), 'bottom-left');
     const n = fixes.length;
     const points: FeatureCollection = {
       type: 'FeatureCollection',
@@ -129,25 +120,21 @@ export function TracePicker({ fixes, planned, describe, inRange, onPick, label }
   }, [fixes, inRange]);
 
   return (
-    <figure>
-      <div className="relative">
-        <div ref={ref} role="region" aria-label={label} aria-busy={!ready} className="w-full overflow-hidden rounded-lg border border-ink/10" style={{ height: 'min(380px, 60vh)' }} />
-        {!ready && (
-          <div role="status" className="pointer-events-none absolute inset-0 flex items-center justify-center gap-2 rounded-lg bg-paper/70 text-sm text-ink-soft">
-            <span aria-hidden="true" className="h-4 w-4 animate-spin rounded-full border-2 border-brand border-t-transparent" />
-            Loading the map…
-          </div>
-        )}
-      </div>
-      <figcaption className="mt-1 text-xs text-ink-soft">
-        <span className="mr-2 inline-flex items-center gap-1 align-middle">
-          first fix
-          <span aria-hidden="true" className="inline-block h-2 w-16 rounded" style={{ background: `linear-gradient(to right, ${RAMP.join(', ')})` }} />
-          last fix
-        </span>
-        <span className="mr-2 inline-flex items-center gap-1 align-middle"><span aria-hidden="true" className="inline-block h-2 w-2 rounded-full" style={{ background: PICKED }} /> in the picked range</span>
-        Positions shown are records, not a locate. Before any digging, verify utilities on site (detection, hand-dug trial holes) and follow local codes and licensed practice.
-      </figcaption>
-    </figure>
+    <MapFrame
+      mapRef={ref}
+      label={label}
+      ready={ready}
+      height="min(380px, 60vh)"
+      legend={
+        <>
+          <span className="mr-2 inline-flex items-center gap-1 align-middle">
+            first fix
+            <span aria-hidden="true" className="inline-block h-2 w-16 rounded" style={{ background: `linear-gradient(to right, ${RAMP.join(', ')})` }} />
+            last fix
+          </span>
+          <span className="mr-2 inline-flex items-center gap-1 align-middle"><span aria-hidden="true" className="inline-block h-2 w-2 rounded-full" style={{ background: PICKED }} /> in the picked range</span>
+        </>
+      }
+    />
   );
 }
