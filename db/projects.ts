@@ -19,8 +19,25 @@ export interface Project {
   defaultAccuracyClass: AccuracyClass;
   /** σ per axis (m) overriding the defaults of some accuracy classes for this project */
   accuracySigmas: Partial<Record<AccuracyClass, number>>;
+  /** the settings the trench records are checked against */
+  records: RecordSettings;
   createdAt: string;
   updatedAt: string;
+}
+
+/** What the trench records of a project are checked against (project settings, not constants). */
+export interface RecordSettings {
+  trenchWidthMm: number;
+  trenchDepthMm: number;
+  minClearanceM: number;
+  gapThresholdM: number;
+  restorationMaxDelayMin: number;
+  layingTempTargetC: number;
+  layingTempToleranceC: number;
+  compactionPassesDefault: number;
+  surfaceThicknessMm: number;
+  /** the project's duct colour sequence (colour_sequences.id), or null */
+  colourSequenceId: string | null;
 }
 
 export interface ProjectValues {
@@ -36,6 +53,7 @@ export interface ProjectValues {
   lateralToleranceM: number;
   defaultAccuracyClass: AccuracyClass;
   accuracySigmas?: Partial<Record<AccuracyClass, number>>;
+  records?: Partial<RecordSettings>;
 }
 
 type JoinedRow = ProjectRow & {
@@ -63,6 +81,18 @@ const toDto = (r: JoinedRow): Project => ({
   lateralToleranceM: r.lateral_tolerance_m,
   defaultAccuracyClass: r.default_accuracy_class,
   accuracySigmas: r.accuracy_sigmas ?? {},
+  records: {
+    trenchWidthMm: r.trench_width_mm,
+    trenchDepthMm: r.trench_depth_mm,
+    minClearanceM: r.min_clearance_m,
+    gapThresholdM: r.gap_threshold_m,
+    restorationMaxDelayMin: r.restoration_max_delay_min,
+    layingTempTargetC: r.laying_temp_target_c,
+    layingTempToleranceC: r.laying_temp_tolerance_c,
+    compactionPassesDefault: r.compaction_passes_default,
+    surfaceThicknessMm: r.surface_thickness_mm,
+    colourSequenceId: r.colour_sequence_id,
+  },
   createdAt: r.created_at.toISOString(),
   updatedAt: r.updated_at.toISOString(),
 });
@@ -107,6 +137,14 @@ function toColumns(db: Db, v: Partial<ProjectValues>): Record<string, unknown> {
   if (v.lateralToleranceM !== undefined) c.lateral_tolerance_m = v.lateralToleranceM;
   if (v.defaultAccuracyClass !== undefined) c.default_accuracy_class = v.defaultAccuracyClass;
   if (v.accuracySigmas !== undefined) c.accuracy_sigmas = JSON.stringify(v.accuracySigmas);
+  const r = v.records ?? {};
+  const recordColumns: [keyof RecordSettings, string][] = [
+    ['trenchWidthMm', 'trench_width_mm'], ['trenchDepthMm', 'trench_depth_mm'], ['minClearanceM', 'min_clearance_m'],
+    ['gapThresholdM', 'gap_threshold_m'], ['restorationMaxDelayMin', 'restoration_max_delay_min'], ['layingTempTargetC', 'laying_temp_target_c'],
+    ['layingTempToleranceC', 'laying_temp_tolerance_c'], ['compactionPassesDefault', 'compaction_passes_default'], ['surfaceThicknessMm', 'surface_thickness_mm'],
+    ['colourSequenceId', 'colour_sequence_id'],
+  ];
+  for (const [k, col] of recordColumns) if (r[k] !== undefined) c[col] = r[k];
   return c;
 }
 

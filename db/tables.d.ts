@@ -16,6 +16,7 @@ export interface UserRow {
   role: Role;
   password_hash: string | null;
   active: boolean;
+  unit_system: 'metric' | 'imperial' | null;
   created_at: Date;
   updated_at: Date;
 }
@@ -66,6 +67,16 @@ export interface ProjectRow {
   lateral_tolerance_m: number;
   default_accuracy_class: AccuracyClass;
   accuracy_sigmas: Partial<Record<AccuracyClass, number>>;
+  trench_width_mm: number;
+  trench_depth_mm: number;
+  min_clearance_m: number;
+  gap_threshold_m: number;
+  restoration_max_delay_min: number;
+  laying_temp_target_c: number;
+  laying_temp_tolerance_c: number;
+  compaction_passes_default: number;
+  surface_thickness_mm: number;
+  colour_sequence_id: string | null;
   created_at: Date;
   updated_at: Date;
 }

@@ -57,3 +57,15 @@ export async function byOrgChangeParam(params: Record<string, string>, db: Db): 
   const c = await getOrgChange(db, Number(params.changeId));
   return c && c.projectId === params.projectId ? { projectId: c.projectId } : undefined;
 }
+
+/**
+ * A trench record (a row of `table` with id and project_id, named by the route's `param`) belongs to its
+ * project; the route's projectId must match it. `byProjectRecord('duct_bundles', 'bundleId')`.
+ */
+export function byProjectRecord(table: string, param: string) {
+  return async (params: Record<string, string>, db: Db): Promise<Scope | undefined> => {
+    if (!isUuid(params[param]) || !isUuid(params.projectId)) return undefined;
+    const row = await db(table).where({ id: params[param] }).first('project_id');
+    return row && row.project_id === params.projectId ? { projectId: row.project_id } : undefined;
+  };
+}

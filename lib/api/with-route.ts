@@ -33,6 +33,11 @@ interface Options<B extends z.ZodType | undefined, Q extends z.ZodType | undefin
   scope?: (params: Record<string, string>, db: Db) => Promise<Scope | undefined>;
   body?: B;
   query?: Q;
+  /**
+   * 'contractor': only people of the project's contractor organisation may do it (what was built is
+   * recorded by those who built it; the owner's people read). Checked after the role, 403.
+   */
+  side?: 'contractor';
 }
 
 export type Scope = { projectId: string } | { organisationId: string };
@@ -71,6 +76,9 @@ export function withRoute<B extends z.ZodType | undefined = undefined, Q extends
       }
       if (!can(principal.role, opts.action)) {
         throw new AppError('forbidden', `Your role (${principal.role}) may not do this.`);
+      }
+      if (opts.side === 'contractor' && project && principal.organisationId !== project.contractorOrgId) {
+        throw new AppError('forbidden', `Only the contractor's people (${project.contractorOrgName}) record what was built; the network owner's people read it.`);
       }
 
       const search = Object.fromEntries(req.nextUrl.searchParams.entries());

@@ -13,6 +13,8 @@ export interface Principal {
   organisationId: string;
   organisationName: string;
   organisationKind: OrgKind;
+  /** the person's own choice of units, or null to follow each project's */
+  unitSystem: 'metric' | 'imperial' | null;
 }
 
 export async function principalFromRow(db: Db, row: UserRow | undefined): Promise<Principal | undefined> {
@@ -27,6 +29,7 @@ export async function principalFromRow(db: Db, row: UserRow | undefined): Promis
     organisationId: org.id,
     organisationName: org.name,
     organisationKind: org.kind,
+    unitSystem: row.unit_system ?? null,
   };
 }
 

@@ -37,6 +37,13 @@ export const PERMISSIONS = {
   'section.read': ALL,
   'section.review': ['admin', 'engineer'],
   'section.correct': ['admin', 'engineer'],
+  // trench records (ducts, depths, crossings, pits, photos, restoration, production): the contractor's
+  // surveyors and engineers write them (routes add side: 'contractor'), everyone who sees the project reads
+  'record.read': ALL,
+  'record.write': ['admin', 'engineer', 'surveyor'],
+  // catalogues (duct sizes, colour sequences, utility kinds, backfill materials) per project
+  'catalogue.manage': ['admin', 'engineer'],
+  'check.read': ALL,
 } as const satisfies Record<string, readonly Role[]>;
 
 export type Action = keyof typeof PERMISSIONS;

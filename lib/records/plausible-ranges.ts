@@ -36,6 +36,19 @@ export const RANGES = {
    * beyond it is a typo (or grid coordinates typed into the wrong field).
    */
   chainageM: { min: 0, max: 100_000, unit: 'm', what: 'A chainage' },
+  // The record settings (migration 20261205130000 holds the same bounds). Micro-trench slots are about
+  // 24 mm wide and 480 mm deep [practice]; the bounds take in nano-trenches and narrow open cuts.
+  trenchWidthMm: { min: 5, max: 300, unit: 'mm', what: 'The trench width' },
+  trenchDepthMm: { min: 50, max: 2000, unit: 'mm', what: 'The trench depth' },
+  /** 0 allows "touching is tolerated"; 5 m is beyond any clearance rule we know of [memory]. */
+  minClearanceM: { min: 0, max: 5, unit: 'm', what: 'The minimum clearance' },
+  gapThresholdM: { min: 0.5, max: 1000, unit: 'm', what: 'The gap threshold' },
+  restorationMaxDelayMin: { min: 1, max: 10080, unit: 'min', what: 'The longest wait from cleaning to laying' },
+  /** Hot bituminous material is laid at around 195 °C [practice]; 80–300 °C takes in warm and hot mixes. */
+  layingTempTargetC: { min: 80, max: 300, unit: '°C', what: 'The laying temperature target' },
+  layingTempToleranceC: { min: 1, max: 100, unit: '°C', what: 'The laying temperature tolerance' },
+  compactionPassesDefault: { min: 0, max: 20, unit: 'passes', what: 'The number of compaction passes' },
+  surfaceThicknessMm: { min: 5, max: 500, unit: 'mm', what: 'The surface thickness' },
 } as const satisfies Record<string, PlausibleRange>;
 
 /**
@@ -60,11 +73,13 @@ export function rangeProblem(r: PlausibleRange, v: number): string | undefined {
 }
 
 /** A zod number within the range, with the range's messages: `rangedNumber(RANGES.lateralToleranceM)`. */
-export function rangedNumber(r: PlausibleRange) {
-  return z
-    .number({ message: `${r.what} must be a number of metres.` })
+export function rangedNumber(r: PlausibleRange, opts: { int?: boolean } = {}) {
+  const unitWords: Record<string, string> = { m: 'metres', mm: 'millimetres', min: 'minutes', '°C': 'degrees Celsius' };
+  const n = z
+    .number({ message: `${r.what} must be a number of ${unitWords[r.unit] ?? r.unit}.` })
     .min(r.min, rangeProblem(r, r.min - 1))
     .max(r.max, rangeProblem(r, r.max + 1));
+  return opts.int ? n.int(`${r.what} must be a whole number of ${unitWords[r.unit] ?? r.unit}.`) : n;
 }
 
 /** A calendar date (YYYY-MM-DD) between DATE_RANGE.min and tomorrow, with `what` in the message. */

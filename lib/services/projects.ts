@@ -3,6 +3,7 @@ import type { Knex } from 'knex';
 import { findOrganisationByName, getOrganisation, type Organisation } from '@/db/organisations';
 import { getProject, insertProject, sridExists, updateProject, type Project, type ProjectValues } from '@/db/projects';
 import { writeAudit } from '@/db/audit';
+import { colourSequenceOfProject, copyCatalogueTemplates } from '@/db/catalogues';
 import { AppError } from '@/lib/api/errors';
 import { auditActor, type Principal } from '@/lib/auth/principal';
 import type { OrgKind } from '@/lib/auth/roles';
@@ -25,6 +26,20 @@ const crsSchema = z
   .transform((s) => Number(s.replace(/^EPSG:/i, '')));
 
 const sigmasSchema = z.partialRecord(z.enum(ACCURACY_CLASSES), rangedNumber(RANGES.sigmaM));
+
+/** The record settings as a person sets them; each within its plausible range. */
+export const recordSettingsSchema = z.object({
+  trenchWidthMm: rangedNumber(RANGES.trenchWidthMm, { int: true }),
+  trenchDepthMm: rangedNumber(RANGES.trenchDepthMm, { int: true }),
+  minClearanceM: rangedNumber(RANGES.minClearanceM),
+  gapThresholdM: rangedNumber(RANGES.gapThresholdM),
+  restorationMaxDelayMin: rangedNumber(RANGES.restorationMaxDelayMin, { int: true }),
+  layingTempTargetC: rangedNumber(RANGES.layingTempTargetC),
+  layingTempToleranceC: rangedNumber(RANGES.layingTempToleranceC),
+  compactionPassesDefault: rangedNumber(RANGES.compactionPassesDefault, { int: true }),
+  surfaceThicknessMm: rangedNumber(RANGES.surfaceThicknessMm, { int: true }),
+  colourSequenceId: z.uuid('Pick a colour sequence from the catalogue.').nullable(),
+}).partial();
 
 const PARTNER_MOVED = 'The network owner and the contractor change only by a proposal that the other organisation confirms (POST /api/projects/{id}/org-changes).';
 
@@ -62,6 +77,7 @@ export const updateProjectSchema = z
     lateralToleranceM: rangedNumber(RANGES.lateralToleranceM),
     defaultAccuracyClass: z.enum(ACCURACY_CLASSES),
     accuracySigmas: sigmasSchema,
+    records: recordSettingsSchema,
     // named only to be refused: a typed name once moved the project to a new (misspelt) organisation
     partnerOrganisation: z.unknown(),
     partnerOrganisationId: z.unknown(),
@@ -143,7 +159,9 @@ export async function createProject(db: Knex, actor: Principal, input: CreateInp
         defaultAccuracyClass: input.defaultAccuracyClass,
         accuracySigmas: input.accuracySigmas,
       };
-      const project = await insertProject(trx, values);
+      const created = await insertProject(trx, values);
+      await copyCatalogueTemplates(trx, created.id);
+      const project = (await getProject(trx, created.id))!;
       await writeAudit(trx, auditActor(actor), {
         projectId: project.id,
         objectType: 'project',
@@ -172,7 +190,11 @@ export async function changeProject(db: Knex, actor: Principal, projectId: strin
         lateralToleranceM: input.lateralToleranceM,
         defaultAccuracyClass: input.defaultAccuracyClass,
         accuracySigmas: input.accuracySigmas,
+        records: input.records,
       };
+      if (input.records?.colourSequenceId && !(await colourSequenceOfProject(trx, projectId, input.records.colourSequenceId))) {
+        throw new AppError('invalid', 'That colour sequence is not in this project\'s catalogue.', [{ path: 'records.colourSequenceId', message: 'Pick a colour sequence of this project.' }]);
+      }
       const after = await updateProject(trx, projectId, patch);
       await writeAudit(trx, auditActor(actor), {
         projectId,
