@@ -2,6 +2,16 @@
 
 import Link from 'next/link';
 import { useMemo, useState, type ReactNode } from 'react';
+import {
+  getCoreRowModel,
+  getFilteredRowModel,
+  getPaginationRowModel,
+  getSortedRowModel,
+  useReactTable,
+  type ColumnDef,
+  type FilterFn,
+  type SortingState,
+} from '@tanstack/react-table';
 import { Badge } from './primitives';
 
 export type Cell =
@@ -53,23 +63,56 @@ export interface Selection {
  * A table that sorts by any column (click the header) and filters on every cell's text; optionally rows
  * can be picked (`selection`), and `toolbar` gets the rows the filter shows, for actions on them.
  */
-export function DataTable({ columns, rows, label, empty = 'Nothing here yet.', selection, toolbar }: { columns: Column[]; rows: Row[]; label: string; empty?: string; selection?: Selection; toolbar?: (shown: Row[]) => ReactNode }) {
-  const [sort, setSort] = useState<{ key: string; dir: 1 | -1 } | null>(null);
-  const [filter, setFilter] = useState('');
+const PAGE_SIZE = 50;
 
-  const shown = useMemo(() => {
-    const f = filter.trim().toLowerCase();
-    let out = f ? rows.filter((r) => columns.some((c) => text(r.cells[c.key] ?? null).toLowerCase().includes(f))) : rows;
-    if (sort) {
-      out = [...out].sort((a, b) => {
-        const x = sortKey(a.cells[sort.key] ?? null);
-        const y = sortKey(b.cells[sort.key] ?? null);
-        const d = typeof x === 'number' && typeof y === 'number' ? x - y : String(x).localeCompare(String(y));
-        return d * sort.dir;
-      });
-    }
-    return out;
-  }, [rows, columns, sort, filter]);
+/** The filter box matches any cell's text, ignoring case. */
+const anyCellText: FilterFn<Row> = (row, _columnId, value: string) => {
+  const f = value.trim().toLowerCase();
+  return !f || Object.values(row.original.cells).some((c) => text(c).toLowerCase().includes(f));
+};
+
+/**
+ * A table that sorts by any column (click the header), filters on every cell's text and pages by 50
+ * (TanStack Table holds that state; the markup is ours); optionally rows can be picked (`selection`), and
+ * `toolbar` gets the rows the filter shows, for actions on them.
+ */
+export function DataTable({ columns, rows, label, empty = 'Nothing here yet.', selection, toolbar, pageSize = PAGE_SIZE }: { columns: Column[]; rows: Row[]; label: string; empty?: string; selection?: Selection; toolbar?: (shown: Row[]) => ReactNode; pageSize?: number }) {
+  const [sorting, setSorting] = useState<SortingState>([]);
+  const [filter, setFilter] = useState('');
+  const defs = useMemo<ColumnDef<Row>[]>(
+    () =>
+      columns.map((c) => ({
+        id: c.key,
+        accessorFn: (r: Row) => sortKey(r.cells[c.key] ?? null),
+        sortingFn: (a, b, id) => {
+          const x = a.getValue<string | number>(id);
+          const y = b.getValue<string | number>(id);
+          return typeof x === 'number' && typeof y === 'number' ? x - y : String(x).localeCompare(String(y));
+        },
+        sortDescFirst: false,
+      })),
+    [columns],
+  );
+  const table = useReactTable({
+    data: rows,
+    columns: defs,
+    state: { sorting, globalFilter: filter },
+    onSortingChange: setSorting,
+    onGlobalFilterChange: setFilter,
+    globalFilterFn: anyCellText,
+    getRowId: (r) => r.id,
+    getCoreRowModel: getCoreRowModel(),
+    getFilteredRowModel: getFilteredRowModel(),
+    getSortedRowModel: getSortedRowModel(),
+    getPaginationRowModel: getPaginationRowModel(),
+    initialState: { pagination: { pageIndex: 0, pageSize } },
+    autoResetPageIndex: true,
+  });
+  const shown = table.getPrePaginationRowModel().rows.map((r) => r.original);
+  const page = table.getRowModel().rows.map((r) => r.original);
+  const sort = sorting[0] ? { key: sorting[0].id, dir: sorting[0].desc ? -1 : 1 } : null;
+  const setSort = (next: { key: string; dir: 1 | -1 }) => setSorting([{ id: next.key, desc: next.dir === -1 }]);
+  const pages = table.getPageCount();
 
   return (
     <div className="space-y-3">
@@ -112,7 +155,7 @@ export function DataTable({ columns, rows, label, empty = 'Nothing here yet.', s
             </tr>
           </thead>
           <tbody className="block divide-y divide-ink/5 sm:table-row-group">
-            {shown.map((r) => (
+            {page.map((r) => (
               <tr key={r.id} className="relative grid grid-cols-2 gap-x-3 gap-y-2 px-3 py-3 hover:bg-paper/60 sm:static sm:table-row sm:p-0">
                 {selection && (
                   <td className="absolute right-3 top-3 block sm:static sm:table-cell sm:px-3 sm:py-2 sm:align-top">
@@ -156,9 +199,24 @@ export function DataTable({ columns, rows, label, empty = 'Nothing here yet.', s
           </tbody>
         </table>
       </div>
-      <p className="text-xs text-ink-faint">
-        {shown.length} of {rows.length} shown
-      </p>
+      <div className="flex flex-wrap items-center gap-3 text-xs text-ink-faint">
+        <p>
+          {shown.length} of {rows.length} shown
+        </p>
+        {pages > 1 && (
+          <nav aria-label={`Pages of ${label}`} className="flex items-center gap-2">
+            <button type="button" className="min-h-10 rounded border border-ink/15 px-3 disabled:opacity-50" disabled={!table.getCanPreviousPage()} onClick={() => table.previousPage()}>
+              Previous
+            </button>
+            <span>
+              Page {table.getState().pagination.pageIndex + 1} of {pages}
+            </span>
+            <button type="button" className="min-h-10 rounded border border-ink/15 px-3 disabled:opacity-50" disabled={!table.getCanNextPage()} onClick={() => table.nextPage()}>
+              Next
+            </button>
+          </nav>
+        )}
+      </div>
     </div>
   );
 }
