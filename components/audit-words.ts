@@ -24,7 +24,20 @@ const FIELDS: Record<string, { name: string; value?: (v: unknown) => string }> =
   // five decimals of a degree is about a metre
   extent: { name: 'the extent', value: (v) => (Array.isArray(v) ? `W ${deg(v[0])}, S ${deg(v[1])}, E ${deg(v[2])}, N ${deg(v[3])}` : 'not set') },
   timeZone: { name: 'the time zone' },
-  unitSystem: { name: 'the units', value: (v) => (v === 'imperial' ? 'imperial' : 'metric') },
+  unitSystem: { name: 'the units', value: (v) => (v === 'imperial' ? 'imperial' : v === null ? 'as each project is set' : 'metric') },
+  // ---- trench records: project record settings (lead) ----
+  records: {
+    name: 'the record settings',
+    value: (v) => {
+      if (!isObj(v)) return say(v);
+      const words: Record<string, [string, string]> = {
+        trenchWidthMm: ['trench width', 'mm'], trenchDepthMm: ['trench depth', 'mm'], minClearanceM: ['minimum clearance', 'm'], gapThresholdM: ['longest gap', 'm'],
+        restorationMaxDelayMin: ['longest wait before laying', 'min'], layingTempTargetC: ['laying temperature', '°C'], layingTempToleranceC: ['tolerance ±', '°C'],
+        compactionPassesDefault: ['compaction passes', ''], surfaceThicknessMm: ['surface thickness', 'mm'],
+      };
+      return Object.entries(words).filter(([k]) => typeof v[k] === 'number').map(([k, [n, u]]) => `${n} ${v[k]}${u ? ` ${u}` : ''}`).join(', ') || 'the usual figures';
+    },
+  },
   minCoverDepthM: { name: 'the minimum cover depth', value: metres },
   lateralToleranceM: { name: 'the lateral tolerance', value: metres },
   defaultAccuracyClass: { name: 'the usual survey accuracy', value: (v) => ACCURACY_CLASS_LABELS[v as keyof typeof ACCURACY_CLASS_LABELS] ?? say(v) },
@@ -50,7 +63,7 @@ const FIELDS: Record<string, { name: string; value?: (v: unknown) => string }> =
 };
 
 // ids and internal columns add nothing a person can act on
-const HIDDEN = new Set(['id', 'ownerOrgId', 'contractorOrgId', 'createdAt', 'updatedAt', 'sha256', 'passwordHash']);
+const HIDDEN = new Set(['id', 'ownerOrgId', 'contractorOrgId', 'createdAt', 'updatedAt', 'sha256', 'passwordHash', 'colourSequenceId']);
 
 /** Any stored value in words: no braces, no quotes. */
 export function say(v: unknown): string {

@@ -36,6 +36,8 @@ export const QUANTITIES = {
   length: { metric: 'm', imperial: 'ft', toImperial: mToFt, fromImperial: ftToM, digits: { metric: 1, imperial: 1 } },
   /** laying temperatures: stored °C, shown °C or °F */
   temperature: { metric: '°C', imperial: '°F', toImperial: cToF, fromImperial: fToC, digits: { metric: 0, imperial: 0 } },
+  /** a temperature difference (a tolerance): 1 °C of difference is 1.8 °F, no offset */
+  temperatureDifference: { metric: '°C', imperial: '°F', toImperial: (c: number) => c * 1.8, fromImperial: (f: number) => f / 1.8, digits: { metric: 0, imperial: 0 } },
 } as const;
 export type Quantity = keyof typeof QUANTITIES;
 

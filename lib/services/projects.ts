@@ -10,6 +10,7 @@ import type { OrgKind } from '@/lib/auth/roles';
 
 import { ACCURACY_CLASSES } from '@/lib/records/accuracy-classes';
 import { RANGES, rangedNumber } from '@/lib/records/plausible-ranges';
+import { recordSettingsSchema } from '@/lib/records/record-settings';
 
 const timeZones = new Set<string>([...Intl.supportedValuesOf('timeZone'), 'UTC']);
 
@@ -26,20 +27,6 @@ const crsSchema = z
   .transform((s) => Number(s.replace(/^EPSG:/i, '')));
 
 const sigmasSchema = z.partialRecord(z.enum(ACCURACY_CLASSES), rangedNumber(RANGES.sigmaM));
-
-/** The record settings as a person sets them; each within its plausible range. */
-export const recordSettingsSchema = z.object({
-  trenchWidthMm: rangedNumber(RANGES.trenchWidthMm, { int: true }),
-  trenchDepthMm: rangedNumber(RANGES.trenchDepthMm, { int: true }),
-  minClearanceM: rangedNumber(RANGES.minClearanceM),
-  gapThresholdM: rangedNumber(RANGES.gapThresholdM),
-  restorationMaxDelayMin: rangedNumber(RANGES.restorationMaxDelayMin, { int: true }),
-  layingTempTargetC: rangedNumber(RANGES.layingTempTargetC),
-  layingTempToleranceC: rangedNumber(RANGES.layingTempToleranceC),
-  compactionPassesDefault: rangedNumber(RANGES.compactionPassesDefault, { int: true }),
-  surfaceThicknessMm: rangedNumber(RANGES.surfaceThicknessMm, { int: true }),
-  colourSequenceId: z.uuid('Pick a colour sequence from the catalogue.').nullable(),
-}).partial();
 
 const PARTNER_MOVED = 'The network owner and the contractor change only by a proposal that the other organisation confirms (POST /api/projects/{id}/org-changes).';
 

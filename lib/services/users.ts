@@ -149,3 +149,13 @@ export async function acceptUserLink(db: Knex, input: z.infer<typeof acceptLinkS
     return { email: user.email };
   });
 }
+
+/** The person's own units: metric, imperial, or null to follow each project's. Audited like other changes to a person. */
+export async function setOwnUnitSystem(db: Knex, actor: Principal, unitSystem: 'metric' | 'imperial' | null): Promise<Principal> {
+  return db.transaction(async (trx) => {
+    const before = await trx('users').where({ id: actor.id }).first('unit_system');
+    await trx('users').where({ id: actor.id }).update({ unit_system: unitSystem, updated_at: trx.fn.now() });
+    await writeAudit(trx, auditActor(actor), { objectType: 'user', objectId: actor.id, action: 'update', before: { unitSystem: before?.unit_system ?? null }, after: { unitSystem } });
+    return { ...actor, unitSystem };
+  });
+}

@@ -11,6 +11,15 @@ describe('the activity log in words', () => {
     );
   });
 
+  // ---- trench records: record settings and a person's units (lead) ----
+  it('says which record setting changed, and a person\'s own units', () => {
+    const s = describeAudit({ objectType: 'project', action: 'update', before: { records: { trenchDepthMm: 480, colourSequenceId: 'x' } }, after: { records: { trenchDepthMm: 500, colourSequenceId: 'x' } } });
+    expect(s).toContain('trench depth 480 mm');
+    expect(s).toContain('trench depth 500 mm');
+    expect(s).not.toMatch(/[{}"]/);
+    expect(describeAudit({ objectType: 'user', action: 'update', before: { unitSystem: null }, after: { unitSystem: 'imperial' } })).toContain('as each project is set');
+  });
+
   it('tells a change of owner as a proposal and its answer', () => {
     const after = { side: 'owner', from: 'Quillhaven Open Fibre', to: 'Fernbrook Fibre Trust', reason: 'The network was sold.', waitingFor: 'Quillhaven Open Fibre' };
     expect(describeAudit({ objectType: 'org_change', action: 'propose', before: null, after })).toBe(

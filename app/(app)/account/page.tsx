@@ -5,6 +5,7 @@ import { requirePrincipal } from '@/lib/auth/session';
 import { ROLE_LABELS } from '@/lib/auth/roles';
 import { Card, PageHeader } from '@/components/ui/primitives';
 import { TokenManager } from '@/components/forms/token-manager';
+import { UnitChoice } from '@/components/forms/unit-choice';
 
 export const metadata: Metadata = { title: 'Account' };
 
@@ -19,6 +20,9 @@ export default async function AccountPage() {
           <p className="text-sm">
             {ROLE_LABELS[me.role]} at {me.organisationName}. Your administrator sets your role.
           </p>
+        </Card>
+        <Card title="Units">
+          <UnitChoice initial={me.unitSystem} />
         </Card>
         <Card title="Personal API tokens">
           <p className="mb-4 text-sm text-ink-soft">

@@ -6,6 +6,9 @@ import { listOrgChanges } from '@/db/org-changes';
 import { Card, Notice, PageHeader } from '@/components/ui/primitives';
 import { ProjectForm } from '@/components/forms/project-form';
 import { OrgChangePanel } from '@/components/forms/org-change-panel';
+import { RecordSettingsForm } from '@/components/forms/record-settings-form';
+import { listColourSequences } from '@/db/catalogues';
+import { shownSystem } from '@/lib/records/units';
 
 export const metadata: Metadata = { title: 'Project settings' };
 
@@ -14,7 +17,7 @@ export default async function ProjectSettingsPage({ params }: { params: Promise<
   const { me, project, allowed } = await requireProjectPage(projectId, 'project.manage');
   if (!allowed) return <Notice tone="bad">Only administrators change project settings.</Notice>;
   const db = getDb();
-  const [changes, organisations] = await Promise.all([listOrgChanges(db, project.id), listOrganisations(db)]);
+  const [changes, organisations, sequences] = await Promise.all([listOrgChanges(db, project.id), listOrganisations(db), listColourSequences(db, project.id)]);
   return (
     <>
       <PageHeader title="Project settings" subtitle={project.name} />
@@ -36,6 +39,15 @@ export default async function ProjectSettingsPage({ params }: { params: Promise<
               defaultAccuracyClass: project.defaultAccuracyClass,
               accuracySigmas: project.accuracySigmas,
             }}
+          />
+        </Card>
+        <Card title="Trench records">
+          <p className="mb-4 text-sm text-ink-soft">What the records are checked against. The minimum cover depth is set above.</p>
+          <RecordSettingsForm
+            projectId={project.id}
+            initial={{ ...project.records, colourSequenceId: project.records.colourSequenceId ?? undefined }}
+            sequences={sequences.map((q) => ({ id: q.id, name: q.name }))}
+            system={shownSystem(me.unitSystem, project.unitSystem)}
           />
         </Card>
         <Card title="Network owner and contractor">
