@@ -4,7 +4,8 @@ import { useRouter } from 'next/navigation';
 import { useState } from 'react';
 import type { User } from '@/db/users';
 import { ROLE_LABELS, ROLES, type Role } from '@/lib/auth/roles';
-import { Badge, Button, Card, Field, Input, Notice, Select } from '@/components/ui/primitives';
+import { Button, Card, Field, Input, Notice, Select } from '@/components/ui/primitives';
+import { DataTable } from '@/components/ui/data-table';
 import { callApi } from './api-client';
 
 interface Onboarding {
@@ -106,44 +107,42 @@ export function PeopleManager({ users, selfId }: { users: User[]; selfId: string
           </div>
         </form>
       </Card>
-      <div className="overflow-x-auto rounded-lg border border-ink/10 bg-paper-raised">
-        <table className="min-w-full text-sm" aria-label="People">
-          <thead className="bg-paper-sunk text-left text-xs uppercase tracking-wide text-ink-soft">
-            <tr>
-              <th className="px-3 py-2">Name</th>
-              <th className="px-3 py-2">E-mail</th>
-              <th className="px-3 py-2">Role</th>
-              <th className="px-3 py-2">State</th>
-              <th className="px-3 py-2">Actions</th>
-            </tr>
-          </thead>
-          <tbody className="divide-y divide-ink/5">
-            {users.map((u) => (
-              <tr key={u.id}>
-                <td className="px-3 py-2 font-medium">{u.name}</td>
-                <td className="px-3 py-2">{u.email}</td>
-                <td className="px-3 py-2">
+      <DataTable
+        label="People"
+        columns={[
+          { key: 'name', label: 'Name' },
+          { key: 'email', label: 'E-mail' },
+          { key: 'role', label: 'Role', priority: 1 },
+          { key: 'state', label: 'State', priority: 1 },
+          { key: 'actions', label: 'Actions' },
+        ]}
+        rows={users.map((u) => ({
+          id: u.id,
+          cells: {
+            name: u.name,
+            email: u.email,
+            role: {
+              text: ROLE_LABELS[u.role],
+              node: (
+                <>
                   <label className="sr-only" htmlFor={`role-${u.id}`}>
                     Role of {u.name}
                   </label>
-                  <Select
-                    id={`role-${u.id}`}
-                    value={u.role}
-                    disabled={u.id === selfId}
-                    onChange={(e) => change(u, { role: e.target.value as Role })}
-                    className="w-40 py-1"
-                  >
+                  <Select id={`role-${u.id}`} value={u.role} disabled={u.id === selfId} onChange={(e) => change(u, { role: e.target.value as Role })} className="w-40 py-1">
                     {ROLES.map((r) => (
                       <option key={r} value={r}>
                         {ROLE_LABELS[r]}
                       </option>
                     ))}
                   </Select>
-                </td>
-                <td className="px-3 py-2">
-                  {u.active ? (u.hasPassword ? <Badge tone="ok">Active</Badge> : <Badge tone="warn">Invited</Badge>) : <Badge>Deactivated</Badge>}
-                </td>
-                <td className="space-x-2 px-3 py-2 whitespace-nowrap">
+                </>
+              ),
+            },
+            state: u.active ? (u.hasPassword ? { text: 'Active', tone: 'ok' } : { text: 'Invited', tone: 'warn' }) : { text: 'Deactivated', tone: 'muted' },
+            actions: {
+              text: '',
+              node: (
+                <span className="flex flex-wrap gap-2">
                   {u.id !== selfId && (
                     <Button variant={u.active ? 'danger' : 'secondary'} onClick={() => change(u, { active: !u.active })} aria-label={`${u.active ? 'Deactivate' : 'Reactivate'} ${u.name}`}>
                       {u.active ? 'Deactivate' : 'Reactivate'}
@@ -152,12 +151,12 @@ export function PeopleManager({ users, selfId }: { users: User[]; selfId: string
                   <Button variant="secondary" onClick={() => change(u, { reset: 'link' })} aria-label={`Reset password of ${u.name}`}>
                     Reset password
                   </Button>
-                </td>
-              </tr>
-            ))}
-          </tbody>
-        </table>
-      </div>
+                </span>
+              ),
+            },
+          },
+        }))}
+      />
     </div>
   );
 }

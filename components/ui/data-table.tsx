@@ -14,11 +14,15 @@ import {
 } from '@tanstack/react-table';
 import { Badge } from './primitives';
 
+/**
+ * A cell: text or a number, or an object with the text (what the filter and the sort read), a link, a badge
+ * tone or swatch, or `node` (controls such as a select or buttons) shown instead of the text.
+ */
 export type Cell =
   | string
   | number
   | null
-  | { text: string; href?: string; tone?: 'ok' | 'warn' | 'bad' | 'info' | 'muted'; swatch?: string; sort?: string | number };
+  | { text: string; href?: string; tone?: 'ok' | 'warn' | 'bad' | 'info' | 'muted'; swatch?: string; sort?: string | number; node?: ReactNode };
 
 export interface Column {
   key: string;
@@ -174,7 +178,9 @@ export function DataTable({ columns, rows, label, empty = 'Nothing here yet.', s
                   return (
                     <td key={c.key} data-label={c.label} className={`block min-w-0 break-words sm:table-cell sm:px-3 sm:py-2 sm:align-top ${phoneCell(c, i === 0)} ${c.align === 'right' ? 'tabular-nums sm:whitespace-nowrap sm:text-right' : ''}`}>
                       {cell !== null && typeof cell === 'object' ? (
-                        cell.href ? (
+                        cell.node !== undefined ? (
+                          cell.node
+                        ) : cell.href ? (
                           <Link href={cell.href}>{cell.text}</Link>
                         ) : cell.tone || cell.swatch ? (
                           <Badge tone={cell.tone} swatch={cell.swatch}>{cell.text}</Badge>
