@@ -8,6 +8,9 @@ import type { Db } from './client';
 const ORIGINAL_KEY_COLUMNS = [
   { table: 'upload_files', column: 'storage_key' },
   { table: 'plan_version_files', column: 'storage_key' },
+  // photos (issue 14): the original and its thumbnail
+  { table: 'photos', column: 'storage_key' },
+  { table: 'photos', column: 'thumbnail_key' },
 ] as const;
 
 /** Of the given keys of the originals store, those a committed row names. */

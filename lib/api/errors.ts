@@ -27,6 +27,8 @@ export const ERROR_CODES = {
   out_of_range: { status: 422, summary: 'Coordinates are out of range (latitude beyond ±90, longitude beyond ±180).' },
   swapped_axes: { status: 422, summary: 'Latitude/longitude or easting/northing look swapped.' },
   too_few_points: { status: 422, summary: 'No track or line has the two points a line needs.' },
+  // photos (issue 14): a photo must be placed
+  position_required: { status: 422, summary: 'The photo has no GPS position of its own and none was given; details name the fields to fill.' },
   rate_limited: { status: 429, summary: 'Too many attempts; try again later.' },
   internal: { status: 500, summary: 'An unexpected error; it has been logged.' },
 } as const satisfies Record<string, { status: number; summary: string }>;
