@@ -112,6 +112,48 @@ const capital = (s: string) => (s ? s[0].toUpperCase() + s.slice(1) : s);
 /** A person's own words, ended with one full stop. */
 const quoted = (v: unknown) => `${say(v).replace(/[.\s]+$/, '')}.`;
 
+// ---- road crossings and photos (issue 14) ----
+type FieldWords = Record<string, { name: string; value?: (v: unknown) => string }>;
+const CROSSING_FIELDS: FieldWords = {
+  built: { name: 'built' },
+  builtOn: { name: 'the date built' },
+  lengthM: { name: 'the measured length', value: metres },
+  sawnBeforeMain: { name: 'sawn before the lengthways cut' },
+  ductCount: { name: 'the number of ducts' },
+  ductSize: { name: 'the duct size' },
+  addressRef: { name: 'the address' },
+  note: { name: 'the note' },
+  fromChainageM: { name: 'the start chainage', value: metres },
+  toChainageM: { name: 'the end chainage', value: metres },
+};
+const PHOTO_FIELDS: FieldWords = {
+  caption: { name: 'the caption' },
+  place: { name: 'the place' },
+  crossing: { name: 'the road crossing it shows', value: (v) => (v ? `road crossing ${say(v)}` : 'nothing') },
+  pitId: { name: 'the test pit it shows', value: (v) => (v ? 'a test pit' : 'nothing') },
+};
+/** Changed fields in the words of `fields`; keys it does not name are left out. */
+function changesIn(fields: FieldWords, b: Obj, a: Obj): string {
+  return Object.keys(fields)
+    .filter((k) => JSON.stringify(a[k] ?? null) !== JSON.stringify(b[k] ?? null))
+    .map((k) => `${fields[k].name} from ${(fields[k].value ?? say)(b[k] ?? null)} to ${(fields[k].value ?? say)(a[k] ?? null)}`)
+    .join('; ');
+}
+function crossingFacts(a: Obj): string {
+  if (!a.built) return 'as not built yet';
+  const facts: string[] = [];
+  if (typeof a.lengthM === 'number') facts.push(`${a.lengthM} m`);
+  if (typeof a.sawnBeforeMain === 'boolean') facts.push(a.sawnBeforeMain ? 'sawn before the lengthways cut' : 'sawn after the lengthways cut');
+  if (typeof a.ductCount === 'number') facts.push(`${a.ductCount} × ${a.ductSize ? `${say(a.ductSize)} ` : ''}${a.ductCount === 1 ? 'duct' : 'ducts'}`);
+  return `as built${a.builtOn ? ` on ${say(a.builtOn)}` : ''}${facts.length ? `, ${facts.join(', ')}` : ''}`;
+}
+const PLACED_BY: Record<string, string> = {
+  exif: 'placed from its own GPS position', hand: 'placed by hand', chainage: 'placed at a typed chainage', crossing: 'placed at its road crossing', pit: 'placed at its test pit',
+};
+const photoPlace = (a: Obj) => `${say(a.route)} at ${say(a.chainageM)} m`;
+const withPlace = (a: Obj): Obj => ({ ...a, place: a.route === undefined ? undefined : photoPlace(a) });
+// ---- end of road crossings and photos ----
+
 /**
  * One audit entry as a sentence. `describeAudit({ objectType: 'project', action: 'update',
  * before: { lateralToleranceM: 0.5 }, after: { lateralToleranceM: 0.75 } })` is
@@ -165,6 +207,23 @@ export function describeAudit(e: AuditLike): string {
       return `Left ${a.kind === 'time' ? `the time from ${say(a.from)} to ${say(a.to)}` : `${say(a.from)}–${say(a.to)} m`} of an upload out of matching. Reason: ${quoted(a.reason)}`;
     case 'upload include_range':
       return 'Took a left-out range of an upload back into matching.';
+    // road crossings and photos (issue 14)
+    case 'road_crossing create':
+      return `Recorded road crossing ${say(a.route)} ${crossingFacts(a)}.`;
+    case 'road_crossing update': {
+      const c = changesIn(CROSSING_FIELDS, b, a);
+      return c ? `Changed road crossing ${say(a.route)}: ${c}.` : `Saved road crossing ${say(a.route)} without changes.`;
+    }
+    case 'road_crossing delete':
+      return `Removed the record of road crossing ${say(b.route)}.`;
+    case 'photo create':
+      return `Added the photo ${say(a.fileName)} on ${photoPlace(a)}, ${PLACED_BY[String(a.placedBy)] ?? say(a.placedBy)}${a.crossing ? `, showing road crossing ${say(a.crossing)}` : ''}.${a.caption ? ` Caption: ${quoted(a.caption)}` : ''}`;
+    case 'photo update': {
+      const c = changesIn(PHOTO_FIELDS, withPlace(b), withPlace(a));
+      return c ? `Changed the photo ${say(a.fileName)}: ${c}.` : `Saved the photo ${say(a.fileName)} without changes.`;
+    }
+    case 'photo delete':
+      return `Removed the photo ${say(b.fileName)} (${photoPlace(b)}).`;
     default: {
       const c = changes(b, a);
       const what = `${capital(words(e.action))} ${words(e.objectType)}`;

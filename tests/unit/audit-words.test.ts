@@ -73,4 +73,19 @@ describe('parser warnings', () => {
     expect(warningWords("columns were guessed from the header: id='pt', x='e'; send columns to set them explicitly")).toBe('Columns recognised from the header.');
     expect(warningWords('feature 3 has no geometry; skipped')).toBe('Feature 3 has no geometry; skipped.');
   });
+
+  // ---- road crossings and photos (issue 14) ----
+  it('tells road crossings and photos', () => {
+    const built = { route: 'QN-X1', built: true, builtOn: '2026-11-03', lengthM: 9.2, sawnBeforeMain: true, ductCount: 1, ductSize: '14/10 mm', addressRef: null, note: '' };
+    expect(describeAudit({ objectType: 'road_crossing', action: 'create', before: null, after: built })).toBe('Recorded road crossing QN-X1 as built on 2026-11-03, 9.2 m, sawn before the lengthways cut, 1 × 14/10 mm duct.');
+    expect(describeAudit({ objectType: 'road_crossing', action: 'create', before: null, after: { route: 'QN-X3', built: false } })).toBe('Recorded road crossing QN-X3 as not built yet.');
+    expect(describeAudit({ objectType: 'road_crossing', action: 'update', before: built, after: { ...built, lengthM: 9.4, note: 'Kerb reset' } })).toBe('Changed road crossing QN-X1: the measured length from 9.2 m to 9.4 m; the note from nothing to Kerb reset.');
+    expect(describeAudit({ objectType: 'road_crossing', action: 'delete', before: built, after: null })).toBe('Removed the record of road crossing QN-X1.');
+    const photo = { fileName: 'IMG_0042.jpg', caption: 'Slot at no. 12', route: 'QN-101', chainageM: 57.3, placedBy: 'exif', crossing: null, pitId: null, takenAt: null, sizeBytes: 1 };
+    expect(describeAudit({ objectType: 'photo', action: 'create', before: null, after: photo })).toBe('Added the photo IMG_0042.jpg on QN-101 at 57.3 m, placed from its own GPS position. Caption: Slot at no. 12.');
+    expect(describeAudit({ objectType: 'photo', action: 'update', before: photo, after: { ...photo, chainageM: 60, placedBy: 'hand', crossing: 'QN-X1' } })).toBe(
+      'Changed the photo IMG_0042.jpg: the place from QN-101 at 57.3 m to QN-101 at 60 m; the road crossing it shows from nothing to road crossing QN-X1.',
+    );
+    expect(describeAudit({ objectType: 'photo', action: 'delete', before: photo, after: null })).toBe('Removed the photo IMG_0042.jpg (QN-101 at 57.3 m).');
+  });
 });
