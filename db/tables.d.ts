@@ -129,3 +129,53 @@ export interface ProjectOrgChangeRow {
   answered_at: Date | null;
   answer_note: string | null;
 }
+
+// ---- duct bundles, their ducts and duct joints (issue 14, ducts part) ----
+export interface DuctBundleRow {
+  id: string;
+  project_id: string;
+  route_id: string;
+  from_chainage_m: number;
+  to_chainage_m: number;
+  kind: 'planned' | 'installed';
+  tracer_wire: boolean | null;
+  warning_tape: boolean | null;
+  protective_fill: boolean | null;
+  note: string;
+  planned_spec: string | null;
+  colour_sequence_id: string | null;
+  created_by: string | null;
+  updated_by: string | null;
+  created_at: Date;
+  updated_at: Date;
+}
+
+export interface DuctBundleDuctRow {
+  id: number;
+  bundle_id: string;
+  position: number;
+  duct_size_id: string | null;
+  outer_mm: number;
+  inner_mm: number | null;
+  colour_position: number | null;
+  colour_name: string | null;
+  colour_hex: string | null;
+  colour_marking: 'stripe' | 'tracer' | null;
+  purpose: 'feeder' | 'distribution' | 'drop' | 'spare' | null;
+}
+
+export interface DuctJointRow {
+  id: string;
+  project_id: string;
+  route_id: string;
+  chainage_m: number;
+  offset_m: number;
+  geom: unknown;
+  kind: 'joint' | 'connector';
+  duct_positions: number[];
+  note: string;
+  created_by: string | null;
+  updated_by: string | null;
+  created_at: Date;
+  updated_at: Date;
+}
