@@ -179,3 +179,51 @@ export interface DuctJointRow {
   created_at: Date;
   updated_at: Date;
 }
+
+// ---- road crossings and photos (issue 14) ----
+export interface RoadCrossingRow {
+  id: string;
+  project_id: string;
+  route_id: string;
+  from_chainage_m: number;
+  to_chainage_m: number;
+  built: boolean;
+  built_on: Date | null;
+  length_m: number | null;
+  sawn_before_main: boolean | null;
+  duct_count: number | null;
+  duct_size_id: string | null;
+  address_ref: string | null;
+  note: string;
+  created_by: string | null;
+  updated_by: string | null;
+  created_at: Date;
+  updated_at: Date;
+}
+
+export interface PhotoRow {
+  id: string;
+  project_id: string;
+  route_id: string;
+  chainage_m: number;
+  offset_m: number;
+  geom: unknown;
+  placed_by: 'exif' | 'hand' | 'chainage' | 'crossing' | 'pit';
+  crossing_id: string | null;
+  /** a test pit's id (no foreign key: the pits table is another migration's) */
+  pit_id: string | null;
+  taken_at: Date | null;
+  caption: string;
+  file_name: string;
+  mime_type: 'image/jpeg' | 'image/png';
+  size_bytes: number;
+  sha256: string;
+  width: number;
+  height: number;
+  storage_key: string;
+  thumbnail_key: string;
+  created_by: string | null;
+  updated_by: string | null;
+  created_at: Date;
+  updated_at: Date;
+}
