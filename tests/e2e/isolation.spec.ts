@@ -3,6 +3,8 @@ import path from 'node:path';
 import { expect, test, type APIRequestContext } from '@playwright/test';
 import { addUserWithToken, DEMO, json } from '../helpers/e2e';
 import { gpxTrack } from '../helpers/upload-form';
+// road crossings and photos: a small PNG to upload
+import sharp from 'sharp';
 
 /**
  * The isolation matrix: every method of every app/api/**\/route.ts has a row. Each row asserts 401 without
@@ -368,6 +370,89 @@ const MATRIX: Record<string, Row | PublicRow> = {
     body: () => ({ decision: 'withdraw' }),
     success: 200,
   },
+  // ---- trench records: road crossings and photos (helper) ----
+  'GET /api/projects/[projectId]/road-crossings': {
+    url: () => `/api/projects/${rp.projectId}/road-crossings`,
+    foreign: () => `/api/projects/${rp.foreignProjectId}/road-crossings`,
+    denied: ALL_ROLES,
+    allowed: 'maintenance',
+    success: 200,
+  },
+  'POST /api/projects/[projectId]/road-crossings': {
+    url: () => `/api/projects/${rp.projectId}/road-crossings`,
+    foreign: () => `/api/projects/${rp.foreignProjectId}/road-crossings`,
+    denied: 'owner',
+    allowed: 'surveyor',
+    body: () => ({ routeId: rp.freeCrossingRouteId, built: true, builtOn: '2026-11-03', lengthM: 9.2 }),
+    success: 201,
+  },
+  'PATCH /api/projects/[projectId]/road-crossings/[crossingId]': {
+    url: () => `/api/projects/${rp.projectId}/road-crossings/${rp.crossingId}`,
+    foreign: () => `/api/projects/${rp.foreignProjectId}/road-crossings/${rp.foreignCrossingId}`,
+    denied: 'owner',
+    allowed: 'engineer',
+    body: () => ({ note: 'isolation matrix' }),
+    success: 200,
+  },
+  'DELETE /api/projects/[projectId]/road-crossings/[crossingId]': {
+    url: () => `/api/projects/${rp.projectId}/road-crossings/${rp.spareCrossingId}`,
+    foreign: () => `/api/projects/${rp.foreignProjectId}/road-crossings/${rp.foreignCrossingId}`,
+    denied: 'maintenance',
+    allowed: 'surveyor',
+    success: 200,
+  },
+  'GET /api/projects/[projectId]/photos': {
+    url: () => `/api/projects/${rp.projectId}/photos`,
+    foreign: () => `/api/projects/${rp.foreignProjectId}/photos`,
+    denied: ALL_ROLES,
+    allowed: 'owner',
+    success: 200,
+  },
+  'POST /api/projects/[projectId]/photos': {
+    url: () => `/api/projects/${rp.projectId}/photos`,
+    foreign: () => `/api/projects/${rp.foreignProjectId}/photos`,
+    denied: 'owner',
+    allowed: 'surveyor',
+    body: () => photoForm(rp.newPhoto, rp.at(120, 1)),
+    success: 201,
+  },
+  'GET /api/projects/[projectId]/photos/[photoId]': {
+    url: () => `/api/projects/${rp.projectId}/photos/${rp.photoId}`,
+    foreign: () => `/api/projects/${rp.foreignProjectId}/photos/${rp.foreignPhotoId}`,
+    denied: ALL_ROLES,
+    allowed: 'maintenance',
+    success: 200,
+  },
+  'PATCH /api/projects/[projectId]/photos/[photoId]': {
+    url: () => `/api/projects/${rp.projectId}/photos/${rp.photoId}`,
+    foreign: () => `/api/projects/${rp.foreignProjectId}/photos/${rp.foreignPhotoId}`,
+    denied: 'maintenance',
+    allowed: 'engineer',
+    body: () => ({ caption: 'isolation matrix' }),
+    success: 200,
+  },
+  'DELETE /api/projects/[projectId]/photos/[photoId]': {
+    url: () => `/api/projects/${rp.projectId}/photos/${rp.sparePhotoId}`,
+    foreign: () => `/api/projects/${rp.foreignProjectId}/photos/${rp.foreignPhotoId}`,
+    denied: 'owner',
+    allowed: 'surveyor',
+    success: 200,
+  },
+  'GET /api/projects/[projectId]/photos/[photoId]/original': {
+    url: () => `/api/projects/${rp.projectId}/photos/${rp.photoId}/original`,
+    foreign: () => `/api/projects/${rp.foreignProjectId}/photos/${rp.foreignPhotoId}/original`,
+    denied: ALL_ROLES,
+    allowed: 'owner',
+    success: 200,
+  },
+  'GET /api/projects/[projectId]/photos/[photoId]/thumbnail': {
+    url: () => `/api/projects/${rp.projectId}/photos/${rp.photoId}/thumbnail`,
+    foreign: () => `/api/projects/${rp.foreignProjectId}/photos/${rp.foreignPhotoId}/thumbnail`,
+    denied: ALL_ROLES,
+    allowed: 'maintenance',
+    success: 200,
+  },
+  // ---- end of road crossings and photos ----
   'GET /api/crs': { url: () => '/api/crs?q=25832', foreign: NO_OBJECT, denied: ALL_ROLES, allowed: 'surveyor', success: 200 },
   'GET /api/audit': { url: () => '/api/audit', foreign: NO_OBJECT, denied: 'maintenance', allowed: 'admin', success: 200 },
 };
@@ -406,6 +491,27 @@ function listRoutes(): string[] {
   return out.sort();
 }
 
+// ---- trench records: road crossings and photos (helper) ----
+interface RecordsCtx {
+  projectId: string;
+  foreignProjectId: string;
+  at: (east: number, north: number) => [number, number];
+  /** a crossing route without a record, for the POST row */
+  freeCrossingRouteId: string;
+  crossingId: string;
+  spareCrossingId: string;
+  foreignCrossingId: string;
+  photoId: string;
+  sparePhotoId: string;
+  foreignPhotoId: string;
+  /** bytes no photo of the project has yet, for the POST row */
+  newPhoto: Buffer;
+}
+let rp: RecordsCtx;
+/** A photo placed by hand (lon/lat), as the phone's form sends it. */
+function photoForm(bytes: Buffer, [lon, lat]: [number, number]) {
+  return { multipart: { file: { name: 'matrix.png', mimeType: 'image/png', buffer: bytes }, lon: String(lon), lat: String(lat), caption: 'isolation matrix' } };
+}
 let ctx: Ctx;
 
 test.beforeAll(async ({ request }) => {
@@ -494,6 +600,60 @@ test.beforeAll(async ({ request }) => {
   };
   const exclusionId = await exclusionOn(projectId, upload.body!.upload!.id, tokens.engineer);
   const foreignExclusionId = await exclusionOn(fp.body!.project.id, foreignUpload.body!.upload!.id, foreignToken);
+  // ---- trench records: road crossings and photos (helper) ----
+  // a project between the demo owner and contractor with one street and three road crossings, and one of
+  // Mossgate's with Larkspur (its contractor) recording there; new each run, so nothing is left from a retry
+  {
+    const at = (e: number, n: number): [number, number] => [9.2 + e / 68_300, 52.2 + n / 111_250];
+    const design = (tag: string) => {
+      const line = (ref: string, type: string, pts: [number, number][]) => ({ type: 'Feature', properties: { route_id: `${tag}-${ref}`, type }, geometry: { type: 'LineString', coordinates: pts.map(([e, n]) => at(e, n)) } });
+      const features = [line('S', 'street', [[0, 0], [200, 0]]), line('X1', 'road crossing', [[40, 0], [40, -9]]), line('X2', 'road crossing', [[90, 0], [90, -9]]), line('X3', 'road crossing', [[150, 0], [150, -9]])];
+      return { multipart: { file: { name: 'crossings.geojson', mimeType: 'application/geo+json', buffer: Buffer.from(JSON.stringify({ type: 'FeatureCollection', features })) } } };
+    };
+    const stamp = Date.now();
+    const larkspur = addUserWithToken({ email: 'surveyor@larkspur-ground.example', name: 'Larkspur Surveyor', role: 'surveyor', org: 'Larkspur Ground Works', orgKind: 'contractor' });
+    const project = async (token: string, body: unknown) => {
+      const r = await json<{ project: { id: string } }>(request, 'POST', '/api/projects', token, body);
+      expect(r.status).toBe(201);
+      return r.body!.project.id;
+    };
+    const mine = await project(tokens.admin, { name: `Matrix records ${stamp}`, partnerOrganisationId: tarnwickId });
+    const theirs = await project(foreignToken, { name: `Mossgate records ${stamp}`, partnerOrganisation: 'Larkspur Ground Works' });
+    expect((await json(request, 'POST', `/api/projects/${mine}/planned`, tokens.engineer, design(`RC${stamp}`))).status).toBe(201);
+    expect((await json(request, 'POST', `/api/projects/${theirs}/planned`, foreignToken, design(`RF${stamp}`))).status).toBe(201);
+    const crossingRoutes = async (pid: string, token: string) =>
+      (await json<{ crossings: { routeId: string; routeRef: string }[] }>(request, 'GET', `/api/projects/${pid}/road-crossings`, token)).body!.crossings.map((c) => c.routeId);
+    const [x1, x2, x3] = await crossingRoutes(mine, tokens.surveyor);
+    const [fx1] = await crossingRoutes(theirs, larkspur);
+    const crossing = async (pid: string, token: string, routeId: string) => {
+      const r = await json<{ crossing: { id: string } }>(request, 'POST', `/api/projects/${pid}/road-crossings`, token, { routeId, built: true });
+      expect(r.status).toBe(201);
+      return r.body!.crossing.id;
+    };
+    let shade = stamp % 200;
+    const png = async () => {
+      shade += 1;
+      return sharp({ create: { width: 32, height: 24, channels: 3, background: { r: shade % 256, g: (shade * 7) % 256, b: (shade * 13) % 256 } } }).png().toBuffer();
+    };
+    const photo = async (pid: string, token: string, p: [number, number]) => {
+      const r = await json<{ photo: { id: string } }>(request, 'POST', `/api/projects/${pid}/photos`, token, photoForm(await png(), p));
+      expect(r.status).toBe(201);
+      return r.body!.photo.id;
+    };
+    rp = {
+      projectId: mine,
+      foreignProjectId: theirs,
+      at,
+      freeCrossingRouteId: x3,
+      crossingId: await crossing(mine, tokens.surveyor, x1),
+      spareCrossingId: await crossing(mine, tokens.surveyor, x2),
+      foreignCrossingId: await crossing(theirs, larkspur, fx1),
+      photoId: await photo(mine, tokens.surveyor, at(60, 1)),
+      sparePhotoId: await photo(mine, tokens.surveyor, at(80, -1)),
+      foreignPhotoId: await photo(theirs, larkspur, at(60, 1)),
+      newPhoto: await png(),
+    };
+  }
   ctx = {
     currentSection,
     correctionId,
