@@ -1,5 +1,4 @@
 import { z } from 'zod';
-import { pointAnchorSchema } from './anchor';
 import { RANGES, rangedNumber } from './plausible-ranges';
 
 /**
@@ -36,15 +35,25 @@ export const photoFieldsSchema = z
   });
 export type PhotoFields = z.infer<typeof photoFieldsSchema>;
 
-/** A change (JSON): the caption, a new place (by hand or chainage), the crossing or pit it shows (null detaches). */
+/**
+ * A change (JSON), in the same field names as an upload: the caption, a new place by hand (lon/lat, snapped
+ * to `routeId` when given) or at a route and chainage, the crossing or pit it shows (null detaches).
+ */
 export const photoPatchSchema = z
   .object({
     caption: caption.optional(),
-    position: pointAnchorSchema.optional(),
+    lon: lon.optional(),
+    lat: lat.optional(),
+    routeId: z.uuid('Pick the route.').optional(),
+    chainageM: rangedNumber(RANGES.chainageM).optional(),
     crossingId: z.uuid('The crossing must be the id of a road crossing record.').nullable().optional(),
     pitId: z.uuid('The test pit must be the id of a test pit.').nullable().optional(),
   })
   .superRefine((v, ctx) => {
+    if ((v.lon === undefined) !== (v.lat === undefined)) ctx.addIssue({ code: 'custom', path: [v.lon === undefined ? 'lon' : 'lat'], message: 'Give both longitude and latitude, or neither.' });
+    if (v.chainageM !== undefined && !v.routeId) ctx.addIssue({ code: 'custom', path: ['routeId'], message: 'A chainage needs its route.' });
+    if (v.chainageM !== undefined && v.lon !== undefined) ctx.addIssue({ code: 'custom', path: ['chainageM'], message: 'Give a position or a chainage, not both.' });
+    if (v.routeId && v.chainageM === undefined && v.lon === undefined) ctx.addIssue({ code: 'custom', path: ['chainageM'], message: 'Give the chainage on the route, or a position.' });
     if (v.crossingId && v.pitId) ctx.addIssue({ code: 'custom', path: ['pitId'], message: 'Attach the photo to a crossing or a test pit, not both.' });
   });
 export type PhotoPatch = z.infer<typeof photoPatchSchema>;

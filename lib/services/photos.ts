@@ -159,9 +159,12 @@ export async function editPhoto(db: Knex, actor: Principal, project: Project, id
     if (!before || before.projectId !== project.id) throw new AppError('not_found', 'No such photo in this project.');
     let anchor: PointAnchor = { routeId: before.routeId, chainageM: before.chainageM, offsetM: before.offsetM, position: [before.lon, before.lat], source: 'position' };
     let placedBy = before.placedBy;
-    if (patch.position) {
-      anchor = await resolvePointAnchor(trx, project.id, patch.position);
-      placedBy = 'chainageM' in patch.position ? 'chainage' : 'hand';
+    if (patch.lon !== undefined && patch.lat !== undefined) {
+      anchor = await resolvePointAnchor(trx, project.id, { lon: patch.lon, lat: patch.lat, routeId: patch.routeId });
+      placedBy = 'hand';
+    } else if (patch.routeId && patch.chainageM !== undefined) {
+      anchor = await resolvePointAnchor(trx, project.id, { routeId: patch.routeId, chainageM: patch.chainageM });
+      placedBy = 'chainage';
     }
     const crossingId = patch.crossingId === undefined ? before.crossingId : patch.crossingId === null ? null : (await crossingAnchor(trx, project, patch.crossingId)).id;
     const pitId = patch.pitId === undefined ? before.pitId : patch.pitId === null ? null : (await pitAnchor(trx, project, patch.pitId)).id;

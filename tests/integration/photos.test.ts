@@ -1,5 +1,7 @@
 import { createHash } from 'node:crypto';
 import { buffer as readAll } from 'node:stream/consumers';
+import { mkdtemp, rm } from 'node:fs/promises';
+import os from 'node:os';
 import path from 'node:path';
 import piexif from 'piexifjs';
 import sharp from 'sharp';
@@ -17,6 +19,8 @@ import { roadCrossingSchema } from '@/lib/records/road-crossing-schema';
 import { editPhoto, receivePhoto, removePhoto } from '@/lib/services/photos';
 import { createRoadCrossing } from '@/lib/services/road-crossings';
 import { createToken } from '@/lib/services/tokens';
+import { sweepOrphanFiles } from '@/lib/services/orphans';
+import { LocalStore } from '@/lib/storage';
 import { originalsStore } from '@/lib/storage/originals-store';
 import { describeAudit } from '@/components/audit-words';
 import { GET as listRoute, POST as uploadRoute } from '@/app/api/projects/[projectId]/photos/route';
@@ -85,6 +89,8 @@ async function refusal(p: Promise<unknown>): Promise<AppError> {
 const stored = async () => [await count(db, 'photos'), await count(db, 'audit_log'), await countFiles(path.join(STORAGE, 'photos'))];
 
 beforeAll(async () => {
+  // the database is new each run; files of an earlier run would be orphans here
+  await rm(STORAGE, { recursive: true, force: true });
   plan = await makeRecordPlan(db, 'Photos', [9.25, 52.25]);
   foreign = await makeRecordPlan(db, 'Photos elsewhere', [9.35, 52.35]);
   const [lon, lat] = foreign.at(20, 0);
@@ -221,14 +227,16 @@ describe('editing, removing, roles and isolation', () => {
   it('changes the caption and moves a photo by hand; the audit entry tells the move', async () => {
     const { photo } = await upload(plan.surveyor, plan, 'move.jpg', await plainJpeg(), { routeId: plan.routes.get('S-1')!, chainageM: '10' });
     const [lon, lat] = plan.at(12, 1);
-    const moved = await editPhoto(db, plan.engineer, plan.project, photo.id, photoPatchSchema.parse({ caption: 'Warning tape visible', position: { lon, lat } }));
+    const moved = await editPhoto(db, plan.engineer, plan.project, photo.id, photoPatchSchema.parse({ caption: 'Warning tape visible', lon, lat }));
     expect(moved).toMatchObject({ caption: 'Warning tape visible', placedBy: 'hand' });
     expect(moved.chainageM).toBeCloseTo(12, 1);
     const entry = await db('audit_log').where({ object_type: 'photo', object_id: photo.id, action: 'update' }).first();
     expect(describeAudit({ objectType: 'photo', action: 'update', before: entry.before, after: entry.after })).toMatch(/^Changed the photo move\.jpg: the caption from nothing to Warning tape visible; the place from S-1 at 10 m to S-1 at 12(\.\d+)? m\.$/);
-    const bad = await refusal(editPhoto(db, plan.engineer, plan.project, photo.id, photoPatchSchema.parse({ position: { routeId: plan.routes.get('S-1'), chainageM: 900 } })));
+    const bad = await refusal(editPhoto(db, plan.engineer, plan.project, photo.id, photoPatchSchema.parse({ routeId: plan.routes.get('S-1'), chainageM: 900 })));
     expect(bad.details).toEqual([{ path: 'chainageM', message: 'At most 200.0 m on route S-1.' }]);
     expect(photoPatchSchema.safeParse({ caption: 'x'.repeat(501) }).error!.issues[0].message).toBe('Keep the caption under 500 characters.');
+    expect(photoPatchSchema.safeParse({ routeId: plan.routes.get('S-1') }).error!.issues[0].message).toBe('Give the chainage on the route, or a position.');
+    expect(photoPatchSchema.safeParse({ lat: 52.25 }).error!.issues[0].message).toBe('Give both longitude and latitude, or neither.');
   });
 
   it('removes a photo: row and audit entry together, then its files', async () => {
@@ -259,6 +267,18 @@ describe('editing, removing, roles and isolation', () => {
     expect((await refusal(removePhoto(db, plan.surveyor, plan.project, foreignPhoto.id))).code).toBe('not_found');
     expect(await byProjectRecord('photos', 'photoId')({ projectId: plan.project.id, photoId: foreignPhoto.id }, db)).toBeUndefined();
     expect((await listPhotos(db, plan.project.id)).some((p) => p.id === foreignPhoto.id)).toBe(false);
+  });
+
+  it('keeps every committed photo\'s files in the orphan sweep, and takes a file no row names', async () => {
+    const orphan = `photos/${plan.project.id}/00000000-0000-4000-8000-000000000000/0-killed.jpg`;
+    await originalsStore().put(orphan, await plainJpeg());
+    const filesBefore = await countFiles(path.join(STORAGE, 'photos'));
+    const empty = await mkdtemp(path.join(os.tmpdir(), 'tb-photos-sweep-'));
+    const report = await sweepOrphanFiles(db, { originals: originalsStore(), exports: new LocalStore(empty), uploadTmpRoot: empty, minAgeSeconds: 60, now: new Date(Date.now() + 3_600_000) });
+    expect(report.originals).toEqual([orphan]);
+    expect(await countFiles(path.join(STORAGE, 'photos'))).toBe(filesBefore - 1);
+    const rows = await db('photos').select('storage_key', 'thumbnail_key');
+    for (const r of rows) expect([await originalsStore().size(r.storage_key), await originalsStore().size(r.thumbnail_key)].every((n) => n !== undefined && n > 0)).toBe(true);
   });
 
   it('shows the photos on a section\'s stretch', async () => {

@@ -11,6 +11,7 @@ import { formatQuantity, shownSystem, type UnitSystem } from '@/lib/records/unit
 import { formatInZone } from '@/lib/records/zoned-time';
 import { Badge, Card, PageHeader } from '@/components/ui/primitives';
 import { DataTable, type Column, type Row } from '@/components/ui/data-table';
+import { PhotoEditForm } from '@/components/forms/photo-edit-form';
 import { PhotoUploadForm } from '@/components/forms/photo-upload-form';
 
 export const metadata: Metadata = { title: 'Photos' };
@@ -42,6 +43,7 @@ export default async function PhotosPage({ params, searchParams }: { params: Pro
   const canWrite = can(me.role, 'record.write') && me.organisationId === project.contractorOrgId;
   const base = `/projects/${project.id}`;
   const filtered = crossingId ? crossings.find((c) => c.id === crossingId) : undefined;
+  const routeOptions = routes.filter((r) => !r.removed).map((r) => ({ id: r.id, ref: r.ref, street: r.street, lengthM: r.lengthM }));
   const taken = (p: Photo) => (p.takenAt ? formatInZone(p.takenAt, project.timeZone).slice(0, 16) : '—');
 
   const rows: Row[] = photos.map((p) => ({
@@ -85,6 +87,12 @@ export default async function PhotosPage({ params, searchParams }: { params: Pro
                   <a className="underline" href={`${p.originalUrl}?download=1`}>
                     Download original
                   </a>
+                  {canWrite && (
+                    <details>
+                      <summary className="cursor-pointer py-2 underline">Change caption or place</summary>
+                      <PhotoEditForm projectId={project.id} photo={{ id: p.id, caption: p.caption, fileName: p.fileName }} routes={routeOptions} system={system} />
+                    </details>
+                  )}
                 </div>
               </li>
             ))}
