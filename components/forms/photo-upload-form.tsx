@@ -4,6 +4,7 @@ import { useRouter } from 'next/navigation';
 import { useId, useRef, useState } from 'react';
 import { Button, Field, Input, Notice, Select } from '@/components/ui/primitives';
 import { PHOTO_MAX_BYTES } from '@/lib/records/photo-schema';
+import { fromShown, unitOf, type UnitSystem } from '@/lib/records/units';
 
 type Place = 'exif' | 'position' | 'chainage';
 type Status = { kind: 'idle' } | { kind: 'sending'; sent: number; total: number } | { kind: 'saved'; text: string } | { kind: 'error'; text: string; field?: string };
@@ -38,7 +39,7 @@ function send(url: string, data: FormData, onProgress: (sent: number, total: num
  * "use my position" or a route and chainage; optionally showing a road crossing. The file itself cannot be
  * kept as a draft in the browser, so the form keeps it selected until the server has it.
  */
-export function PhotoUploadForm({ projectId, routes, crossings }: { projectId: string; routes: { id: string; label: string }[]; crossings: { id: string; label: string }[] }) {
+export function PhotoUploadForm({ projectId, routes, crossings, system = 'metric' }: { projectId: string; routes: { id: string; label: string }[]; crossings: { id: string; label: string }[]; system?: UnitSystem }) {
   const router = useRouter();
   const id = useId();
   const fileRef = useRef<HTMLInputElement>(null);
@@ -80,7 +81,9 @@ export function PhotoUploadForm({ projectId, routes, crossings }: { projectId: s
     }
     if (place === 'chainage') {
       data.set('routeId', routeId);
-      data.set('chainageM', chainage);
+      // typed in the shown unit, stored in metres
+      const n = Number(chainage.replace(',', '.'));
+      data.set('chainageM', chainage.trim() === '' || !Number.isFinite(n) ? chainage : String(fromShown(n, 'length', system)));
     }
     data.set('file', file, file.name);
     setStatus({ kind: 'sending', sent: 0, total: file.size });
@@ -155,7 +158,7 @@ export function PhotoUploadForm({ projectId, routes, crossings }: { projectId: s
                 ))}
               </Select>
             </Field>
-            <Field label="Chainage (m)" htmlFor={`${id}-chainage`} error={fieldError('chainageM')}>
+            <Field label={`Chainage (${unitOf('length', system)})`} htmlFor={`${id}-chainage`} error={fieldError('chainageM')}>
               <Input id={`${id}-chainage`} inputMode="decimal" value={chainage} onChange={(e) => setChainage(e.target.value)} className={big} />
             </Field>
           </>

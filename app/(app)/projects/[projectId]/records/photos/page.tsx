@@ -103,6 +103,7 @@ export default async function PhotosPage({ params, searchParams }: { params: Pro
           <Card title="Add a photo">
             <PhotoUploadForm
               projectId={project.id}
+              system={system}
               routes={routes.filter((r) => !r.removed).map((r) => ({ id: r.id, label: `${r.ref}${r.street ? ` · ${r.street}` : ''} (${formatQuantity(r.lengthM, 'length', system)})` }))}
               crossings={crossings.filter((c) => !c.routeRemoved).map((c) => ({ id: c.id, label: `${c.routeRef}${c.addressRef ? ` · ${c.addressRef}` : ''}` }))}
             />
