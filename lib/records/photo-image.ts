@@ -1,5 +1,7 @@
 import exifr from 'exifr';
 import sharp, { type Metadata } from 'sharp';
+import { DATE_RANGE } from './plausible-ranges';
+import { wallTimeToUtc } from './zoned-time';
 
 /**
  * What a photo's bytes say about it: its type from the magic bytes (never the file name), its size in
@@ -64,6 +66,21 @@ export async function readPhotoExif(bytes: Buffer): Promise<PhotoExif> {
 /** "2026:11:04 10:15:30" → "2026-11-04 10:15:30" (the form the project's clock reads). */
 export function exifWallTime(wall: string): string {
   return `${wall.slice(0, 10).replace(/:/g, '-')} ${wall.slice(11, 19)}`;
+}
+
+/**
+ * The instant a photo was taken: EXIF DateTimeOriginal, with its own OffsetTimeOriginal or else on the
+ * project's clock; a date before 1990 or ahead of tomorrow (a camera with a flat clock battery) is dropped.
+ * `takenAtOf({ takenWall: '2026:11:04 10:15:30', takenOffset: null, … }, 'Europe/Berlin')` → '2026-11-04T09:15:30.000Z'.
+ */
+export function takenAtOf(exif: PhotoExif, timeZone: string, now = new Date()): string | null {
+  if (!exif.takenWall) return null;
+  const wall = exifWallTime(exif.takenWall);
+  const iso = exif.takenOffset ? new Date(`${wall.replace(' ', 'T')}${exif.takenOffset}`).toISOString() : wallTimeToUtc(wall, timeZone);
+  if (!iso || Number.isNaN(Date.parse(iso))) return null;
+  // a camera whose clock was never set writes 1970; a date ahead is a wrong clock too
+  if (iso.slice(0, 10) < DATE_RANGE.min || Date.parse(iso) > now.getTime() + DATE_RANGE.maxDaysAhead * 86_400_000) return null;
+  return iso;
 }
 
 export interface DecodedPhoto {

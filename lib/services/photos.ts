@@ -11,10 +11,8 @@ import type { ReceivedForm } from '@/lib/api/multipart';
 import { auditActor, type Principal } from '@/lib/auth/principal';
 import { pointAtChainage } from '@/lib/matching/chainage';
 import type { PointAnchor, PointAnchorInput } from '@/lib/records/anchor';
-import { decodePhoto, exifWallTime, PhotoRefusal, readPhotoExif, sniffPhoto, type PhotoExif } from '@/lib/records/photo-image';
+import { decodePhoto, PhotoRefusal, readPhotoExif, sniffPhoto, takenAtOf, type PhotoExif } from '@/lib/records/photo-image';
 import { PHOTO_MAX_BYTES, photoFieldsSchema, type PhotoFields, type PhotoPatch } from '@/lib/records/photo-schema';
-import { DATE_RANGE } from '@/lib/records/plausible-ranges';
-import { wallTimeToUtc } from '@/lib/records/zoned-time';
 import { originalsStore } from '@/lib/storage/originals-store';
 import { removeOriginals, storeOriginals, type StoredOriginal } from './originals';
 import { resolvePointAnchor } from './record-anchors';
@@ -27,17 +25,6 @@ const audited = (p: Photo) => ({
   fileName: p.fileName, caption: p.caption, route: p.routeRef, chainageM: Number(p.chainageM.toFixed(2)), placedBy: p.placedBy,
   crossing: p.crossingRef, pitId: p.pitId, takenAt: p.takenAt, sizeBytes: p.sizeBytes,
 });
-
-/** The time a photo was taken: EXIF DateTimeOriginal, with its own offset or else on the project's clock; implausible dates are dropped. */
-export function takenAtOf(exif: PhotoExif, timeZone: string, now = new Date()): string | null {
-  if (!exif.takenWall) return null;
-  const wall = exifWallTime(exif.takenWall);
-  const iso = exif.takenOffset ? new Date(`${wall.replace(' ', 'T')}${exif.takenOffset}`).toISOString() : wallTimeToUtc(wall, timeZone);
-  if (!iso || Number.isNaN(Date.parse(iso))) return null;
-  // cameras with a flat clock battery write 1970 or 2000; a date ahead is a wrong clock too
-  if (iso.slice(0, 10) < DATE_RANGE.min || Date.parse(iso) > now.getTime() + DATE_RANGE.maxDaysAhead * 86_400_000) return null;
-  return iso;
-}
 
 async function crossingAnchor(db: Knex | Knex.Transaction, project: Project, crossingId: string): Promise<{ id: string; anchor: PointAnchor }> {
   const c = await getRoadCrossing(db, crossingId);
