@@ -154,6 +154,23 @@ const photoPlace = (a: Obj) => `${say(a.route)} at ${say(a.chainageM)} m`;
 const withPlace = (a: Obj): Obj => ({ ...a, place: a.route === undefined ? undefined : photoPlace(a) });
 // ---- end of road crossings and photos ----
 
+// ---- duct bundles, joints and catalogues (issue 14, ducts part) ----
+const yesNo = (v: unknown) => (v === true ? 'yes' : v === false ? 'no' : 'not said');
+const DUCT_FIELDS: FieldWords = {
+  routeRef: { name: 'the route' },
+  fromChainageM: { name: 'the start', value: metres },
+  toChainageM: { name: 'the end', value: metres },
+  ducts: { name: 'the ducts' },
+  colours: { name: 'the colours' },
+  tracerWire: { name: 'tracer wire', value: yesNo },
+  warningTape: { name: 'warning tape', value: yesNo },
+  protectiveFill: { name: 'protective fill', value: yesNo },
+  note: { name: 'the note' },
+};
+const stretchOf = (o: Obj) => `${say(o.routeRef)} from ${metres(o.fromChainageM)} to ${metres(o.toChainageM)}`;
+const JOINT_KIND = (v: unknown) => (v === 'connector' ? 'a connector' : 'a joint');
+const ductList = (v: unknown) => (Array.isArray(v) && v.length === 1 ? `duct ${v[0]}` : `ducts ${say(v)}`);
+
 /**
  * One audit entry as a sentence. `describeAudit({ objectType: 'project', action: 'update',
  * before: { lateralToleranceM: 0.5 }, after: { lateralToleranceM: 0.75 } })` is
@@ -224,6 +241,42 @@ export function describeAudit(e: AuditLike): string {
     }
     case 'photo delete':
       return `Removed the photo ${say(b.fileName)} (${photoPlace(b)}).`;
+    // duct bundles, joints and catalogues (issue 14, ducts part)
+    case 'duct_bundle create':
+      return `Recorded an installed duct bundle on ${stretchOf(a)}: ${say(a.ducts)} (${say(a.colours)}); tracer wire ${yesNo(a.tracerWire)}, warning tape ${yesNo(a.warningTape)}, protective fill ${yesNo(a.protectiveFill)}.${a.note ? ` Note: ${quoted(a.note)}` : ''}`;
+    case 'duct_bundle update': {
+      const c = changesIn(DUCT_FIELDS, b, a);
+      return c ? `Changed the duct bundle on ${stretchOf(b)}: ${c}.` : `Saved the duct bundle on ${stretchOf(a)} without changes.`;
+    }
+    case 'duct_bundle delete':
+      return `Removed the installed duct bundle on ${stretchOf(b)} (${say(b.ducts)}).`;
+    case 'duct_bundle refresh_planned':
+      return `Derived the planned duct bundles from the plan again: ${plural(Number(a.created ?? 0), 'new bundle')}, ${Number(a.removed ?? 0)} removed, ${Number(a.kept ?? 0)} unchanged.`;
+    case 'duct_joint create':
+      return `Recorded ${JOINT_KIND(a.kind)} on ${say(a.routeRef)} at ${metres(a.chainageM)} joining ${ductList(a.ductPositions)}.${a.note ? ` Note: ${quoted(a.note)}` : ''}`;
+    case 'duct_joint delete':
+      return `Removed ${JOINT_KIND(b.kind)} on ${say(b.routeRef)} at ${metres(b.chainageM)}.`;
+    case 'duct_size create':
+      return `Added the duct size ${say(a.size)} to the catalogue${a.common ? ' as a common size' : ''}.`;
+    case 'duct_size update': {
+      const what: string[] = [];
+      if (a.retired !== b.retired) what.push(a.retired ? 'retired it' : 'brought it back');
+      if (a.common !== b.common) what.push(a.common ? 'marked it common' : 'marked it not common');
+      return `Duct size ${say(a.size)}: ${what.length ? what.join(', ') : 'saved without changes'}.`;
+    }
+    case 'colour_sequence create':
+      return `Added the colour sequence ${say(a.name)}: ${say(a.colours)}, repeated with a ${say(a.repeatMarking)}.`;
+    case 'utility_kind create':
+      return `Added the utility kind ${say(a.label)} (${say(a.key)}) to the catalogue.`;
+    case 'backfill_material create':
+      return `Added the backfill material ${say(a.label)} to the catalogue.`;
+    case 'utility_kind update':
+    case 'backfill_material update': {
+      const what: string[] = [];
+      if (a.label !== b.label) what.push(`renamed it from ${say(b.label)}`);
+      if (a.retired !== b.retired) what.push(a.retired ? 'retired it' : 'brought it back');
+      return `${e.objectType === 'utility_kind' ? 'Utility kind' : 'Backfill material'} ${say(a.label)}: ${what.length ? what.join(', ') : 'saved without changes'}.`;
+    }
     default: {
       const c = changes(b, a);
       const what = `${capital(words(e.action))} ${words(e.objectType)}`;

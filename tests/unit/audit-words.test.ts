@@ -20,6 +20,29 @@ describe('the activity log in words', () => {
     expect(describeAudit({ objectType: 'user', action: 'update', before: { unitSystem: null }, after: { unitSystem: 'imperial' } })).toContain('as each project is set');
   });
 
+  // ---- duct bundles, joints and catalogues (ducts part) ----
+  it('tells duct bundles, joints and catalogue edits in sentences', () => {
+    const bundle = { routeRef: 'QN-101', fromChainageM: 0, toChainageM: 60, kind: 'installed', ducts: '2 × 7/4 mm', colours: 'blue, orange', tracerWire: true, warningTape: true, protectiveFill: false, note: '' };
+    expect(describeAudit({ objectType: 'duct_bundle', action: 'create', before: null, after: bundle })).toBe(
+      'Recorded an installed duct bundle on QN-101 from 0 m to 60 m: 2 × 7/4 mm (blue, orange); tracer wire yes, warning tape yes, protective fill no.',
+    );
+    expect(describeAudit({ objectType: 'duct_bundle', action: 'update', before: bundle, after: { ...bundle, toChainageM: 75, colours: 'orange, blue', protectiveFill: true } })).toBe(
+      'Changed the duct bundle on QN-101 from 0 m to 60 m: the end from 60 m to 75 m; the colours from blue, orange to orange, blue; protective fill from no to yes.',
+    );
+    expect(describeAudit({ objectType: 'duct_bundle', action: 'delete', before: bundle, after: null })).toBe('Removed the installed duct bundle on QN-101 from 0 m to 60 m (2 × 7/4 mm).');
+    expect(describeAudit({ objectType: 'duct_bundle', action: 'refresh_planned', before: null, after: { created: 1, removed: 0, kept: 6 } })).toBe('Derived the planned duct bundles from the plan again: 1 new bundle, 0 removed, 6 unchanged.');
+    expect(describeAudit({ objectType: 'duct_joint', action: 'create', before: null, after: { routeRef: 'QN-102', chainageM: 64.5, kind: 'connector', ductPositions: [3, 4], note: 'Coupler after a cut duct.' } })).toBe(
+      'Recorded a connector on QN-102 at 64.5 m joining ducts 3, 4. Note: Coupler after a cut duct.',
+    );
+    expect(describeAudit({ objectType: 'duct_joint', action: 'delete', before: { routeRef: 'QN-102', chainageM: 64.5, kind: 'joint', ductPositions: [1] }, after: null })).toBe('Removed a joint on QN-102 at 64.5 m.');
+    expect(describeAudit({ objectType: 'duct_size', action: 'create', before: null, after: { size: '8/5.5 mm', common: false, retired: false } })).toBe('Added the duct size 8/5.5 mm to the catalogue.');
+    expect(describeAudit({ objectType: 'duct_size', action: 'update', before: { size: '8/5.5 mm', common: false, retired: false }, after: { size: '8/5.5 mm', common: true, retired: true } })).toBe('Duct size 8/5.5 mm: retired it, marked it common.');
+    expect(describeAudit({ objectType: 'colour_sequence', action: 'create', before: null, after: { name: 'Site code', standard: '', repeatMarking: 'tracer', colours: ['red', 'green'] } })).toBe('Added the colour sequence Site code: red, green, repeated with a tracer.');
+    expect(describeAudit({ objectType: 'utility_kind', action: 'update', before: { label: 'Lighting', retired: false }, after: { label: 'Street lighting', retired: false } })).toBe('Utility kind Street lighting: renamed it from Lighting.');
+    expect(describeAudit({ objectType: 'backfill_material', action: 'update', before: { label: 'Glass sand', retired: false }, after: { label: 'Glass sand', retired: true } })).toBe('Backfill material Glass sand: retired it.');
+    expect(describeAudit({ objectType: 'backfill_material', action: 'create', before: null, after: { label: 'Glass sand' } })).toBe('Added the backfill material Glass sand to the catalogue.');
+  });
+
   it('tells a change of owner as a proposal and its answer', () => {
     const after = { side: 'owner', from: 'Quillhaven Open Fibre', to: 'Fernbrook Fibre Trust', reason: 'The network was sold.', waitingFor: 'Quillhaven Open Fibre' };
     expect(describeAudit({ objectType: 'org_change', action: 'propose', before: null, after })).toBe(
