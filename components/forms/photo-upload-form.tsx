@@ -7,7 +7,7 @@ import { PHOTO_MAX_BYTES } from '@/lib/records/photo-schema';
 import { fromShown, unitOf, type UnitSystem } from '@/lib/records/units';
 
 type Place = 'exif' | 'position' | 'chainage';
-type Status = { kind: 'idle' } | { kind: 'sending'; sent: number; total: number } | { kind: 'saved'; text: string } | { kind: 'error'; text: string; field?: string };
+type Status = { kind: 'idle' } | { kind: 'sending'; sent: number; total: number } | { kind: 'saved'; text: string } | { kind: 'error'; text: string; field?: string; fieldText?: string };
 
 interface Answer {
   status: number;
@@ -99,10 +99,10 @@ export function PhotoUploadForm({ projectId, routes, crossings, system = 'metric
     if (res.status === 0) return setStatus({ kind: 'error', text: 'The server could not be reached: the photo is still selected, send it again when the connection is back.' });
     const err = res.body?.error;
     if (err?.code === 'position_required') setPlace('position');
-    setStatus({ kind: 'error', text: err?.message ?? `The photo was refused (${res.status}).`, field: err?.details?.[0]?.path });
+    setStatus({ kind: 'error', text: err?.message ?? `The photo was refused (${res.status}).`, field: err?.details?.[0]?.path, fieldText: err?.details?.[0]?.message });
   }
 
-  const fieldError = (name: string) => (status.kind === 'error' && status.field === name ? status.text : undefined);
+  const fieldError = (name: string) => (status.kind === 'error' && status.field === name ? (status.fieldText ?? status.text) : undefined);
   const big = 'min-h-12 text-base';
   return (
     <form aria-label="Add a photo" className="flex max-w-xl flex-col gap-4" noValidate onSubmit={submit}>
