@@ -36,7 +36,7 @@ async function makeProject(name: string) {
 async function refused(work: () => Promise<unknown>, code: string, message: RegExp) {
   const tables = ['duct_sizes', 'colour_sequences', 'colour_sequence_entries', 'utility_kinds', 'backfill_materials', 'audit_log'];
   const before = await Promise.all(tables.map((t) => count(db, t)));
-  const err = await work().catch((e) => e);
+  const err = (await work().catch((e: unknown) => e)) as AppError;
   expect(err).toBeInstanceOf(AppError);
   expect(err.code).toBe(code);
   expect(err.message).toMatch(message);

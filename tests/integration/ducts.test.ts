@@ -84,7 +84,7 @@ const bundleInput = (route: string, from: number, to: number, n = 12, colours?: 
 /** A refusal: its code and message, and not one row or audit entry more. */
 async function refused(work: () => Promise<unknown>, code: string, message: RegExp) {
   const before = [await count(db, 'duct_bundles'), await count(db, 'duct_bundle_ducts'), await count(db, 'duct_joints'), await count(db, 'audit_log')];
-  const err = await work().catch((e) => e);
+  const err = (await work().catch((e: unknown) => e)) as AppError;
   expect(err).toBeInstanceOf(AppError);
   expect(err.code).toBe(code);
   expect(err.message).toMatch(message);
