@@ -2,6 +2,8 @@
 
 import { useRouter } from 'next/navigation';
 import { useId, useRef, useState } from 'react';
+import type { FeatureCollection } from 'geojson';
+import { PlacePicker } from '@/components/map/place-picker';
 import { Button, Field, Input, Notice, Select } from '@/components/ui/primitives';
 import { PHOTO_MAX_BYTES } from '@/lib/records/photo-schema';
 import { fromShown, unitOf, type UnitSystem } from '@/lib/records/units';
@@ -39,7 +41,7 @@ function send(url: string, data: FormData, onProgress: (sent: number, total: num
  * "use my position" or a route and chainage; optionally showing a road crossing. The file itself cannot be
  * kept as a draft in the browser, so the form keeps it selected until the server has it.
  */
-export function PhotoUploadForm({ projectId, routes, crossings, system = 'metric' }: { projectId: string; routes: { id: string; label: string }[]; crossings: { id: string; label: string }[]; system?: UnitSystem }) {
+export function PhotoUploadForm({ projectId, routes, crossings, system = 'metric', map }: { projectId: string; routes: { id: string; label: string }[]; crossings: { id: string; label: string }[]; system?: UnitSystem; map?: { routes: FeatureCollection; colour: string } }) {
   const router = useRouter();
   const id = useId();
   const fileRef = useRef<HTMLInputElement>(null);
@@ -125,7 +127,7 @@ export function PhotoUploadForm({ projectId, routes, crossings, system = 'metric
       <fieldset className="flex flex-col gap-3">
         <legend className="mb-2 text-sm font-medium">Where</legend>
         <div className="flex flex-col gap-2 sm:flex-row" role="group" aria-label="Place by">
-          {([['exif', "The photo's own GPS"], ['position', 'My position'], ['chainage', 'Route and chainage']] as [Place, string][]).map(([v, label]) => (
+          {([['exif', "The photo's own GPS"], ['position', 'My position or the map'], ['chainage', 'Route and chainage']] as [Place, string][]).map(([v, label]) => (
             <Button key={v} type="button" variant={place === v ? 'primary' : 'secondary'} className="min-h-12 flex-1" onClick={() => setPlace(v)} aria-pressed={place === v}>
               {label}
             </Button>
@@ -138,6 +140,20 @@ export function PhotoUploadForm({ projectId, routes, crossings, system = 'metric
               Use my position
             </Button>
             {note && <p className="text-sm text-ink-soft" aria-live="polite">{note}</p>}
+            {map && (
+              <PlacePicker
+                label="Map to place the photo"
+                routes={map.routes}
+                routeColour={map.colour}
+                picked={Number.isFinite(parseFloat(lon)) && Number.isFinite(parseFloat(lat)) ? [parseFloat(lon), parseFloat(lat)] : null}
+                onPick={(x, y) => {
+                  setLon(String(x));
+                  setLat(String(y));
+                  setNote('Placed where you tapped.');
+                }}
+                height={260}
+              />
+            )}
             <Field label="Longitude (°)" htmlFor={`${id}-lon`} error={fieldError('lon')}>
               <Input id={`${id}-lon`} inputMode="decimal" value={lon} onChange={(e) => setLon(e.target.value)} className={big} />
             </Field>

@@ -2,15 +2,18 @@ import type { Metadata } from 'next';
 import Link from 'next/link';
 import { getDb } from '@/db/client';
 import { listPhotos, type Photo } from '@/db/photos';
+import { listPlannedRoutes } from '@/db/planned';
 import { listAnchorRoutes } from '@/db/record-anchors';
 import { listRoadCrossings } from '@/db/road-crossings';
 import { isUuid } from '@/lib/api/with-route';
 import { requireProjectPage } from '@/lib/auth/page-guards';
 import { can } from '@/lib/auth/roles';
 import { formatQuantity, shownSystem, type UnitSystem } from '@/lib/records/units';
+import { PLANNED_COLOUR } from '@/lib/records/section-status';
 import { formatInZone } from '@/lib/records/zoned-time';
 import { Badge, Card, PageHeader } from '@/components/ui/primitives';
 import { DataTable, type Column, type Row } from '@/components/ui/data-table';
+import { PlacePicker } from '@/components/map/place-picker';
 import { PhotoEditForm } from '@/components/forms/photo-edit-form';
 import { PhotoUploadForm } from '@/components/forms/photo-upload-form';
 
@@ -38,12 +41,20 @@ export default async function PhotosPage({ params, searchParams }: { params: Pro
   const { me, project } = await requireProjectPage(projectId, 'record.read');
   const db = getDb();
   const crossingId = isUuid(crossing) ? crossing : undefined;
-  const [photos, routes, crossings] = await Promise.all([listPhotos(db, project.id, { crossingId }), listAnchorRoutes(db, project.id), listRoadCrossings(db, project.id)]);
+  const [photos, routes, crossings, lines] = await Promise.all([listPhotos(db, project.id, { crossingId }), listAnchorRoutes(db, project.id), listRoadCrossings(db, project.id), listPlannedRoutes(db, project.id)]);
   const system = shownSystem(me.unitSystem, project.unitSystem);
   const canWrite = can(me.role, 'record.write') && me.organisationId === project.contractorOrgId;
   const base = `/projects/${project.id}`;
   const filtered = crossingId ? crossings.find((c) => c.id === crossingId) : undefined;
   const routeOptions = routes.filter((r) => !r.removed).map((r) => ({ id: r.id, ref: r.ref, street: r.street, lengthM: r.lengthM }));
+  const routeLines = {
+    type: 'FeatureCollection' as const,
+    features: lines.map((r) => ({ type: 'Feature' as const, properties: { ref: r.ref }, geometry: { type: 'LineString' as const, coordinates: r.coords } })),
+  };
+  const photoPoints = {
+    type: 'FeatureCollection' as const,
+    features: photos.map((p) => ({ type: 'Feature' as const, properties: { caption: p.caption }, geometry: { type: 'Point' as const, coordinates: [p.lon, p.lat] } })),
+  };
   const taken = (p: Photo) => (p.takenAt ? formatInZone(p.takenAt, project.timeZone).slice(0, 16) : '—');
 
   const rows: Row[] = photos.map((p) => ({
@@ -70,6 +81,7 @@ export default async function PhotosPage({ params, searchParams }: { params: Pro
         }
       />
       <div className="flex flex-col gap-6">
+        {photos.length > 0 && lines.length > 0 && <PlacePicker label="Map of the photos and the planned routes" routes={routeLines} photos={photoPoints} routeColour={PLANNED_COLOUR} />}
         {photos.length > 0 && (
           <ul className="grid grid-cols-2 gap-3 sm:grid-cols-3 lg:grid-cols-4" aria-label="Photo thumbnails">
             {photos.map((p) => (
@@ -104,6 +116,7 @@ export default async function PhotosPage({ params, searchParams }: { params: Pro
             <PhotoUploadForm
               projectId={project.id}
               system={system}
+              map={lines.length > 0 ? { routes: routeLines, colour: PLANNED_COLOUR } : undefined}
               routes={routes.filter((r) => !r.removed).map((r) => ({ id: r.id, label: `${r.ref}${r.street ? ` · ${r.street}` : ''} (${formatQuantity(r.lengthM, 'length', system)})` }))}
               crossings={crossings.filter((c) => !c.routeRemoved).map((c) => ({ id: c.id, label: `${c.routeRef}${c.addressRef ? ` · ${c.addressRef}` : ''}` }))}
             />
