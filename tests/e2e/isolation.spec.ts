@@ -453,6 +453,144 @@ const MATRIX: Record<string, Row | PublicRow> = {
     success: 200,
   },
   // ---- end of road crossings and photos ----
+  // ---- trench records: duct bundles, joints and catalogues (ducts helper) ----
+  'GET /api/projects/[projectId]/duct-bundles': {
+    url: () => `/api/projects/${dp.projectId}/duct-bundles`,
+    foreign: () => `/api/projects/${dp.foreignProjectId}/duct-bundles`,
+    denied: ALL_ROLES,
+    allowed: 'owner',
+    success: 200,
+  },
+  'POST /api/projects/[projectId]/duct-bundles': {
+    url: () => `/api/projects/${dp.projectId}/duct-bundles`,
+    foreign: () => `/api/projects/${dp.foreignProjectId}/duct-bundles`,
+    denied: 'owner',
+    allowed: 'surveyor',
+    body: () => ductBundleBody(dp.routeId, 100, 150),
+    success: 201,
+  },
+  'GET /api/projects/[projectId]/duct-bundles/[bundleId]': {
+    url: () => `/api/projects/${dp.projectId}/duct-bundles/${dp.bundleId}`,
+    foreign: () => `/api/projects/${dp.foreignProjectId}/duct-bundles/${dp.foreignBundleId}`,
+    denied: ALL_ROLES,
+    allowed: 'maintenance',
+    success: 200,
+  },
+  'PATCH /api/projects/[projectId]/duct-bundles/[bundleId]': {
+    url: () => `/api/projects/${dp.projectId}/duct-bundles/${dp.bundleId}`,
+    foreign: () => `/api/projects/${dp.foreignProjectId}/duct-bundles/${dp.foreignBundleId}`,
+    denied: 'owner',
+    allowed: 'engineer',
+    body: () => ductBundleBody(dp.routeId, 0, 55),
+    success: 200,
+  },
+  'DELETE /api/projects/[projectId]/duct-bundles/[bundleId]': {
+    url: () => `/api/projects/${dp.projectId}/duct-bundles/${dp.spareBundleId}`,
+    foreign: () => `/api/projects/${dp.foreignProjectId}/duct-bundles/${dp.foreignBundleId}`,
+    denied: 'maintenance',
+    allowed: 'surveyor',
+    success: 200,
+  },
+  'POST /api/projects/[projectId]/duct-bundles/planned': {
+    url: () => `/api/projects/${dp.projectId}/duct-bundles/planned`,
+    foreign: () => `/api/projects/${dp.foreignProjectId}/duct-bundles/planned`,
+    denied: 'owner',
+    allowed: 'engineer',
+    success: 200,
+  },
+  'GET /api/projects/[projectId]/duct-joints': {
+    url: () => `/api/projects/${dp.projectId}/duct-joints`,
+    foreign: () => `/api/projects/${dp.foreignProjectId}/duct-joints`,
+    denied: ALL_ROLES,
+    allowed: 'maintenance',
+    success: 200,
+  },
+  'POST /api/projects/[projectId]/duct-joints': {
+    url: () => `/api/projects/${dp.projectId}/duct-joints`,
+    foreign: () => `/api/projects/${dp.foreignProjectId}/duct-joints`,
+    denied: 'owner',
+    allowed: 'surveyor',
+    body: () => ({ routeId: dp.routeId, chainageM: 55, kind: 'connector', ductPositions: [1, 2] }),
+    success: 201,
+  },
+  'DELETE /api/projects/[projectId]/duct-joints/[jointId]': {
+    url: () => `/api/projects/${dp.projectId}/duct-joints/${dp.spareJointId}`,
+    foreign: () => `/api/projects/${dp.foreignProjectId}/duct-joints/${dp.foreignJointId}`,
+    denied: 'owner',
+    allowed: 'engineer',
+    success: 200,
+  },
+  'GET /api/projects/[projectId]/duct-continuity': {
+    url: () => `/api/projects/${dp.projectId}/duct-continuity`,
+    foreign: () => `/api/projects/${dp.foreignProjectId}/duct-continuity`,
+    denied: ALL_ROLES,
+    allowed: 'owner',
+    success: 200,
+  },
+  'GET /api/projects/[projectId]/catalogues': {
+    url: () => `/api/projects/${dp.projectId}/catalogues`,
+    foreign: () => `/api/projects/${dp.foreignProjectId}/catalogues`,
+    denied: ALL_ROLES,
+    allowed: 'maintenance',
+    success: 200,
+  },
+  'POST /api/projects/[projectId]/catalogues/duct-sizes': {
+    url: () => `/api/projects/${dp.projectId}/catalogues/duct-sizes`,
+    foreign: () => `/api/projects/${dp.foreignProjectId}/catalogues/duct-sizes`,
+    denied: 'surveyor',
+    allowed: 'engineer',
+    body: () => ({ outerMm: 9, innerMm: 6.5 }),
+    success: 201,
+  },
+  'PATCH /api/projects/[projectId]/catalogues/duct-sizes/[sizeId]': {
+    url: () => `/api/projects/${dp.projectId}/catalogues/duct-sizes/${dp.sizeId}`,
+    foreign: () => `/api/projects/${dp.foreignProjectId}/catalogues/duct-sizes/${dp.foreignSizeId}`,
+    denied: 'surveyor',
+    allowed: 'contractorAdmin',
+    body: () => ({ common: true }),
+    success: 200,
+  },
+  'POST /api/projects/[projectId]/catalogues/colour-sequences': {
+    url: () => `/api/projects/${dp.projectId}/catalogues/colour-sequences`,
+    foreign: () => `/api/projects/${dp.foreignProjectId}/catalogues/colour-sequences`,
+    denied: 'surveyor',
+    allowed: 'engineer',
+    body: () => ({ name: 'Matrix sequence', repeatMarking: 'tracer', colours: [{ name: 'red', hex: '#d22b2b' }, { name: 'green', hex: '#1e8c3a' }] }),
+    success: 201,
+  },
+  'POST /api/projects/[projectId]/catalogues/utility-kinds': {
+    url: () => `/api/projects/${dp.projectId}/catalogues/utility-kinds`,
+    foreign: () => `/api/projects/${dp.foreignProjectId}/catalogues/utility-kinds`,
+    denied: 'surveyor',
+    allowed: 'contractorAdmin',
+    body: () => ({ key: 'matrix_kind', label: 'Matrix kind' }),
+    success: 201,
+  },
+  'PATCH /api/projects/[projectId]/catalogues/utility-kinds/[kindId]': {
+    url: () => `/api/projects/${dp.projectId}/catalogues/utility-kinds/${dp.kindId}`,
+    foreign: () => `/api/projects/${dp.foreignProjectId}/catalogues/utility-kinds/${dp.foreignKindId}`,
+    denied: 'owner',
+    allowed: 'engineer',
+    body: () => ({ label: 'Other (matrix)' }),
+    success: 200,
+  },
+  'POST /api/projects/[projectId]/catalogues/backfill-materials': {
+    url: () => `/api/projects/${dp.projectId}/catalogues/backfill-materials`,
+    foreign: () => `/api/projects/${dp.foreignProjectId}/catalogues/backfill-materials`,
+    denied: 'maintenance',
+    allowed: 'engineer',
+    body: () => ({ label: 'Matrix sand' }),
+    success: 201,
+  },
+  'PATCH /api/projects/[projectId]/catalogues/backfill-materials/[materialId]': {
+    url: () => `/api/projects/${dp.projectId}/catalogues/backfill-materials/${dp.materialId}`,
+    foreign: () => `/api/projects/${dp.foreignProjectId}/catalogues/backfill-materials/${dp.foreignMaterialId}`,
+    denied: 'surveyor',
+    allowed: 'engineer',
+    body: () => ({ retired: true }),
+    success: 200,
+  },
+  // ---- end of duct bundles, joints and catalogues ----
   'GET /api/crs': { url: () => '/api/crs?q=25832', foreign: NO_OBJECT, denied: ALL_ROLES, allowed: 'surveyor', success: 200 },
   'GET /api/audit': { url: () => '/api/audit', foreign: NO_OBJECT, denied: 'maintenance', allowed: 'admin', success: 200 },
 };
@@ -512,6 +650,40 @@ let rp: RecordsCtx;
 function photoForm(bytes: Buffer, [lon, lat]: [number, number]) {
   return { multipart: { file: { name: 'matrix.png', mimeType: 'image/png', buffer: bytes }, lon: String(lon), lat: String(lat), caption: 'isolation matrix' } };
 }
+// ---- trench records: duct bundles, joints and catalogues (ducts helper) ----
+interface DuctsCtx {
+  projectId: string;
+  foreignProjectId: string;
+  /** the street route of the project, 200 m */
+  routeId: string;
+  bundleId: string;
+  spareBundleId: string;
+  foreignBundleId: string;
+  spareJointId: string;
+  foreignJointId: string;
+  sizeId: string;
+  foreignSizeId: string;
+  kindId: string;
+  foreignKindId: string;
+  materialId: string;
+  foreignMaterialId: string;
+}
+let dp: DuctsCtx;
+/** An installed bundle of two custom 7/4 mm ducts, as the form sends it. */
+const ductBundleBody = (routeId: string, from: number, to: number) => ({
+  routeId,
+  fromChainageM: from,
+  toChainageM: to,
+  ducts: [
+    { outerMm: 7, innerMm: 4, colourPosition: 1, purpose: 'feeder' },
+    { outerMm: 7, innerMm: 4, colourPosition: 2, purpose: 'spare' },
+  ],
+  tracerWire: true,
+  warningTape: true,
+  protectiveFill: false,
+});
+// ---- end of duct bundles, joints and catalogues ----
+
 let ctx: Ctx;
 
 test.beforeAll(async ({ request }) => {
@@ -652,6 +824,60 @@ test.beforeAll(async ({ request }) => {
       sparePhotoId: await photo(mine, tokens.surveyor, at(80, -1)),
       foreignPhotoId: await photo(theirs, larkspur, at(60, 1)),
       newPhoto: await png(),
+    };
+  }
+  // ---- trench records: duct bundles, joints and catalogues (ducts helper) ----
+  // a project between the demo owner and contractor with one 200 m street, and one of Mossgate's with
+  // Larkspur (its contractor) recording there; new each run
+  {
+    const stamp = Date.now();
+    const at = (e: number): [number, number] => [9.25 + e / 68_300, 52.21];
+    const design = (ref: string) => ({ multipart: { file: { name: 'ducts.geojson', mimeType: 'application/geo+json', buffer: Buffer.from(JSON.stringify({ type: 'Feature', properties: { ref, ducts: '2x7/4' }, geometry: { type: 'LineString', coordinates: [at(0), at(200)] } })) }, mapping: JSON.stringify({ ref: 'ref', ducts: 'ducts' }) } });
+    const larkspur = addUserWithToken({ email: 'engineer@larkspur-ground.example', name: 'Larkspur Engineer', role: 'engineer', org: 'Larkspur Ground Works', orgKind: 'contractor' });
+    const project = async (token: string, body: unknown) => {
+      const r = await json<{ project: { id: string } }>(request, 'POST', '/api/projects', token, body);
+      expect(r.status).toBe(201);
+      return r.body!.project.id;
+    };
+    const mine = await project(tokens.admin, { name: `Matrix ducts ${stamp}`, partnerOrganisationId: tarnwickId });
+    const theirs = await project(foreignToken, { name: `Mossgate ducts ${stamp}`, partnerOrganisation: 'Larkspur Ground Works' });
+    expect((await json(request, 'POST', `/api/projects/${mine}/planned`, tokens.engineer, design(`DB${stamp}`))).status).toBe(201);
+    expect((await json(request, 'POST', `/api/projects/${theirs}/planned`, foreignToken, design(`DF${stamp}`))).status).toBe(201);
+    const catalogues = async (pid: string, token: string) =>
+      (await json<{ ductSizes: { id: string }[]; utilityKinds: { id: string; key: string }[]; backfillMaterials: { id: string }[] }>(request, 'GET', `/api/projects/${pid}/catalogues`, token)).body!;
+    const bundle = async (pid: string, token: string, routeId: string, from: number, to: number) => {
+      const r = await json<{ bundle: { id: string } }>(request, 'POST', `/api/projects/${pid}/duct-bundles`, token, ductBundleBody(routeId, from, to));
+      expect(r.status).toBe(201);
+      return r.body!.bundle.id;
+    };
+    const joint = async (pid: string, token: string, routeId: string) => {
+      const r = await json<{ joint: { id: string } }>(request, 'POST', `/api/projects/${pid}/duct-joints`, token, { routeId, chainageM: 20, kind: 'joint', ductPositions: [1] });
+      expect(r.status).toBe(201);
+      return r.body!.joint.id;
+    };
+    // the route ids come with the derived planned bundles
+    const plannedRoute = async (pid: string, token: string) => {
+      expect((await json(request, 'POST', `/api/projects/${pid}/duct-bundles/planned`, token)).status).toBe(200);
+      return (await json<{ bundles: { routeId: string }[] }>(request, 'GET', `/api/projects/${pid}/duct-bundles?kind=planned`, token)).body!.bundles[0].routeId;
+    };
+    const routeId = await plannedRoute(mine, tokens.engineer);
+    const foreignRouteId = await plannedRoute(theirs, larkspur);
+    const [cm, cf] = [await catalogues(mine, tokens.engineer), await catalogues(theirs, larkspur)];
+    dp = {
+      projectId: mine,
+      foreignProjectId: theirs,
+      routeId,
+      bundleId: await bundle(mine, tokens.surveyor, routeId, 0, 50),
+      spareBundleId: await bundle(mine, tokens.surveyor, routeId, 160, 200),
+      foreignBundleId: await bundle(theirs, larkspur, foreignRouteId, 0, 50),
+      spareJointId: await joint(mine, tokens.surveyor, routeId),
+      foreignJointId: await joint(theirs, larkspur, foreignRouteId),
+      sizeId: cm.ductSizes[0].id,
+      foreignSizeId: cf.ductSizes[0].id,
+      kindId: cm.utilityKinds.find((k) => k.key === 'other')!.id,
+      foreignKindId: cf.utilityKinds[0].id,
+      materialId: cm.backfillMaterials[0].id,
+      foreignMaterialId: cf.backfillMaterials[0].id,
     };
   }
   ctx = {
