@@ -2,13 +2,16 @@ import type { Metadata } from 'next';
 import Link from 'next/link';
 import { getDb } from '@/db/client';
 import { listDuctSizes } from '@/db/catalogues';
+import { listPlannedRoutes } from '@/db/planned';
 import { listCrossingRoutes } from '@/db/road-crossings';
 import { requireProjectPage } from '@/lib/auth/page-guards';
 import { can } from '@/lib/auth/roles';
+import { PLANNED_COLOUR, STATUS_STYLE } from '@/lib/records/section-status';
 import { formatQuantity, shownSystem } from '@/lib/records/units';
 import { Badge, Card, PageHeader } from '@/components/ui/primitives';
 import { DataTable, type Column, type Row } from '@/components/ui/data-table';
 import { RoadCrossingForm } from '@/components/forms/road-crossing-form';
+import { GeoMap, type MapLayer } from '@/components/map/geo-map';
 
 export const metadata: Metadata = { title: 'Road crossings' };
 
@@ -28,11 +31,24 @@ export default async function CrossingsPage({ params }: { params: Promise<{ proj
   const { projectId } = await params;
   const { me, project } = await requireProjectPage(projectId, 'record.read');
   const db = getDb();
-  const [entries, sizes] = await Promise.all([listCrossingRoutes(db, project.id), listDuctSizes(db, project.id)]);
+  const [entries, sizes, lines] = await Promise.all([listCrossingRoutes(db, project.id), listDuctSizes(db, project.id), listPlannedRoutes(db, project.id, true)]);
   const system = shownSystem(me.unitSystem, project.unitSystem);
   const canWrite = can(me.role, 'record.write') && me.organisationId === project.contractorOrgId;
   const base = `/projects/${project.id}`;
   const built = entries.filter((e) => e.crossing?.built).length;
+
+  // the streets faint, built crossings in the built colour, the rest dashed grey (never colour alone)
+  const builtIds = new Set(entries.filter((e) => e.crossing?.built).map((e) => e.routeId));
+  const crossingIds = new Set(entries.map((e) => e.routeId));
+  const layer = (id: string, colour: string, keep: (r: (typeof lines)[number]) => boolean, extra: Partial<MapLayer> = {}): MapLayer => ({
+    id, colour, ...extra,
+    data: { type: 'FeatureCollection', features: lines.filter(keep).map((r) => ({ type: 'Feature', properties: { ref: r.ref }, geometry: { type: 'LineString', coordinates: r.coords } })) },
+  });
+  const layers: MapLayer[] = [
+    layer('streets', PLANNED_COLOUR, (r) => r.kind === 'street' && r.removedInVersion === null, { width: 2 }),
+    layer('not-built', STATUS_STYLE.not_built.colour, (r) => crossingIds.has(r.id) && !builtIds.has(r.id), { dashed: true, width: 4 }),
+    layer('built', STATUS_STYLE.as_planned.colour, (r) => builtIds.has(r.id), { width: 5 }),
+  ];
 
   const rows: Row[] = entries.map((e) => {
     const c = e.crossing;
@@ -63,6 +79,14 @@ export default async function CrossingsPage({ params }: { params: Promise<{ proj
         subtitle={<>The short cuts across the street to the houses, sawn before the lengthways cut. {built} of {entries.length} built. <Link href={`${base}/records`} className="underline">All records</Link></>}
       />
       <div className="flex flex-col gap-6">
+        {entries.length > 0 && (
+          <div>
+            <GeoMap label="Map of the road crossings: built and not built" layers={layers} height={320} />
+            <p className="text-xs text-ink-soft">
+              <span style={{ color: STATUS_STYLE.as_planned.colour }}>━</span> built crossing · <span style={{ color: STATUS_STYLE.not_built.colour }}>┅</span> not built yet · <span style={{ color: PLANNED_COLOUR }}>━</span> street routes
+            </p>
+          </div>
+        )}
         <DataTable columns={COLUMNS} rows={rows} label="Road crossings" empty="The plan has no road crossings: a design line whose type says crossing becomes one." />
         {canWrite && entries.some((e) => !e.routeRemoved) ? (
           <Card title="Record a crossing">
