@@ -40,8 +40,12 @@ async function pitAnchor(db: Knex | Knex.Transaction, project: Project, pitId: s
   return { id: pit.id, anchor: { routeId: pit.route_id, chainageM: pit.chainage_m, offsetM: pit.offset_m, position: [pit.lon, pit.lat], source: 'position' } };
 }
 
-/** Re-words a refused snap so the person knows which position was refused. */
+/** Re-words a refused snap so the person knows which position was refused; a typed chainage on a removed route is refused. */
 async function snap(db: Knex | Knex.Transaction, project: Project, input: PointAnchorInput, what: string): Promise<PointAnchor> {
+  if ('chainageM' in input) {
+    const route = await getAnchorRoute(db, project.id, input.routeId);
+    if (route?.removed) throw new AppError('invalid', `Route ${route.ref} was removed by a plan revision: its photos stay, but no new ones are placed on it.`, [{ path: 'routeId', message: 'This route was removed from the plan.' }]);
+  }
   try {
     return await resolvePointAnchor(db, project.id, input);
   } catch (err) {
@@ -150,7 +154,7 @@ export async function editPhoto(db: Knex, actor: Principal, project: Project, id
       anchor = await resolvePointAnchor(trx, project.id, { lon: patch.lon, lat: patch.lat, routeId: patch.routeId });
       placedBy = 'hand';
     } else if (patch.routeId && patch.chainageM !== undefined) {
-      anchor = await resolvePointAnchor(trx, project.id, { routeId: patch.routeId, chainageM: patch.chainageM });
+      anchor = await snap(trx, project, { routeId: patch.routeId, chainageM: patch.chainageM }, '');
       placedBy = 'chainage';
     }
     const crossingId = patch.crossingId === undefined ? before.crossingId : patch.crossingId === null ? null : (await crossingAnchor(trx, project, patch.crossingId)).id;

@@ -16,6 +16,7 @@ import { byProjectRecord } from '@/lib/api/scopes';
 import { readPhotoExif, sniffPhoto } from '@/lib/records/photo-image';
 import { PHOTO_MAX_BYTES, photoPatchSchema } from '@/lib/records/photo-schema';
 import { roadCrossingSchema } from '@/lib/records/road-crossing-schema';
+import { importPlan } from '@/lib/services/planned';
 import { editPhoto, receivePhoto, removePhoto } from '@/lib/services/photos';
 import { createRoadCrossing } from '@/lib/services/road-crossings';
 import { createToken } from '@/lib/services/tokens';
@@ -325,5 +326,17 @@ describe('the photo routes', () => {
     expect(patched.status).toBe(200);
     expect((await deleteRoute(req('DELETE', `${base}/${photo.id}`, ownerToken), params({ projectId: pid, photoId: photo.id }))).status).toBe(403);
     expect((await deleteRoute(req('DELETE', `${base}/${photo.id}`, surveyorToken), params({ projectId: pid, photoId: photo.id }))).status).toBe(200);
+  });
+});
+
+describe('a plan revision', () => {
+  it('keeps the photos of a removed route, flagged, and places no new one on it', async () => {
+    const { photo } = await upload(plan.surveyor, plan, 'x3.jpg', await plainJpeg(), { routeId: plan.routes.get('X-3')!, chainageM: '4' });
+    const f = (ref: string, type: string, pts: [number, number][]) => ({ type: 'Feature', properties: { route_id: ref, street: 'Test Street', bundle: '1x14mm', type }, geometry: { type: 'LineString', coordinates: pts.map(([e, n]) => plan.at(e, n)) } });
+    const form = await formOf([{ name: 'design-rev2.geojson', bytes: JSON.stringify({ type: 'FeatureCollection', features: [f('S-1', 'street', [[0, 0], [200, 0]]), f('X-1', 'road crossing', [[40, 0], [40, -9]]), f('X-2', 'road crossing', [[90, 0], [90, -9]])] }) }]);
+    await importPlan(db, plan.engineer, plan.project, form).finally(() => form.cleanup());
+    expect((await listPhotos(db, plan.project.id)).find((p) => p.id === photo.id)).toMatchObject({ routeRef: 'X-3', routeRemoved: true });
+    const refused = await refusal(upload(plan.surveyor, plan, 'x3-again.jpg', await plainJpeg(), { routeId: plan.routes.get('X-3')!, chainageM: '5' }));
+    expect(refused.message).toBe('Route X-3 was removed by a plan revision: its photos stay, but no new ones are placed on it.');
   });
 });
