@@ -171,6 +171,29 @@ const stretchOf = (o: Obj) => `${say(o.routeRef)} from ${metres(o.fromChainageM)
 const JOINT_KIND = (v: unknown) => (v === 'connector' ? 'a connector' : 'a joint');
 const ductList = (v: unknown) => (Array.isArray(v) && v.length === 1 ? `duct ${v[0]}` : `ducts ${say(v)}`);
 
+// ---- surface restoration and daily production (issue 14, restoration part) ----
+const mm = (v: unknown) => (typeof v === 'number' ? `${v} mm` : say(v));
+const RESTORATION_FIELDS: FieldWords = {
+  fromChainageM: { name: 'the start', value: metres },
+  toChainageM: { name: 'the end', value: metres },
+  restoredAt: { name: 'the time' },
+  backfillMaterial: { name: 'the backfill' },
+  compactionPasses: { name: 'the compaction passes' },
+  requiredThicknessMm: { name: 'the required thickness', value: mm },
+  laidThicknessMm: { name: 'the laid thickness', value: mm },
+  edgesCleanedAt: { name: 'the time the edges were cleaned' },
+  surfaceLaidAt: { name: 'the time the surface was laid' },
+  crew: { name: 'the crew' },
+  note: { name: 'the note' },
+  temperaturesC: { name: 'the laying temperatures', value: (v) => (Array.isArray(v) && v.length > 0 ? `${v.join(', ')} °C` : 'none') },
+};
+const restoredStretch = (o: Obj) => `${say(o.route)} ${say(o.fromChainageM)}–${say(o.toChainageM)} m`;
+const PRODUCTION_WORDS: Record<string, string> = {
+  sawn_m: 'the metres sawn', laid_m: 'the metres laid', backfilled_m: 'the metres backfilled', restored_m: 'the metres restored', crossings: 'the crossings made', pits: 'the pits dug',
+};
+const productionOf = (o: Obj) => `${PRODUCTION_WORDS[String(o.quantity)] ?? say(o.quantity)} of ${o.crew ? say(o.crew) : 'no crew named'} on ${say(o.day)}`;
+// ---- end of surface restoration and daily production ----
+
 /**
  * One audit entry as a sentence. `describeAudit({ objectType: 'project', action: 'update',
  * before: { lateralToleranceM: 0.5 }, after: { lateralToleranceM: 0.75 } })` is
@@ -277,6 +300,20 @@ export function describeAudit(e: AuditLike): string {
       if (a.retired !== b.retired) what.push(a.retired ? 'retired it' : 'brought it back');
       return `${e.objectType === 'utility_kind' ? 'Utility kind' : 'Backfill material'} ${say(a.label)}: ${what.length ? what.join(', ') : 'saved without changes'}.`;
     }
+    // surface restoration and daily production (issue 14, restoration part)
+    case 'restoration create':
+      return `Recorded the restoration of ${restoredStretch(a)} on ${say(a.restoredAt)}: ${say(a.verdict)}.`;
+    case 'restoration update': {
+      const c = changesIn(RESTORATION_FIELDS, b, a);
+      const verdict = a.verdict !== b.verdict ? `; now ${say(a.verdict)}` : '';
+      return c ? `Changed the restoration of ${restoredStretch(b)}: ${c}${verdict}.` : `Saved the restoration of ${restoredStretch(a)} without changes.`;
+    }
+    case 'restoration delete':
+      return `Removed the restoration of ${restoredStretch(b)}.`;
+    case 'production_correction create':
+      return `Corrected ${productionOf(a)} from ${a.derived === null || a.derived === undefined ? 'nothing derived' : say(a.derived)} to ${say(a.value)}. Reason: ${quoted(a.reason)}`;
+    case 'production_correction delete':
+      return `Withdrew the correction of ${productionOf(b)} to ${say(b.value)}.`;
     default: {
       const c = changes(b, a);
       const what = `${capital(words(e.action))} ${words(e.objectType)}`;

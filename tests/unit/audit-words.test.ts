@@ -111,4 +111,17 @@ describe('parser warnings', () => {
     );
     expect(describeAudit({ objectType: 'photo', action: 'delete', before: photo, after: null })).toBe('Removed the photo IMG_0042.jpg (QN-101 at 57.3 m).');
   });
+
+  // ---- surface restoration and daily production (issue 14, restoration part) ----
+  it('tells restorations and production corrections', () => {
+    const r = { route: 'QN-101', fromChainageM: 140, toChainageM: 280, restoredAt: '2026-11-04 11:30', backfillMaterial: 'Crushed stone 4–8 mm', compactionPasses: 3, requiredThicknessMm: 40, laidThicknessMm: 40, edgesCleanedAt: null, surfaceLaidAt: null, crew: 'North', note: '', temperaturesC: [193], verdict: 'pass' };
+    expect(describeAudit({ objectType: 'restoration', action: 'create', before: null, after: r })).toBe('Recorded the restoration of QN-101 140–280 m on 2026-11-04 11:30: pass.');
+    expect(describeAudit({ objectType: 'restoration', action: 'update', before: r, after: { ...r, temperaturesC: [193, 162], verdict: 'fail' } })).toBe('Changed the restoration of QN-101 140–280 m: the laying temperatures from 193 °C to 193, 162 °C; now fail.');
+    expect(describeAudit({ objectType: 'restoration', action: 'update', before: r, after: r })).toBe('Saved the restoration of QN-101 140–280 m without changes.');
+    expect(describeAudit({ objectType: 'restoration', action: 'delete', before: r, after: null })).toBe('Removed the restoration of QN-101 140–280 m.');
+    const c = { day: '2026-11-03', crew: 'North', quantity: 'sawn_m', value: 130, reason: 'Site diary.', derived: 140 };
+    expect(describeAudit({ objectType: 'production_correction', action: 'create', before: null, after: c })).toBe('Corrected the metres sawn of North on 2026-11-03 from 140 to 130. Reason: Site diary.');
+    expect(describeAudit({ objectType: 'production_correction', action: 'create', before: null, after: { ...c, crew: '', quantity: 'pits', value: 2, derived: null } })).toBe('Corrected the pits dug of no crew named on 2026-11-03 from nothing derived to 2. Reason: Site diary.');
+    expect(describeAudit({ objectType: 'production_correction', action: 'delete', before: c, after: null })).toBe('Withdrew the correction of the metres sawn of North on 2026-11-03 to 130.');
+  });
 });
