@@ -1,5 +1,6 @@
 'use client';
 
+import { useRouter } from 'next/navigation';
 import { useId } from 'react';
 import { useFieldArray, useWatch, type Path } from 'react-hook-form';
 import { Button, Field, Select } from '@/components/ui/primitives';
@@ -31,16 +32,26 @@ const big = 'min-h-12 text-base';
  * its purpose; "Fill from the plan" copies the planned bundle of the route. Then tracer wire, warning tape and
  * protective fill. The draft stays on the device until the server has it.
  */
-export function DuctBundleForm({ projectId, routes, sizes, colours, planned, system }: { projectId: string; routes: RouteOption[]; sizes: SizeOption[]; colours: DuctColour[]; planned: Record<string, PlannedDucts>; system: UnitSystem }) {
+export function DuctBundleForm({ projectId, routes, sizes, colours, planned, system, editing }: { projectId: string; routes: RouteOption[]; sizes: SizeOption[]; colours: DuctColour[]; planned: Record<string, PlannedDucts>; system: UnitSystem; editing?: { id: string; values: Values; label: string } }) {
+  const router = useRouter();
   const firstDuct = (i: number): DuctRow => ({ ductSizeId: sizes[0]?.id, colourPosition: Math.min(i + 1, colours.length || 1), purpose: 'distribution' });
-  const defaults = { routeId: '', fromChainageM: undefined, toChainageM: undefined, ducts: [firstDuct(0)], tracerWire: true, warningTape: true, protectiveFill: false, note: '' } as unknown as Values;
-  const rf = useRecordForm({ schema: ductBundleSchema, draftKey: `duct-bundle:${projectId}`, defaults, url: `/api/projects/${projectId}/duct-bundles`, savedText: 'Bundle saved.' });
+  const blank = { routeId: '', fromChainageM: undefined, toChainageM: undefined, ducts: [firstDuct(0)], tracerWire: true, warningTape: true, protectiveFill: false, note: '' } as unknown as Values;
+  const rf = useRecordForm({
+    schema: ductBundleSchema,
+    draftKey: editing ? `duct-bundle:${projectId}:${editing.id}` : `duct-bundle:${projectId}`,
+    defaults: editing?.values ?? blank,
+    url: editing ? `/api/projects/${projectId}/duct-bundles/${editing.id}` : `/api/projects/${projectId}/duct-bundles`,
+    method: editing ? 'PATCH' : 'POST',
+    savedText: editing ? 'Changes saved.' : 'Bundle saved.',
+    // after an edit, back to the page without ?edit=
+    onSaved: editing ? () => router.replace(`/projects/${projectId}/records/ducts#bundle-${editing.id}`) : undefined,
+  });
   const { fields, append, remove, replace } = useFieldArray({ control: rf.form.control, name: 'ducts' });
   const routeId = useWatch({ control: rf.form.control, name: 'routeId' }) as string | undefined;
   const plan = routeId ? planned[routeId] : undefined;
 
   return (
-    <RecordForm rf={rf} title="Record an installed bundle" submitLabel="Save bundle">
+    <RecordForm rf={rf} title={editing ? `Change the bundle on ${editing.label}` : 'Record an installed bundle'} submitLabel={editing ? 'Save changes' : 'Save bundle'}>
       <RouteStretchFields rf={rf} routes={routes} system={system} />
       <fieldset className="flex flex-col gap-4">
         <legend className="mb-2 text-sm font-medium">Ducts, in bundle order</legend>

@@ -36,6 +36,17 @@ test('a surveyor fills a bundle from the plan, records it and a connector; the o
   await expect(form.getByText('Bundle saved.')).toBeVisible();
   await expect(page.getByText(`QN-104 ${from.toFixed(1)} m–${(from + 0.5).toFixed(1)} m`)).toBeVisible();
 
+  // change it: protective fill was placed after all
+  const listed = await (await page.request.get(`/api${base}/duct-bundles?kind=installed`)).json();
+  const mine = listed.bundles.find((b: { routeRef: string; fromChainageM: number }) => b.routeRef === 'QN-104' && b.fromChainageM === from);
+  await page.goto(`${base}/records/ducts?edit=${mine.id}`);
+  const change = page.getByRole('form', { name: /^Change the bundle on QN-104/ });
+  await expect(change.getByRole('group', { name: 'Duct 4' }).getByLabel('Purpose')).toHaveValue('spare');
+  await change.getByLabel('Protective fill placed over the ducts').check();
+  await change.getByRole('button', { name: 'Save changes' }).click();
+  await expect(page).toHaveURL(new RegExp(`/records/ducts#bundle-${mine.id}$`));
+  await expect(page.getByText('yes / yes / yes')).toBeVisible();
+
   const joint = page.getByRole('form', { name: 'Record a joint or connector' });
   await joint.getByRole('button', { name: 'Route and chainage' }).click();
   await joint.getByLabel('Route', { exact: true }).selectOption((await joint.getByLabel('Route', { exact: true }).locator('option', { hasText: 'QN-104' }).getAttribute('value'))!);

@@ -50,8 +50,9 @@ const JOINT_COLUMNS: Column[] = [
 const yesNo = (v: boolean | null) => (v === null ? '—' : v ? 'yes' : 'no');
 
 /** Bundles per route, planned against installed per stretch, continuity breaks and connectors, and the forms. */
-export default async function DuctsPage({ params }: { params: Promise<{ projectId: string }> }) {
+export default async function DuctsPage({ params, searchParams }: { params: Promise<{ projectId: string }>; searchParams: Promise<{ edit?: string }> }) {
   const { projectId } = await params;
+  const { edit } = await searchParams;
   const { me, project } = await requireProjectPage(projectId, 'record.read');
   const db = getDb();
   const [routes, bundles, joints, continuity, sizes, sequence] = await Promise.all([
@@ -111,7 +112,20 @@ export default async function DuctsPage({ params }: { params: Promise<{ projectI
         colours: { text: b.ducts.map((d) => d.colourLabel ?? '—').join(', '), node: <DuctSwatches ducts={b.ducts} /> },
         extras: b.kind === 'planned' ? '—' : `${yesNo(b.tracerWire)} / ${yesNo(b.warningTape)} / ${yesNo(b.protectiveFill)}`,
         note: b.note || '—',
-        actions: canWrite && b.kind === 'installed' ? { text: '', node: <DuctRecordDelete url={`/api/projects/${project.id}/duct-bundles/${b.id}`} what={`the bundle on ${b.routeRef} ${len(b.fromChainageM)}–${len(b.toChainageM)}`} /> } : '',
+        actions:
+          canWrite && b.kind === 'installed'
+            ? {
+                text: '',
+                node: (
+                  <span className="flex flex-wrap gap-2">
+                    <Link href={`${base}/records/ducts?edit=${b.id}#bundle-form`} className="inline-flex min-h-10 items-center rounded-md border border-ink/15 px-3 text-sm">
+                      Change
+                    </Link>
+                    <DuctRecordDelete url={`/api/projects/${project.id}/duct-bundles/${b.id}`} what={`the bundle on ${b.routeRef} ${len(b.fromChainageM)}–${len(b.toChainageM)}`} />
+                  </span>
+                ),
+              }
+            : '',
       },
     };
   });
@@ -131,6 +145,28 @@ export default async function DuctsPage({ params }: { params: Promise<{ projectI
   const planned: Record<string, PlannedDucts> = {};
   for (const b of bundles) if (b.kind === 'planned') planned[b.routeId] = { summary: b.summary, ducts: b.ducts.map((d) => ({ ductSizeId: d.ductSizeId, outerMm: d.outerMm, innerMm: d.innerMm, colourPosition: d.colourPosition })) };
   const colours = sequence ? allDuctColours(sequence) : [];
+  const editBundle = edit ? bundles.find((b) => b.id === edit && b.kind === 'installed') : undefined;
+  const editing = editBundle && {
+    id: editBundle.id,
+    label: `${editBundle.routeRef} ${len(editBundle.fromChainageM)}–${len(editBundle.toChainageM)}`,
+    values: {
+      routeId: editBundle.routeId,
+      fromChainageM: editBundle.fromChainageM,
+      toChainageM: editBundle.toChainageM,
+      ducts: editBundle.ducts.map((d) => ({
+        ductSizeId: d.ductSizeId ?? undefined,
+        outerMm: d.ductSizeId ? undefined : d.outerMm,
+        innerMm: d.ductSizeId ? undefined : (d.innerMm ?? undefined),
+        colourPosition: d.colourPosition ?? 1,
+        purpose: d.purpose ?? 'distribution',
+      })),
+      tracerWire: editBundle.tracerWire ?? false,
+      warningTape: editBundle.warningTape ?? false,
+      protectiveFill: editBundle.protectiveFill ?? false,
+      note: editBundle.note,
+    },
+  };
+  const editRoutes = editBundle?.routeRemoved ? [...current, routes.find((r) => r.id === editBundle.routeId)!] : current;
 
   return (
     <>
@@ -174,13 +210,23 @@ export default async function DuctsPage({ params }: { params: Promise<{ projectI
         {canWrite && current.length > 0 ? (
           <div className="grid gap-6 lg:grid-cols-2">
             <Card>
+              <span id="bundle-form" className="scroll-mt-24" />
+              {editing && (
+                <p className="mb-3 text-sm">
+                  <Link href={`${base}/records/ducts`} className="underline">
+                    Record a new bundle instead
+                  </Link>
+                </p>
+              )}
               {colours.length === 0 ? (
                 <Notice tone="warn">The project has no colour sequence: an admin picks one in the project&apos;s settings before ducts can be recorded.</Notice>
               ) : (
                 <DuctBundleForm
+                  key={editing?.id ?? 'new'}
                   projectId={project.id}
                   system={system}
-                  routes={current.map((r) => ({ id: r.id, ref: r.ref, street: r.street, lengthM: r.lengthM }))}
+                  editing={editing}
+                  routes={editRoutes.map((r) => ({ id: r.id, ref: r.ref, street: r.street, lengthM: r.lengthM }))}
                   sizes={sizes.filter((s) => !s.retired).map((s) => ({ id: s.id, label: `${s.outerMm}/${s.innerMm} mm${s.common ? ' (common)' : ''}` }))}
                   colours={colours}
                   planned={planned}
