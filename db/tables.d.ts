@@ -227,3 +227,44 @@ export interface PhotoRow {
   created_at: Date;
   updated_at: Date;
 }
+
+// ---- surface restoration and daily production (issue 14, restoration part) ----
+export interface RestorationRow {
+  id: string;
+  project_id: string;
+  route_id: string;
+  from_chainage_m: number;
+  to_chainage_m: number;
+  restored_at: Date;
+  backfill_material_id: string | null;
+  compaction_passes: number;
+  required_thickness_mm: number;
+  laid_thickness_mm: number | null;
+  edges_cleaned_at: Date | null;
+  surface_laid_at: Date | null;
+  crew: string;
+  note: string;
+  created_by: string | null;
+  updated_by: string | null;
+  created_at: Date;
+  updated_at: Date;
+}
+
+export interface RestorationTemperatureRow {
+  id: string;
+  restoration_id: string;
+  measured_at: Date | null;
+  temp_c: number;
+}
+
+export interface ProductionCorrectionRow {
+  id: string;
+  project_id: string;
+  day: string;
+  crew: string;
+  quantity: 'sawn_m' | 'laid_m' | 'backfilled_m' | 'restored_m' | 'crossings' | 'pits';
+  value: number;
+  reason: string;
+  created_by: string | null;
+  created_at: Date;
+}

@@ -591,6 +591,60 @@ const MATRIX: Record<string, Row | PublicRow> = {
     success: 200,
   },
   // ---- end of duct bundles, joints and catalogues ----
+  // ---- trench records: surface restoration and daily production (restoration helper) ----
+  'GET /api/projects/[projectId]/restorations': {
+    url: () => `/api/projects/${sp.projectId}/restorations`,
+    foreign: () => `/api/projects/${sp.foreignProjectId}/restorations`,
+    denied: ALL_ROLES,
+    allowed: 'maintenance',
+    success: 200,
+  },
+  'POST /api/projects/[projectId]/restorations': {
+    url: () => `/api/projects/${sp.projectId}/restorations`,
+    foreign: () => `/api/projects/${sp.foreignProjectId}/restorations`,
+    denied: 'owner',
+    allowed: 'surveyor',
+    body: () => ({ routeId: sp.routeId, fromChainageM: 100, toChainageM: 150, restoredAt: '2026-11-03T10:00', temperatures: [{ tempC: 195 }] }),
+    success: 201,
+  },
+  'PATCH /api/projects/[projectId]/restorations/[restorationId]': {
+    url: () => `/api/projects/${sp.projectId}/restorations/${sp.restorationId}`,
+    foreign: () => `/api/projects/${sp.foreignProjectId}/restorations/${sp.foreignRestorationId}`,
+    denied: 'owner',
+    allowed: 'engineer',
+    body: () => ({ note: 'isolation matrix', temperatures: [{ tempC: 190 }] }),
+    success: 200,
+  },
+  'DELETE /api/projects/[projectId]/restorations/[restorationId]': {
+    url: () => `/api/projects/${sp.projectId}/restorations/${sp.spareRestorationId}`,
+    foreign: () => `/api/projects/${sp.foreignProjectId}/restorations/${sp.foreignRestorationId}`,
+    denied: 'maintenance',
+    allowed: 'surveyor',
+    success: 200,
+  },
+  'GET /api/projects/[projectId]/production': {
+    url: () => `/api/projects/${sp.projectId}/production?from=2026-11-01&to=2026-11-30`,
+    foreign: () => `/api/projects/${sp.foreignProjectId}/production`,
+    denied: ALL_ROLES,
+    allowed: 'owner',
+    success: 200,
+  },
+  'POST /api/projects/[projectId]/production/corrections': {
+    url: () => `/api/projects/${sp.projectId}/production/corrections`,
+    foreign: () => `/api/projects/${sp.foreignProjectId}/production/corrections`,
+    denied: 'owner',
+    allowed: 'engineer',
+    body: () => ({ day: '2026-11-03', crew: 'Matrix', quantity: 'laid_m', value: 42, reason: 'isolation matrix' }),
+    success: 201,
+  },
+  'DELETE /api/projects/[projectId]/production/corrections/[correctionId]': {
+    url: () => `/api/projects/${sp.projectId}/production/corrections/${sp.spareCorrectionId}`,
+    foreign: () => `/api/projects/${sp.foreignProjectId}/production/corrections/${sp.foreignProductionCorrectionId}`,
+    denied: 'maintenance',
+    allowed: 'surveyor',
+    success: 200,
+  },
+  // ---- end of surface restoration and daily production ----
   'GET /api/crs': { url: () => '/api/crs?q=25832', foreign: NO_OBJECT, denied: ALL_ROLES, allowed: 'surveyor', success: 200 },
   'GET /api/audit': { url: () => '/api/audit', foreign: NO_OBJECT, denied: 'maintenance', allowed: 'admin', success: 200 },
 };
@@ -683,6 +737,21 @@ const ductBundleBody = (routeId: string, from: number, to: number) => ({
   protectiveFill: false,
 });
 // ---- end of duct bundles, joints and catalogues ----
+
+// ---- trench records: surface restoration and daily production (restoration helper) ----
+interface RestorationCtx {
+  projectId: string;
+  foreignProjectId: string;
+  /** the project's 200 m street route */
+  routeId: string;
+  restorationId: string;
+  spareRestorationId: string;
+  foreignRestorationId: string;
+  spareCorrectionId: string;
+  foreignProductionCorrectionId: string;
+}
+let sp: RestorationCtx;
+// ---- end of surface restoration and daily production ----
 
 let ctx: Ctx;
 
@@ -880,6 +949,33 @@ test.beforeAll(async ({ request }) => {
       foreignMaterialId: cf.backfillMaterials[0].id,
     };
   }
+  // ---- trench records: surface restoration and daily production (restoration helper) ----
+  // on the ducts helper's projects (one street of 200 m each), with a Larkspur surveyor recording on theirs
+  {
+    const larkspur = addUserWithToken({ email: 'restoration@larkspur-ground.example', name: 'Larkspur Restorer', role: 'surveyor', org: 'Larkspur Ground Works', orgKind: 'contractor' });
+    const foreignRouteId = (await json<{ bundles: { routeId: string }[] }>(request, 'GET', `/api/projects/${dp.foreignProjectId}/duct-bundles?kind=planned`, larkspur)).body!.bundles[0].routeId;
+    const restoration = async (pid: string, token: string, routeId: string, from: number, to: number) => {
+      const r = await json<{ restoration: { id: string } }>(request, 'POST', `/api/projects/${pid}/restorations`, token, { routeId, fromChainageM: from, toChainageM: to, restoredAt: '2026-11-03T10:00', temperatures: [{ tempC: 196 }] });
+      expect(r.status).toBe(201);
+      return r.body!.restoration.id;
+    };
+    const correction = async (pid: string, token: string) => {
+      const r = await json<{ correction: { id: string } }>(request, 'POST', `/api/projects/${pid}/production/corrections`, token, { day: '2026-11-03', quantity: 'sawn_m', value: 10, reason: 'isolation matrix' });
+      expect(r.status).toBe(201);
+      return r.body!.correction.id;
+    };
+    sp = {
+      projectId: dp.projectId,
+      foreignProjectId: dp.foreignProjectId,
+      routeId: dp.routeId,
+      restorationId: await restoration(dp.projectId, tokens.surveyor, dp.routeId, 0, 50),
+      spareRestorationId: await restoration(dp.projectId, tokens.surveyor, dp.routeId, 50, 100),
+      foreignRestorationId: await restoration(dp.foreignProjectId, larkspur, foreignRouteId, 0, 50),
+      spareCorrectionId: await correction(dp.projectId, tokens.surveyor),
+      foreignProductionCorrectionId: await correction(dp.foreignProjectId, larkspur),
+    };
+  }
+  // ---- end of surface restoration and daily production ----
   ctx = {
     currentSection,
     correctionId,
