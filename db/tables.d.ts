@@ -130,6 +130,69 @@ export interface ProjectOrgChangeRow {
   answer_note: string | null;
 }
 
+// ---- depth readings, test pits and utility crossings (issue 14) ----
+export interface DepthReadingRow {
+  id: string;
+  project_id: string;
+  route_id: string;
+  chainage_m: number;
+  offset_m: number;
+  geom: unknown;
+  cover_m: number | null;
+  trench_depth_m: number | null;
+  measured_at: Date | null;
+  source: 'typed' | 'csv' | 'upload';
+  upload_id: string | null;
+  source_row: number | null;
+  source_vertex: number | null;
+  note: string;
+  created_by: string | null;
+  updated_by: string | null;
+  created_at: Date;
+  updated_at: Date;
+}
+
+export interface TestPitRow {
+  id: string;
+  project_id: string;
+  route_id: string;
+  chainage_m: number;
+  offset_m: number;
+  geom: unknown;
+  name: string;
+  dug_on: string | null;
+  method: 'hand_dug' | 'vacuum' | 'other';
+  depth_m: number | null;
+  findings: string;
+  upload_id: string | null;
+  source_seq: number | null;
+  created_by: string | null;
+  updated_by: string | null;
+  created_at: Date;
+  updated_at: Date;
+}
+
+export interface UtilityCrossingRow {
+  id: string;
+  project_id: string;
+  route_id: string;
+  chainage_m: number;
+  offset_m: number;
+  geom: unknown;
+  pit_id: string | null;
+  utility_kind_id: string;
+  owner: string;
+  depth_m: number | null;
+  clearance_m: number | null;
+  method: 'gpr' | 'test_pit' | 'records' | 'other';
+  found_on: string | null;
+  note: string;
+  created_by: string | null;
+  updated_by: string | null;
+  created_at: Date;
+  updated_at: Date;
+}
+
 // ---- duct bundles, their ducts and duct joints (issue 14, ducts part) ----
 export interface DuctBundleRow {
   id: string;
