@@ -10,7 +10,7 @@ import type { DemoCtx } from './context';
 // in November, times on the project's clock. Most pass; one load on QN-101 arrived cold (162 °C against
 // 195 ± 15 °C [practice]) and fails, one stretch of QN-102 was laid 2 h 10 min after its edges were cleaned
 // (late), one stretch had only two compaction passes. One production correction: sawing on QN-102 ran a day
-// ahead of laying. Fictional.
+// ahead of laying, so the 3rd's sawn metres come from the saw's meter. Fictional.
 
 export async function seedRestoration(knex: Knex, ctx: DemoCtx): Promise<void> {
   const { project, surveyor, engineer } = ctx;
@@ -22,7 +22,7 @@ export async function seedRestoration(knex: Knex, ctx: DemoCtx): Promise<void> {
   };
   const materials = await listBackfillMaterials(knex, project.id);
   const stone = (materials.find((m) => /4.8/.test(m.label)) ?? materials[0])?.id ?? null;
-  const crew = 'Crew North';
+  const crew = 'Crew 2';
   const add = (body: Record<string, unknown>) => createRestoration(knex, surveyor, project, restorationSchema.parse({ backfillMaterialId: stone, crew, laidThicknessMm: 40, ...body }));
 
   await add({
@@ -44,6 +44,6 @@ export async function seedRestoration(knex: Knex, ctx: DemoCtx): Promise<void> {
   });
 
   await correctProduction(knex, engineer, project, productionCorrectionSchema.parse({
-    day: '2026-11-03', crew, quantity: 'sawn_m', value: 130, reason: 'Cobbler Walk sawn in the afternoon, a day before its ducts were laid (site diary).',
+    day: '2026-11-03', crew, quantity: 'sawn_m', value: 383, reason: 'From the saw\'s meter: Cobbler Walk was sawn in the afternoon as well, its ducts laid the next morning (site diary).',
   }));
 }
