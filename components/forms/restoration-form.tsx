@@ -2,7 +2,7 @@
 
 import { useFieldArray } from 'react-hook-form';
 import { Button } from '@/components/ui/primitives';
-import { restorationSchema } from '@/lib/records/restoration-schema';
+import { restorationPatchSchema, restorationSchema } from '@/lib/records/restoration-schema';
 import type { UnitSystem } from '@/lib/records/units';
 import { DateTimeField, NumberField, RecordForm, RouteStretchFields, SelectField, TextField, useRecordForm, type RouteOption } from './record-form';
 
@@ -12,29 +12,61 @@ import { DateTimeField, NumberField, RecordForm, RouteStretchFields, SelectField
  * the required and laid thickness, and as many laying temperature readings as were taken (°F on imperial
  * projects; sent as °C). The draft stays on the device until the server has it.
  */
-export function RestorationForm({ projectId, routes, materials, system, defaults, timeZone }: {
+/** A recorded restoration as the form edits it: times already written on the project's clock (`YYYY-MM-DDTHH:mm`). */
+export interface RestorationDraft {
+  id: string;
+  label: string;
+  routeId: string;
+  fromChainageM: number;
+  toChainageM: number;
+  restoredAt: string;
+  backfillMaterialId: string | null;
+  compactionPasses: number;
+  requiredThicknessMm: number;
+  laidThicknessMm: number | null;
+  edgesCleanedAt: string;
+  surfaceLaidAt: string;
+  crew: string;
+  note: string;
+  temperatures: { tempC: number; measuredAt: string }[];
+}
+
+export function RestorationForm({ projectId, routes, materials, system, defaults, timeZone, record }: {
   projectId: string;
+  /** given: the form changes this restoration (PATCH; the route stays) */
+  record?: RestorationDraft;
   routes: RouteOption[];
   materials: { id: string; label: string }[];
   system: UnitSystem;
   defaults: { compactionPasses: number; requiredThicknessMm: number };
   timeZone: string;
 }) {
+  const base = `/api/projects/${projectId}/restorations`;
   const rf = useRecordForm({
-    schema: restorationSchema,
-    draftKey: `restoration:${projectId}`,
-    defaults: {
-      routeId: '', fromChainageM: null, toChainageM: null, restoredAt: '', backfillMaterialId: '', compactionPasses: defaults.compactionPasses,
-      requiredThicknessMm: defaults.requiredThicknessMm, laidThicknessMm: null, edgesCleanedAt: '', surfaceLaidAt: '', crew: '', note: '', temperatures: [],
-    } as never,
-    url: `/api/projects/${projectId}/restorations`,
-    savedText: 'Restoration saved.',
+    schema: (record ? restorationPatchSchema : restorationSchema) as typeof restorationSchema,
+    draftKey: record ? `restoration:${projectId}:${record.id}` : `restoration:${projectId}`,
+    defaults: (record
+      ? { ...record, backfillMaterialId: record.backfillMaterialId ?? '' }
+      : {
+          routeId: '', fromChainageM: null, toChainageM: null, restoredAt: '', backfillMaterialId: '', compactionPasses: defaults.compactionPasses,
+          requiredThicknessMm: defaults.requiredThicknessMm, laidThicknessMm: null, edgesCleanedAt: '', surfaceLaidAt: '', crew: '', note: '', temperatures: [],
+        }) as never,
+    url: record ? `${base}/${record.id}` : base,
+    method: record ? 'PATCH' : 'POST',
+    savedText: record ? 'Changes saved.' : 'Restoration saved.',
   });
   const readings = useFieldArray({ control: rf.form.control as never, name: 'temperatures' as never });
   const clock = `on the project's clock (${timeZone})`;
   return (
-    <RecordForm rf={rf} title="Record a restoration" submitLabel="Save restoration">
-      <RouteStretchFields rf={rf} routes={routes} system={system} />
+    <RecordForm rf={rf} title={record ? `Change the restoration of ${record.label}` : 'Record a restoration'} submitLabel={record ? 'Save changes' : 'Save restoration'}>
+      {record ? (
+        <>
+          <NumberField rf={rf} name="fromChainageM" label="From chainage" quantity="length" system={system} />
+          <NumberField rf={rf} name="toChainageM" label="To chainage" quantity="length" system={system} />
+        </>
+      ) : (
+        <RouteStretchFields rf={rf} routes={routes} system={system} />
+      )}
       <DateTimeField rf={rf} name="restoredAt" label="Date and time of the restoration" hint={clock} />
       <DateTimeField rf={rf} name="edgesCleanedAt" label="Edges cleaned at" hint={clock} />
       <DateTimeField rf={rf} name="surfaceLaidAt" label="Surface laid at" hint={clock} />

@@ -11,7 +11,7 @@ import { formatInZone } from '@/lib/records/zoned-time';
 import { Badge, Card, PageHeader } from '@/components/ui/primitives';
 import { Cautions } from '@/components/ui/cautions';
 import { DataTable, type Column, type Row } from '@/components/ui/data-table';
-import { RestorationForm } from '@/components/forms/restoration-form';
+import { RestorationForm, type RestorationDraft } from '@/components/forms/restoration-form';
 import { RemoveRecordButton } from '@/components/forms/remove-record';
 
 export const metadata: Metadata = { title: 'Surface restoration' };
@@ -19,8 +19,9 @@ export const metadata: Metadata = { title: 'Surface restoration' };
 const VERDICT_TONE = { pass: 'ok', warn: 'warn', fail: 'bad' } as const;
 
 /** The restorations of the project with their verdicts (pass, warn, fail and why), and the form to record one. */
-export default async function RestorationPage({ params }: { params: Promise<{ projectId: string }> }) {
+export default async function RestorationPage({ params, searchParams }: { params: Promise<{ projectId: string }>; searchParams: Promise<Record<string, string | string[] | undefined>> }) {
   const { projectId } = await params;
+  const { edit } = await searchParams;
   const { me, project } = await requireProjectPage(projectId, 'record.read');
   const db = getDb();
   const [restorations, materials, routes] = await Promise.all([listRestorations(db, project.id), listBackfillMaterials(db, project.id), listAnchorRoutes(db, project.id)]);
@@ -57,9 +58,29 @@ export default async function RestorationPage({ params }: { params: Promise<{ pr
       passes: r.compactionPasses,
       backfill: r.backfillMaterial ?? '—',
       crew: r.crew || '—',
-      ...(canWrite ? { actions: { text: '', node: <RemoveRecordButton url={`/api/projects/${project.id}/restorations/${r.id}`} label={`Remove the restoration of ${r.routeRef} ${r.fromChainageM}–${r.toChainageM} m`} confirmText="Remove this restoration and its temperature readings?" /> } } : {}),
+      ...(canWrite
+        ? {
+            actions: {
+              text: '',
+              node: (
+                <span className="flex gap-2">
+                  <Link href={`?edit=${r.id}#change`} className="inline-flex min-h-10 items-center rounded-md border border-ink/20 px-3 text-sm">Change</Link>
+                  <RemoveRecordButton url={`/api/projects/${project.id}/restorations/${r.id}`} label={`Remove the restoration of ${r.routeRef} ${r.fromChainageM}–${r.toChainageM} m`} confirmText="Remove this restoration and its temperature readings?" />
+                </span>
+              ),
+            },
+          }
+        : {}),
     },
   }));
+  const wall = (t: string | null) => (t ? formatInZone(t, project.timeZone, 'T').slice(0, 16) : '');
+  const editing = canWrite && typeof edit === 'string' ? restorations.find((r) => r.id === edit) : undefined;
+  const draft: RestorationDraft | undefined = editing && {
+    id: editing.id, label: `${editing.routeRef} ${editing.fromChainageM}–${editing.toChainageM} m`, routeId: editing.routeId, fromChainageM: editing.fromChainageM, toChainageM: editing.toChainageM,
+    restoredAt: wall(editing.restoredAt), backfillMaterialId: editing.backfillMaterialId, compactionPasses: editing.compactionPasses, requiredThicknessMm: editing.requiredThicknessMm,
+    laidThicknessMm: editing.laidThicknessMm, edgesCleanedAt: wall(editing.edgesCleanedAt), surfaceLaidAt: wall(editing.surfaceLaidAt), crew: editing.crew, note: editing.note,
+    temperatures: editing.temperatures.map((t) => ({ tempC: t.tempC, measuredAt: wall(t.measuredAt) })),
+  };
   const counts = { pass: 0, warn: 0, fail: 0 };
   for (const r of restorations) counts[r.check.verdict] += 1;
 
@@ -82,6 +103,22 @@ export default async function RestorationPage({ params }: { params: Promise<{ pr
           <ul className="sr-only">
             {restorations.map((r) => <li key={r.id} id={`restoration-${r.id}`}>{r.routeRef} {r.fromChainageM}–{r.toChainageM} m: {r.check.verdict}</li>)}
           </ul>
+        )}
+        {draft && (
+          <div id="change">
+            <Card title="Change a restoration" actions={<Link href="?" className="text-sm underline">Close</Link>}>
+              <RestorationForm
+                key={draft.id}
+                record={draft}
+                projectId={project.id}
+                system={system}
+                timeZone={project.timeZone}
+                routes={[]}
+                materials={materials.filter((m) => !m.retired || m.id === draft.backfillMaterialId).map((m) => ({ id: m.id, label: m.label }))}
+                defaults={{ compactionPasses: rs.compactionPassesDefault, requiredThicknessMm: rs.surfaceThicknessMm }}
+              />
+            </Card>
+          </div>
         )}
         {canWrite ? (
           <Card title="Record a restoration">
