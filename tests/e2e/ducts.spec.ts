@@ -45,7 +45,7 @@ test('a surveyor fills a bundle from the plan, records it and a connector; the o
   await change.getByLabel('Protective fill placed over the ducts').check();
   await change.getByRole('button', { name: 'Save changes' }).click();
   await expect(page).toHaveURL(new RegExp(`/records/ducts#bundle-${mine.id}$`));
-  await expect(page.getByText('yes / yes / yes')).toBeVisible();
+  await expect(page.getByRole('row').filter({ hasText: `QN-104 ${from.toFixed(1)} m–${(from + 0.5).toFixed(1)} m` }).getByText('yes / yes / yes')).toBeVisible();
 
   const joint = page.getByRole('form', { name: 'Record a joint or connector' });
   await joint.getByRole('button', { name: 'Route and chainage' }).click();
