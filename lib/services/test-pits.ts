@@ -147,7 +147,19 @@ export async function testPitsFromUpload(db: Knex, actor: Principal, project: Pr
   if (!upload || upload.projectId !== project.id) throw new AppError('not_found', 'Upload not found.');
   if (upload.status !== 'stored') throw new AppError('conflict', `The upload is ${upload.status}; pits are taken only from a stored upload.`);
   if ((await countPitsFromUpload(db, uploadId)) > 0) throw new AppError('conflict', 'Test pits were already taken from this upload; delete them first to take them again.');
-  const points = (await listUploadPointFeatures(db, uploadId)).filter((f) => f.kind === 'point');
+  // a survey CSV groups rows sharing a code into a line when there is no line column: such a line's
+  // vertices are points each, and so are vertices whose own code marks them inside a line
+  const points: { seq: number; name: string | null; coord: [number, number]; time: string | null; attributes: Record<string, unknown>; vertex: number | null }[] = [];
+  for (const f of await listUploadPointFeatures(db, uploadId)) {
+    if (f.kind === 'point') points.push({ seq: f.seq, name: f.name, coord: f.coords[0], time: f.times?.[0] ?? null, attributes: f.attributes, vertex: null });
+    else if (f.pointAttributes || f.attributes.code !== undefined) {
+      f.coords.forEach((c, i) => {
+        const pa = f.pointAttributes ?? {};
+        const id = pa.id?.[i];
+        points.push({ seq: f.seq, name: typeof id === 'string' ? id : null, coord: c, time: f.times?.[i] ?? null, attributes: { code: pa.code?.[i] ?? f.attributes.code, desc: undefined }, vertex: i + 1 });
+      });
+    }
+  }
   const marked = points.filter((f) => markedAsPit(f, input.code));
   if (marked.length === 0) {
     const codes = [...new Set(points.flatMap((f) => [f.attributes.code, f.attributes.type]).filter((v): v is string => typeof v === 'string' && v !== ''))].slice(0, 12);
@@ -156,10 +168,10 @@ export async function testPitsFromUpload(db: Knex, actor: Principal, project: Pr
   const values: TestPitValues[] = [];
   const problems: { path: string; message: string }[] = [];
   for (const f of marked) {
-    const where = `point ${f.seq + 1}${f.name ? ` (${f.name})` : ''}`;
+    const where = `point ${f.seq + 1}${f.vertex ? `.${f.vertex}` : ''}${f.name ? ` (${f.name})` : ''}`;
     try {
-      const anchor = await placePoint(db, project, { lon: f.coords[0][0], lat: f.coords[0][1] });
-      const time = f.times?.[0];
+      const anchor = await placePoint(db, project, { lon: f.coord[0], lat: f.coord[1] });
+      const time = f.time;
       const notes = ['desc', 'cmt'].map((k) => f.attributes[k]).filter((v): v is string => typeof v === 'string' && v.trim() !== '');
       values.push({
         anchor, name: (f.name ?? '').slice(0, 100), dugOn: time ? formatInZone(time, project.timeZone).slice(0, 10) : upload.surveyDate,
