@@ -194,6 +194,42 @@ const PRODUCTION_WORDS: Record<string, string> = {
 const productionOf = (o: Obj) => `${PRODUCTION_WORDS[String(o.quantity)] ?? say(o.quantity)} of ${o.crew ? say(o.crew) : 'no crew named'} on ${say(o.day)}`;
 // ---- end of surface restoration and daily production ----
 
+// ---- depth readings, test pits and utility crossings (issue 14, depths part) ----
+const DEPTH_FIELDS: FieldWords = {
+  routeRef: { name: 'the route' },
+  chainageM: { name: 'the chainage', value: metres },
+  coverM: { name: 'the cover', value: metres },
+  trenchDepthM: { name: 'the trench depth', value: metres },
+  measuredAt: { name: 'the time measured' },
+  note: { name: 'the note' },
+};
+const PIT_METHOD: Record<string, string> = { hand_dug: 'by hand', vacuum: 'by vacuum excavation', other: 'another way' };
+const PIT_FIELDS: FieldWords = {
+  name: { name: 'the name' },
+  routeRef: { name: 'the route' },
+  chainageM: { name: 'the chainage', value: metres },
+  dugOn: { name: 'the day dug' },
+  method: { name: 'how it was dug', value: (v) => PIT_METHOD[String(v)] ?? say(v) },
+  depthM: { name: 'the depth', value: metres },
+  findings: { name: 'the findings' },
+};
+const FOUND_BY: Record<string, string> = { gpr: 'ground-penetrating radar', test_pit: 'a test pit', records: 'records', other: 'other means' };
+const UTILITY_FIELDS: FieldWords = {
+  utility: { name: 'the utility' },
+  owner: { name: 'its owner' },
+  routeRef: { name: 'the route' },
+  chainageM: { name: 'the chainage', value: metres },
+  depthM: { name: 'the depth', value: metres },
+  clearanceM: { name: 'the clearance', value: metres },
+  method: { name: 'how it was found', value: (v) => FOUND_BY[String(v)] ?? say(v) },
+  foundOn: { name: 'the day found' },
+  pit: { name: 'the test pit' },
+  note: { name: 'the note' },
+};
+const pointOf = (o: Obj) => `${say(o.routeRef)} at ${metres(o.chainageM)}`;
+const pitName = (o: Obj) => (o.name ? `test pit ${say(o.name)}` : 'a test pit');
+// ---- end of depth readings, test pits and utility crossings ----
+
 /**
  * One audit entry as a sentence. `describeAudit({ objectType: 'project', action: 'update',
  * before: { lateralToleranceM: 0.5 }, after: { lateralToleranceM: 0.75 } })` is
@@ -314,6 +350,37 @@ export function describeAudit(e: AuditLike): string {
       return `Corrected ${productionOf(a)} from ${a.derived === null || a.derived === undefined ? 'nothing derived' : say(a.derived)} to ${say(a.value)}. Reason: ${quoted(a.reason)}`;
     case 'production_correction delete':
       return `Withdrew the correction of ${productionOf(b)} to ${say(b.value)}.`;
+    // depth readings, test pits and utility crossings (issue 14, depths part)
+    case 'depth_reading create':
+      return `Recorded a depth reading on ${pointOf(a)}: cover ${metres(a.coverM)}, trench depth ${metres(a.trenchDepthM)}.${a.note ? ` Note: ${quoted(a.note)}` : ''}`;
+    case 'depth_reading update': {
+      const c = changesIn(DEPTH_FIELDS, b, a);
+      return c ? `Changed the depth reading on ${pointOf(b)}: ${c}.` : `Saved the depth reading on ${pointOf(a)} without changes.`;
+    }
+    case 'depth_reading delete':
+      return `Removed the depth reading on ${pointOf(b)} (cover ${metres(b.coverM)}).`;
+    case 'depth_reading import':
+      return `Imported ${plural(Number(a.count ?? 0), 'depth reading')} from ${say(a.fileName)}${Number(a.belowMinimum ?? 0) > 0 ? `, ${Number(a.belowMinimum)} below the minimum cover` : ''}.`;
+    case 'depth_reading import_upload':
+      return `Took ${plural(Number(a.count ?? 0), 'depth reading')} from the ${say(a.attribute)} attribute of the upload ${say(a.fileName)}.`;
+    case 'test_pit create':
+      return `Recorded ${pitName(a)} on ${pointOf(a)}, dug ${PIT_METHOD[String(a.method)] ?? say(a.method)}${a.dugOn ? ` on ${say(a.dugOn)}` : ''}${a.depthM !== null && a.depthM !== undefined ? `, ${metres(a.depthM)} deep` : ''}.${a.findings ? ` Findings: ${quoted(a.findings)}` : ''}`;
+    case 'test_pit update': {
+      const c = changesIn(PIT_FIELDS, b, a);
+      return c ? `Changed ${pitName(b)} on ${pointOf(b)}: ${c}.` : `Saved ${pitName(a)} without changes.`;
+    }
+    case 'test_pit delete':
+      return `Removed ${pitName(b)} on ${pointOf(b)}.`;
+    case 'test_pit import_upload':
+      return `Took ${plural(Number(a.count ?? 0), 'test pit')} from the points marked ${say(a.code)} in the upload ${say(a.fileName)}.`;
+    case 'utility_crossing create':
+      return `Recorded a ${say(a.utility).toLowerCase()} utility${a.owner ? ` of ${say(a.owner)}` : ''} on ${pointOf(a)}, found by ${FOUND_BY[String(a.method)] ?? say(a.method)}: depth ${metres(a.depthM)}, clearance ${metres(a.clearanceM)}.`;
+    case 'utility_crossing update': {
+      const c = changesIn(UTILITY_FIELDS, b, a);
+      return c ? `Changed the ${say(b.utility).toLowerCase()} utility on ${pointOf(b)}: ${c}.` : `Saved the ${say(a.utility).toLowerCase()} utility without changes.`;
+    }
+    case 'utility_crossing delete':
+      return `Removed the ${say(b.utility).toLowerCase()} utility on ${pointOf(b)}.`;
     default: {
       const c = changes(b, a);
       const what = `${capital(words(e.action))} ${words(e.objectType)}`;

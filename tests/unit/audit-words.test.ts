@@ -124,4 +124,22 @@ describe('parser warnings', () => {
     expect(describeAudit({ objectType: 'production_correction', action: 'create', before: null, after: { ...c, crew: '', quantity: 'pits', value: 2, derived: null } })).toBe('Corrected the pits dug of no crew named on 2026-11-03 from nothing derived to 2. Reason: Site diary.');
     expect(describeAudit({ objectType: 'production_correction', action: 'delete', before: c, after: null })).toBe('Withdrew the correction of the metres sawn of North on 2026-11-03 to 130.');
   });
+
+  // ---- depth readings, test pits and utility crossings (issue 14, depths part) ----
+  it('tells depth readings, test pits and utility crossings', () => {
+    const d = { routeRef: 'QN-101', chainageM: 40, coverM: 0.42, trenchDepthM: 0.48, measuredAt: null, note: null };
+    expect(describeAudit({ objectType: 'depth_reading', action: 'create', before: null, after: d })).toBe('Recorded a depth reading on QN-101 at 40 m: cover 0.42 m, trench depth 0.48 m.');
+    expect(describeAudit({ objectType: 'depth_reading', action: 'update', before: d, after: { ...d, coverM: 0.38 } })).toBe('Changed the depth reading on QN-101 at 40 m: the cover from 0.42 m to 0.38 m.');
+    expect(describeAudit({ objectType: 'depth_reading', action: 'delete', before: d, after: null })).toBe('Removed the depth reading on QN-101 at 40 m (cover 0.42 m).');
+    expect(describeAudit({ objectType: 'depth_reading', action: 'import', before: null, after: { fileName: 'depths.csv', count: 14, belowMinimum: 2 } })).toBe('Imported 14 depth readings from depths.csv, 2 below the minimum cover.');
+    expect(describeAudit({ objectType: 'depth_reading', action: 'import_upload', before: null, after: { fileName: 'shots.shp', attribute: 'depth', count: 1 } })).toBe('Took 1 depth reading from the depth attribute of the upload shots.shp.');
+    const p = { name: 'TP-1', routeRef: 'QN-102', chainageM: 30, dugOn: '2026-11-02', method: 'vacuum', depthM: 0.9, findings: null };
+    expect(describeAudit({ objectType: 'test_pit', action: 'create', before: null, after: p })).toBe('Recorded test pit TP-1 on QN-102 at 30 m, dug by vacuum excavation on 2026-11-02, 0.9 m deep.');
+    expect(describeAudit({ objectType: 'test_pit', action: 'update', before: p, after: { ...p, method: 'hand_dug' } })).toBe('Changed test pit TP-1 on QN-102 at 30 m: how it was dug from by vacuum excavation to by hand.');
+    expect(describeAudit({ objectType: 'test_pit', action: 'import_upload', before: null, after: { fileName: 'pits.gpx', code: 'PIT', count: 2 } })).toBe('Took 2 test pits from the points marked PIT in the upload pits.gpx.');
+    const u = { utility: 'Gas', owner: 'Fen Gas', routeRef: 'QN-101', chainageM: 90, depthM: 0.6, clearanceM: 0.12, method: 'gpr', foundOn: null, pit: null, note: null };
+    expect(describeAudit({ objectType: 'utility_crossing', action: 'create', before: null, after: u })).toBe('Recorded a gas utility of Fen Gas on QN-101 at 90 m, found by ground-penetrating radar: depth 0.6 m, clearance 0.12 m.');
+    expect(describeAudit({ objectType: 'utility_crossing', action: 'update', before: u, after: { ...u, clearanceM: 0.32 } })).toBe('Changed the gas utility on QN-101 at 90 m: the clearance from 0.12 m to 0.32 m.');
+    expect(describeAudit({ objectType: 'utility_crossing', action: 'delete', before: u, after: null })).toBe('Removed the gas utility on QN-101 at 90 m.');
+  });
 });
