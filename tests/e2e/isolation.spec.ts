@@ -645,6 +645,104 @@ const MATRIX: Record<string, Row | PublicRow> = {
     success: 200,
   },
   // ---- end of surface restoration and daily production ----
+  // ---- trench records: depth readings, test pits and utility crossings (depths helper) ----
+  'GET /api/projects/[projectId]/depth-readings': { url: () => `/api/projects/${dx.projectId}/depth-readings`, foreign: () => `/api/projects/${dx.foreignProjectId}/depth-readings`, denied: ALL_ROLES, allowed: 'owner', success: 200 },
+  'POST /api/projects/[projectId]/depth-readings': {
+    url: () => `/api/projects/${dx.projectId}/depth-readings`,
+    foreign: () => `/api/projects/${dx.foreignProjectId}/depth-readings`,
+    denied: 'owner',
+    allowed: 'surveyor',
+    body: () => ({ routeId: dx.routeId, chainageM: 120, coverM: 0.45, trenchDepthM: 0.5 }),
+    success: 201,
+  },
+  'PATCH /api/projects/[projectId]/depth-readings/[readingId]': {
+    url: () => `/api/projects/${dx.projectId}/depth-readings/${dx.readingId}`,
+    foreign: () => `/api/projects/${dx.foreignProjectId}/depth-readings/${dx.foreignReadingId}`,
+    denied: 'owner',
+    allowed: 'engineer',
+    body: () => ({ coverM: 0.41 }),
+    success: 200,
+  },
+  'DELETE /api/projects/[projectId]/depth-readings/[readingId]': {
+    url: () => `/api/projects/${dx.projectId}/depth-readings/${dx.spareReadingId}`,
+    foreign: () => `/api/projects/${dx.foreignProjectId}/depth-readings/${dx.foreignReadingId}`,
+    denied: 'owner',
+    allowed: 'surveyor',
+    success: 200,
+  },
+  'POST /api/projects/[projectId]/depth-readings/import': {
+    url: () => `/api/projects/${dx.projectId}/depth-readings/import`,
+    foreign: () => `/api/projects/${dx.foreignProjectId}/depth-readings/import`,
+    denied: 'owner',
+    allowed: 'surveyor',
+    body: () => ({ multipart: { file: { name: 'depths.csv', mimeType: 'text/csv', buffer: Buffer.from(`route,chainage,cover\n${dx.routeRef},140,0.44\n`) }, confirm: '1' } }),
+    success: 201,
+  },
+  'POST /api/projects/[projectId]/depth-readings/from-upload/[uploadId]': {
+    url: () => `/api/projects/${dx.projectId}/depth-readings/from-upload/${dx.uploadId}`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/depth-readings/from-upload/${c.foreignUploadId}`,
+    denied: 'owner',
+    allowed: 'surveyor',
+    body: () => ({ attribute: 'depth' }),
+    success: 201,
+  },
+  'GET /api/projects/[projectId]/test-pits': { url: () => `/api/projects/${dx.projectId}/test-pits`, foreign: () => `/api/projects/${dx.foreignProjectId}/test-pits`, denied: ALL_ROLES, allowed: 'maintenance', success: 200 },
+  'POST /api/projects/[projectId]/test-pits': {
+    url: () => `/api/projects/${dx.projectId}/test-pits`,
+    foreign: () => `/api/projects/${dx.foreignProjectId}/test-pits`,
+    denied: 'owner',
+    allowed: 'surveyor',
+    body: () => ({ routeId: dx.routeId, chainageM: 90, name: 'TP-M', method: 'hand_dug', dugOn: '2026-11-02' }),
+    success: 201,
+  },
+  'PATCH /api/projects/[projectId]/test-pits/[pitId]': {
+    url: () => `/api/projects/${dx.projectId}/test-pits/${dx.pitId}`,
+    foreign: () => `/api/projects/${dx.foreignProjectId}/test-pits/${dx.foreignPitId}`,
+    denied: 'owner',
+    allowed: 'engineer',
+    body: () => ({ depthM: 0.8 }),
+    success: 200,
+  },
+  'DELETE /api/projects/[projectId]/test-pits/[pitId]': {
+    url: () => `/api/projects/${dx.projectId}/test-pits/${dx.sparePitId}`,
+    foreign: () => `/api/projects/${dx.foreignProjectId}/test-pits/${dx.foreignPitId}`,
+    denied: 'owner',
+    allowed: 'surveyor',
+    success: 200,
+  },
+  'POST /api/projects/[projectId]/test-pits/from-upload/[uploadId]': {
+    url: () => `/api/projects/${dx.projectId}/test-pits/from-upload/${dx.uploadId}`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/test-pits/from-upload/${c.foreignUploadId}`,
+    denied: 'owner',
+    allowed: 'surveyor',
+    body: () => ({ code: 'PIT' }),
+    success: 201,
+  },
+  'GET /api/projects/[projectId]/utility-crossings': { url: () => `/api/projects/${dx.projectId}/utility-crossings`, foreign: () => `/api/projects/${dx.foreignProjectId}/utility-crossings`, denied: ALL_ROLES, allowed: 'owner', success: 200 },
+  'POST /api/projects/[projectId]/utility-crossings': {
+    url: () => `/api/projects/${dx.projectId}/utility-crossings`,
+    foreign: () => `/api/projects/${dx.foreignProjectId}/utility-crossings`,
+    denied: 'owner',
+    allowed: 'surveyor',
+    body: () => ({ routeId: dx.routeId, chainageM: 95, utilityKindId: dx.kindId, method: 'gpr', depthM: 0.7, clearanceM: 0.2 }),
+    success: 201,
+  },
+  'PATCH /api/projects/[projectId]/utility-crossings/[crossingId]': {
+    url: () => `/api/projects/${dx.projectId}/utility-crossings/${dx.crossingId}`,
+    foreign: () => `/api/projects/${dx.foreignProjectId}/utility-crossings/${dx.foreignCrossingId}`,
+    denied: 'owner',
+    allowed: 'engineer',
+    body: () => ({ clearanceM: 0.35 }),
+    success: 200,
+  },
+  'DELETE /api/projects/[projectId]/utility-crossings/[crossingId]': {
+    url: () => `/api/projects/${dx.projectId}/utility-crossings/${dx.spareCrossingId}`,
+    foreign: () => `/api/projects/${dx.foreignProjectId}/utility-crossings/${dx.foreignCrossingId}`,
+    denied: 'owner',
+    allowed: 'surveyor',
+    success: 200,
+  },
+  // ---- end of depth readings, test pits and utility crossings ----
   'GET /api/crs': { url: () => '/api/crs?q=25832', foreign: NO_OBJECT, denied: ALL_ROLES, allowed: 'surveyor', success: 200 },
   'GET /api/audit': { url: () => '/api/audit', foreign: NO_OBJECT, denied: 'maintenance', allowed: 'admin', success: 200 },
 };
@@ -752,6 +850,28 @@ interface RestorationCtx {
 }
 let sp: RestorationCtx;
 // ---- end of surface restoration and daily production ----
+
+// ---- trench records: depth readings, test pits and utility crossings (depths helper) ----
+interface DepthsCtx {
+  projectId: string;
+  foreignProjectId: string;
+  routeId: string;
+  routeRef: string;
+  readingId: string;
+  spareReadingId: string;
+  foreignReadingId: string;
+  pitId: string;
+  sparePitId: string;
+  foreignPitId: string;
+  crossingId: string;
+  spareCrossingId: string;
+  foreignCrossingId: string;
+  kindId: string;
+  /** an upload of points with a depth attribute and a pit code */
+  uploadId: string;
+}
+let dx: DepthsCtx;
+// ---- end of depth readings, test pits and utility crossings ----
 
 let ctx: Ctx;
 
@@ -976,6 +1096,50 @@ test.beforeAll(async ({ request }) => {
     };
   }
   // ---- end of surface restoration and daily production ----
+  // ---- trench records: depth readings, test pits and utility crossings (depths helper) ----
+  // on the ducts helper's projects (one street of 200 m each), with a Larkspur surveyor recording on theirs
+  {
+    const larkspur = addUserWithToken({ email: 'depths@larkspur-ground.example', name: 'Larkspur Depths', role: 'surveyor', org: 'Larkspur Ground Works', orgKind: 'contractor' });
+    const foreignRouteId = (await json<{ bundles: { routeId: string }[] }>(request, 'GET', `/api/projects/${dp.foreignProjectId}/duct-bundles?kind=planned`, larkspur)).body!.bundles[0].routeId;
+    const post = async (pid: string, token: string, kind: string, body: unknown) => {
+      const r = await json<Record<string, { id: string }>>(request, 'POST', `/api/projects/${pid}/${kind}`, token, body);
+      expect(r.status, `${kind} ${JSON.stringify(r.body)}`).toBe(201);
+      return r.body!;
+    };
+    const reading = async (pid: string, token: string, routeId: string, chainageM: number) => (await post(pid, token, 'depth-readings', { routeId, chainageM, coverM: 0.45 })).reading.id;
+    const pit = async (pid: string, token: string, routeId: string, chainageM: number) => (await post(pid, token, 'test-pits', { routeId, chainageM, method: 'hand_dug' })).pit.id;
+    const kinds = async (pid: string, token: string) => (await json<{ utilityKinds: { id: string; key: string }[] }>(request, 'GET', `/api/projects/${pid}/catalogues`, token)).body!.utilityKinds;
+    const [kindId, foreignKindId] = [(await kinds(dp.projectId, tokens.engineer)).find((k) => k.key === 'gas')!.id, (await kinds(dp.foreignProjectId, larkspur))[0].id];
+    const crossing = async (pid: string, token: string, routeId: string, utilityKindId: string, chainageM: number) =>
+      (await post(pid, token, 'utility-crossings', { routeId, chainageM, utilityKindId, method: 'gpr', clearanceM: 0.4 })).crossing.id;
+    const at = (e: number): [number, number] => [9.25 + e / 68_300, 52.21];
+    const points = { type: 'FeatureCollection', features: [
+      { type: 'Feature', properties: { name: 'PIT 1', code: 'PIT', depth: 0.46, stamp: Date.now() }, geometry: { type: 'Point', coordinates: at(150) } },
+      { type: 'Feature', properties: { name: 'S2', code: 'EDGE', depth: 0.43 }, geometry: { type: 'Point', coordinates: at(160) } },
+    ] };
+    const up = await json<{ upload: { id: string } }>(request, 'POST', `/api/projects/${dp.projectId}/uploads`, tokens.surveyor, { multipart: { file: { name: 'depth-shots.geojson', mimeType: 'application/geo+json', buffer: Buffer.from(JSON.stringify(points)) } } });
+    expect(up.status).toBe(201);
+    const readingId = await reading(dp.projectId, tokens.surveyor, dp.routeId, 10);
+    const ref = (await json<{ readings: { id: string; routeRef: string }[] }>(request, 'GET', `/api/projects/${dp.projectId}/depth-readings`, tokens.engineer)).body!.readings.find((r) => r.id === readingId)!.routeRef;
+    dx = {
+      projectId: dp.projectId,
+      foreignProjectId: dp.foreignProjectId,
+      routeId: dp.routeId,
+      routeRef: ref,
+      readingId,
+      spareReadingId: await reading(dp.projectId, tokens.surveyor, dp.routeId, 20),
+      foreignReadingId: await reading(dp.foreignProjectId, larkspur, foreignRouteId, 10),
+      pitId: await pit(dp.projectId, tokens.surveyor, dp.routeId, 30),
+      sparePitId: await pit(dp.projectId, tokens.surveyor, dp.routeId, 40),
+      foreignPitId: await pit(dp.foreignProjectId, larkspur, foreignRouteId, 30),
+      crossingId: await crossing(dp.projectId, tokens.surveyor, dp.routeId, kindId, 50),
+      spareCrossingId: await crossing(dp.projectId, tokens.surveyor, dp.routeId, kindId, 60),
+      foreignCrossingId: await crossing(dp.foreignProjectId, larkspur, foreignRouteId, foreignKindId, 50),
+      kindId,
+      uploadId: up.body!.upload.id,
+    };
+  }
+  // ---- end of depth readings, test pits and utility crossings ----
   ctx = {
     currentSection,
     correctionId,
