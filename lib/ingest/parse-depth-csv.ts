@@ -1,4 +1,5 @@
 import { parse } from 'csv-parse/sync';
+import { DEPTH_LIMITS } from '@/lib/records/depth-schemas';
 import { wallTimeToUtc } from '@/lib/records/zoned-time';
 import { guessDelimiter } from './guess-delimiter';
 import { datumWarning, makeTransformer } from './reproject';
@@ -44,8 +45,6 @@ const ALIASES: Record<keyof DepthColumnMap, string[]> = {
 };
 const norm = (h: string) => h.trim().toLowerCase().replace(/[\s.-]+/g, '_').replace(/^_|_$/g, '');
 
-/** Plausible depths (m): a reading beyond is a typo or millimetres typed as metres. */
-export const DEPTH_LIMITS = { coverM: { min: 0, max: 5 }, trenchDepthM: { min: 0.01, max: 5 } } as const;
 
 /**
  * Map headers to columns by their usual names; each header used at most once.

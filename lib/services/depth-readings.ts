@@ -17,12 +17,15 @@ import type { ReceivedForm } from '@/lib/api/multipart';
 import { auditActor, type Principal } from '@/lib/auth/principal';
 import { can } from '@/lib/auth/roles';
 import { decodeText } from '@/lib/ingest/decode-text';
-import { DEPTH_LIMITS, parseDepthCsv, type DepthColumnMap, type DepthCsvResult } from '@/lib/ingest/parse-depth-csv';
+import { parseDepthCsv, type DepthColumnMap, type DepthCsvResult } from '@/lib/ingest/parse-depth-csv';
+import { checkDepths, DEPTH_LIMITS, depthFromUploadSchema, type DepthReadingInput, type DepthReadingPatch } from '@/lib/records/depth-schemas';
 import { IngestError } from '@/lib/ingest/types';
-import { pointAnchorSchema, type PointAnchor, type PointAnchorInput } from '@/lib/records/anchor';
+import type { PointAnchor, PointAnchorInput } from '@/lib/records/anchor';
 import { coverCompliance } from '@/lib/records/depth-compliance';
 import { wallTimeToUtc } from '@/lib/records/zoned-time';
 import { resolvePointAnchor } from './record-anchors';
+
+export { depthFromUploadSchema, depthReadingPatchSchema, depthReadingSchema, measuredAtField } from '@/lib/records/depth-schemas';
 
 /**
  * The same rule the routes apply with `side: 'contractor'`, kept in the services too so that no other
@@ -34,46 +37,6 @@ export function assertRecordWriter(actor: Principal, project: Project): void {
     throw new AppError('forbidden', `Only the contractor's people (${project.contractorOrgName}) record what was built; the network owner's people read it.`);
   }
 }
-
-const depth = (what: string, lim: { min: number; max: number }) =>
-  z
-    .number({ message: `${what} must be a number of metres.` })
-    .min(lim.min, `${what} must be at least ${lim.min} m.`)
-    .max(lim.max, `${what} must be at most ${lim.max} m: depths are in metres.`);
-
-/** A time on the project's clock (`YYYY-MM-DDTHH:mm`, as a datetime field gives it) or with its own offset. */
-export const measuredAtField = z
-  .string()
-  .trim()
-  .regex(/^\d{4}-\d{2}-\d{2}[T ]\d{2}:\d{2}(:\d{2}(\.\d{1,3})?)?(Z|[+-]\d{2}:?\d{2})?$/, 'Give the time as YYYY-MM-DD HH:MM.');
-
-const readingFields = z.object({
-  coverM: depth('The cover', DEPTH_LIMITS.coverM).nullable().optional(),
-  trenchDepthM: depth('The trench depth', DEPTH_LIMITS.trenchDepthM).nullable().optional(),
-  measuredAt: measuredAtField.nullable().optional(),
-  note: z.string().trim().max(1000, 'Keep the note under 1000 characters.').optional(),
-});
-
-type Depths = { coverM?: number | null; trenchDepthM?: number | null };
-function checkDepths(v: Depths, ctx: z.RefinementCtx): void {
-  const cover = v.coverM ?? null;
-  const trench = v.trenchDepthM ?? null;
-  if (cover === null && trench === null) ctx.addIssue({ code: 'custom', path: ['coverM'], message: 'Give the cover, the trench depth or both.' });
-  if (cover !== null && trench !== null && cover > trench) ctx.addIssue({ code: 'custom', path: ['coverM'], message: 'The cover cannot be more than the trench depth.' });
-}
-
-/** A typed depth reading: where (route + chainage, or a position) and cover and/or trench depth. */
-export const depthReadingSchema = z.intersection(pointAnchorSchema, readingFields).superRefine(checkDepths);
-export type DepthReadingInput = z.infer<typeof depthReadingSchema>;
-
-/** A change to a reading: any of its fields; a new chainage or position moves it. */
-export const depthReadingPatchSchema = readingFields.extend({
-  routeId: z.uuid('Pick the route.').optional(),
-  chainageM: z.number().min(0).max(100_000).optional(),
-  lon: z.number().min(-180).max(180).optional(),
-  lat: z.number().min(-90).max(90).optional(),
-});
-export type DepthReadingPatch = z.infer<typeof depthReadingPatchSchema>;
 
 const invalid = (path: string, message: string) => new AppError('invalid', message, [{ path, message }]);
 
@@ -269,12 +232,6 @@ export async function importDepthCsv(db: Knex, actor: Principal, project: Projec
 }
 
 // ---- from an upload's attribute ----
-
-export const depthFromUploadSchema = z.object({
-  attribute: z.string().trim().min(1, 'Name the attribute that holds the depth.').max(200),
-  /** what the attribute measures: the cover (default) or the trench depth */
-  measures: z.enum(['cover', 'trench_depth']).default('cover'),
-});
 
 /** A number from an attribute value, or undefined when the value is empty (the feature does not carry it). */
 function attributeNumber(v: unknown): number | undefined | typeof NaN {
