@@ -2,6 +2,7 @@ import { randomUUID } from 'node:crypto';
 import { NextRequest } from 'next/server';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb, getDb } from '@/db/client';
+import { listProductionFacts } from '@/db/production';
 import { listBackfillMaterials } from '@/db/catalogues';
 import { AppError } from '@/lib/api/errors';
 import { byProjectRecord } from '@/lib/api/scopes';
@@ -84,6 +85,23 @@ describe('daily production', () => {
     expect(shown('2026-11-05', 'North')).toMatchObject({ restored_m: 40, backfilled_m: null });
     expect(shown('2026-11-02', '')).toMatchObject({ pits: 1 });
     expect((await projectProduction(db, plan.project, { from: '2026-11-04', to: '2026-11-04' })).map((d) => d.day)).toEqual(['2026-11-04']);
+  });
+
+  it('derives what it can when the crossings\' and pits\' tables are not there (their migrations are other parts\')', async () => {
+    let facts: Awaited<ReturnType<typeof listProductionFacts>> = [];
+    const undo = new Error('undo the renames');
+    await db.transaction(async (trx) => {
+      await trx.raw('ALTER TABLE road_crossings RENAME TO road_crossings_away');
+      await trx.raw('ALTER TABLE test_pits RENAME TO test_pits_away');
+      facts = await listProductionFacts(trx, plan.project.id, plan.project.timeZone);
+      throw undo;
+    }).catch((e: unknown) => {
+      if (e !== undo) throw e;
+    });
+    expect(facts.some((f) => f.quantity === 'crossings' || f.quantity === 'pits')).toBe(false);
+    expect(facts.filter((f) => f.quantity === 'laid_m').reduce((s, f) => s + f.value, 0)).toBe(200);
+    // and the tables are back
+    expect(await count(db, 'test_pits')).toBeGreaterThan(0);
   });
 
   it('shows a correction in place of the derived figure, with the derived one and the reason, and audits it', async () => {
