@@ -105,7 +105,7 @@ export default async function ProductionPage({ params, searchParams }: { params:
           <Card title="Corrections">
             <div className="flex flex-col gap-6">
               <DataTable columns={correctionColumns} rows={correctionRows} label="Production corrections" empty="No figure corrected by hand." />
-              {canWrite ? <ProductionCorrectionForm projectId={project.id} crews={crews} /> : <p className="text-sm text-ink-soft"><Badge tone="muted">read only</Badge> The contractor&apos;s people correct figures.</p>}
+              {canWrite ? <ProductionCorrectionForm projectId={project.id} crews={crews} system={system} /> : <p className="text-sm text-ink-soft"><Badge tone="muted">read only</Badge> The contractor&apos;s people correct figures.</p>}
             </div>
           </Card>
         )}
