@@ -37,6 +37,7 @@ function sampleRows(text: string, rows = 6): string[][] {
 const COLUMN_ROLES: [string, string][] = [
   ['id', 'Point id'], ['x', 'Easting'], ['y', 'Northing'], ['lat', 'Latitude'], ['lon', 'Longitude'], ['z', 'Height'],
   ['code', 'Code'], ['line', 'Line id'], ['date', 'Date'], ['fix', 'Fix type'], ['rmsH', 'Horizontal RMS'], ['rmsV', 'Vertical RMS'],
+  ['depth', 'Depth (cover, m)'],
 ];
 
 const SHAPE_PARTS = /\.(shp|shx|dbf|prj|cpg|sbn|sbx|qix|xml)$/i;

@@ -22,6 +22,7 @@ const ALIASES: Record<keyof ColumnMap, string[]> = {
   fix: ['fix', 'solution', 'fix_type', 'solution_type', 'status'],
   rmsH: ['rms_h', 'hrms', 'h_rms', 'sigma_h', 'hsdv', 'h_prec'],
   rmsV: ['rms_v', 'vrms', 'v_rms', 'sigma_v', 'vsdv', 'v_prec'],
+  depth: ['depth', 'cover', 'cover_m', 'cover_depth', 'depth_m', 'doc'],
 };
 const norm = (h: string) => h.trim().toLowerCase().replace(/[\s.-]+/g, '_').replace(/^_|_$/g, '');
 

@@ -10,7 +10,8 @@ export interface Row {
   get: (key: keyof ColumnMap) => string | null;
 }
 
-const EXTRA_KEYS = [['id', 'id'], ['code', 'code'], ['fix', 'fix'], ['rmsH', 'rms_h'], ['rmsV', 'rms_v']] as const;
+const EXTRA_KEYS = [['id', 'id'], ['code', 'code'], ['fix', 'fix'], ['rmsH', 'rms_h'], ['rmsV', 'rms_v'], ['depth', 'depth']] as const;
+const numeric = (k: string) => k.startsWith('rms') || k === 'depth';
 
 /**
  * Turn rows into features, in file order. With a line column, rows sharing a non-empty line id
@@ -36,7 +37,7 @@ export function buildFeatures(rows: Row[], positions: Position[], map: ColumnMap
   const pointOf = (i: number): ParsedFeature => {
     const r = rows[i];
     const attributes: Record<string, unknown> = { row: r.line };
-    for (const [k, out] of EXTRA_KEYS) if (map[k] && k !== 'id') attributes[out] = k.startsWith('rms') ? rmsNum(r.get(k)) : r.get(k);
+    for (const [k, out] of EXTRA_KEYS) if (map[k] && k !== 'id') attributes[out] = numeric(k) ? rmsNum(r.get(k)) : r.get(k);
     if (map.line) attributes.line = r.get('line');
     return { kind: 'point', name: r.get('id'), coord: positions[i], time: map.date ? toUtcIso(r.get('date')) : null, attributes };
   };
@@ -54,7 +55,7 @@ export function buildFeatures(rows: Row[], positions: Position[], map: ColumnMap
     emitted.add(k);
     const pointAttributes: Record<string, (string | number | null)[]> = {};
     for (const [key, name] of EXTRA_KEYS) {
-      if (map[key]) pointAttributes[name] = members.map((m) => (key.startsWith('rms') ? rmsNum(rows[m].get(key)) : rows[m].get(key)));
+      if (map[key]) pointAttributes[name] = members.map((m) => (numeric(key) ? rmsNum(rows[m].get(key)) : rows[m].get(key)));
     }
     const times = map.date ? members.map((m) => toUtcIso(rows[m].get('date'))) : null;
     out.push({

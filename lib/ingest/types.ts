@@ -43,6 +43,8 @@ export interface ColumnMap {
   fix?: string;
   rmsH?: string;
   rmsV?: string;
+  /** a depth shot's cover (m), kept on each point as `depth` for depth readings taken from the upload */
+  depth?: string;
 }
 
 export interface ParsedUpload {

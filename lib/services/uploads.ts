@@ -35,7 +35,7 @@ export const UPLOAD_CONTENTS = ['trench', 'road_crossings', 'test_pits', 'depth_
 const columnMapSchema = z
   .object({
     id: z.string(), x: z.string(), y: z.string(), z: z.string(), lat: z.string(), lon: z.string(), code: z.string(),
-    line: z.string(), date: z.string(), fix: z.string(), rmsH: z.string(), rmsV: z.string(),
+    line: z.string(), date: z.string(), fix: z.string(), rmsH: z.string(), rmsV: z.string(), depth: z.string(),
   })
   .partial()
   .strict();

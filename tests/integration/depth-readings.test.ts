@@ -320,6 +320,22 @@ describe('depth readings from an upload attribute', () => {
     }
   });
 
+  it('takes the depth column of a survey CSV offered in its column mapping, from points and line vertices', async () => {
+    const ll = (s: number) => at(0, s).slice().reverse().join(',');
+    const csv = ['pt,lat,lon,cover,line', `1,${ll(92)},0.45,L1`, `2,${ll(96)},0.39,L1`, `3,${ll(104)},0.5,`, `4,${ll(108)},,`].join('\n') + '\n';
+    const form = await formOf([{ name: 'shots-with-cover.csv', bytes: csv }], { surveyDate: '2026-11-04' });
+    const { upload } = await receiveUpload(db, surveyor, project, form);
+    await form.cleanup();
+    expect((upload.columns as { map: Record<string, string> }).map.depth).toBe('cover');
+    const out = await depthReadingsFromUpload(db, surveyor, project, upload.id, depthFromUploadSchema.parse({ attribute: 'depth' }));
+    expect(out.readings.map((r) => [r.routeRef, Math.round(r.chainageM), r.coverM, r.sourceVertex])).toEqual([
+      ['D-2', 92, 0.45, 1],
+      ['D-2', 96, 0.39, 2],
+      ['D-2', 104, 0.5, null],
+    ]);
+    expect(out.readings[2].sourceRow).toBe(4);
+  });
+
   it('refuses the whole upload when a value is not a depth, storing nothing', async () => {
     const gj = { type: 'FeatureCollection', features: [
       { type: 'Feature', properties: { cover_m: 0.4 }, geometry: { type: 'Point', coordinates: at(0, 20) } },
