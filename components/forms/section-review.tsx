@@ -7,9 +7,10 @@ import { callApi } from './api-client';
 
 /**
  * Review one section: approve or reject a built stretch; acknowledge a not-built one (settled, with the
- * reason) or reject it. A comment is required for all but approval.
+ * reason) or reject it. A comment is required for all but approval, and for an approval while quality checks
+ * on the stretch are open (the server refuses it otherwise, and keeps the comment in the audit log).
  */
-export function SectionReview({ sections, notBuilt = false }: { sections: { id: string; label: string; review: string }[]; notBuilt?: boolean }) {
+export function SectionReview({ sections, notBuilt = false, openChecks = 0 }: { sections: { id: string; label: string; review: string }[]; notBuilt?: boolean; openChecks?: number }) {
   const router = useRouter();
   const [error, setError] = useState<string | null>(null);
   const [done, setDone] = useState<string | null>(null);
@@ -39,7 +40,11 @@ export function SectionReview({ sections, notBuilt = false }: { sections: { id: 
           </Select>
         </Field>
       )}
-      <Field label={notBuilt ? 'Reason (why it is not built, or why it must be)' : 'Comment'} htmlFor="review-comment" error={error ?? undefined}>
+      <Field
+        label={notBuilt ? 'Reason (why it is not built, or why it must be)' : openChecks > 0 ? `Comment (required: ${openChecks} open quality check${openChecks === 1 ? '' : 's'})` : 'Comment'}
+        htmlFor="review-comment"
+        error={error ?? undefined}
+      >
         <Input id="review-comment" name="comment" aria-invalid={!!error} />
       </Field>
       <div className="flex flex-wrap items-end gap-2 sm:col-span-2">

@@ -14,6 +14,9 @@ import { applyExclusions } from '@/lib/matching/apply-exclusions';
 import { getUpload, listUploadExclusions, listUploadTraces } from '@/db/uploads';
 import { toMatchingExclusion } from './exclusions';
 import { getJob } from '@/db/jobs';
+import { CHECKS, findingsOnStretch, type CheckFinding } from '@/lib/records/quality-checks';
+import { projectFindings } from './quality-checks';
+import { sectionRecordsAndChecks } from './section-records';
 
 const SURVEY_GRADE = new Set(['rtk_gnss', 'total_station']);
 // what is matched onto the plan: the trench line and road crossings; test pits and depth shots are records
@@ -108,14 +111,34 @@ export function reviewRefusal(s: Pick<Section, 'status' | 'retiredInRun'>, decis
   return null;
 }
 
+/** The open quality checks of each section about to be approved, by section id (sections with none left out). */
+async function openChecksOf(trx: Knex.Transaction, projectId: string, sections: Section[]): Promise<Map<string, CheckFinding[]>> {
+  const project = (await getProject(trx, projectId))!;
+  const all = await projectFindings(trx, project);
+  const out = new Map<string, CheckFinding[]>();
+  for (const s of sections) {
+    const open = findingsOnStretch(all, s.plannedRouteRef, s.fromChainageM, s.toChainageM);
+    if (open.length) out.set(s.id, open);
+  }
+  return out;
+}
+
+const checkNames = (open: CheckFinding[]) => [...new Set(open.map((f) => CHECKS[f.check].label.toLowerCase()))].join('; ');
+const OPEN_CHECKS_NEED_COMMENT = (n: number, open: CheckFinding[]) =>
+  `This section has ${n} open quality check${n === 1 ? '' : 's'} (${checkNames(open)}): confirm the approval with a comment saying why it is acceptable.`;
+
 export async function reviewSection(db: Knex, actor: Principal, sectionId: string, input: z.infer<typeof reviewSchema>) {
   return db.transaction(async (trx) => {
     const [before] = await getSectionsForUpdate(trx, [sectionId]);
     const refusal = reviewRefusal(before, input.decision);
     if (refusal) throw new AppError('conflict', refusal);
+    const open = input.decision === 'approve' ? ((await openChecksOf(trx, before.projectId, [before])).get(sectionId) ?? []) : [];
+    if (open.length && input.comment.length < 3) {
+      throw new AppError('invalid', OPEN_CHECKS_NEED_COMMENT(open.length, open), [{ path: 'comment', message: OPEN_CHECKS_NEED_COMMENT(open.length, open) }]);
+    }
     const review = REVIEW_OF[input.decision];
     await setSectionReview(trx, sectionId, review, input.comment, actor.id);
-    await writeAudit(trx, auditActor(actor), { projectId: before.projectId, objectType: 'section', objectId: sectionId, action: `review_${review}`, before: { review: before.review }, after: { review, comment: input.comment } });
+    await writeAudit(trx, auditActor(actor), { projectId: before.projectId, objectType: 'section', objectId: sectionId, action: `review_${review}`, before: { review: before.review }, after: { review, comment: input.comment, ...(open.length ? { openChecks: open.map((f) => f.message) } : {}) } });
     return (await getSection(trx, sectionId))!;
   });
 }
@@ -136,11 +159,21 @@ export async function reviewSections(db: Knex, actor: Principal, projectId: stri
       if (refusal) problems.push({ path: `sectionIds.${i}`, message: `${s ? `${s.plannedRouteRef ?? 'unplanned'} ${s.fromChainageM.toFixed(0)}–${s.toChainageM.toFixed(0)} m` : id}: ${refusal}` });
     });
     if (problems.length) throw new AppError('conflict', `${problems.length} of the ${ids.length} sections cannot be ${REVIEW_OF[input.decision]}; nothing was changed.`, problems);
+    const open = input.decision === 'approve' ? await openChecksOf(trx, projectId, [...found.values()]) : new Map<string, CheckFinding[]>();
+    if (open.size && input.comment.length < 3) {
+      const details = ids.flatMap((id, i) => {
+        const f = open.get(id);
+        const s = found.get(id)!;
+        return f ? [{ path: `sectionIds.${i}`, message: `${s.plannedRouteRef ?? 'unplanned'} ${s.fromChainageM.toFixed(0)}–${s.toChainageM.toFixed(0)} m: ${OPEN_CHECKS_NEED_COMMENT(f.length, f)}` }] : [];
+      });
+      throw new AppError('invalid', `${open.size} of the ${ids.length} sections have open quality checks: approve them with a comment saying why; nothing was changed.`, [{ path: 'comment', message: 'Open quality checks: say why you approve.' }, ...details]);
+    }
     const review = REVIEW_OF[input.decision];
     await setSectionsReview(trx, ids, review, input.comment, actor.id);
     const who = auditActor(actor);
     for (const id of ids) {
-      await writeAudit(trx, who, { projectId, objectType: 'section', objectId: id, action: `review_${review}`, before: { review: found.get(id)!.review }, after: { review, comment: input.comment, bulk: ids.length } });
+      const openHere = open.get(id);
+      await writeAudit(trx, who, { projectId, objectType: 'section', objectId: id, action: `review_${review}`, before: { review: found.get(id)!.review }, after: { review, comment: input.comment, bulk: ids.length, ...(openHere ? { openChecks: openHere.map((f) => f.message) } : {}) } });
     }
     return { reviewed: ids.length, review };
   });
@@ -218,6 +251,7 @@ export async function sectionDetail(db: Knex, sectionId: string) {
   const sources = uploads.map((u) => ({ id: u.id, fileName: u.fileName, accuracyClass: u.accuracyClass, sigmaM: u.sigmaM, surveyDate: u.surveyDate, crew: u.crew, status: u.status, wonHere: s.sourceUploadIds.includes(u.id) }));
   const { before, after } = await neighbourSections(db, s);
   const corrections = (await listCorrections(db, s.projectId)).filter((c) => c.sectionId === s.id || s.correctionIds.includes(c.id));
+  const { records, openChecks } = await sectionRecordsAndChecks(db, project, s);
   return {
     section: { ...sectionFeature(s).properties, id: s.id, reviewComment: s.reviewComment, note: s.note, derivedFrom: s.derivedFrom, firstRun: s.firstRun, lastRun: s.lastRun, retiredInRun: s.retiredInRun, geometry: { type: 'LineString' as const, coordinates: s.coords } },
     route: route && { ref: route.ref, street: route.street, ducts: route.ducts, kind: route.kind, lengthM: round(route.lengthM), removedInVersion: route.removedInVersion, geometry: { type: 'LineString' as const, coordinates: route.coords } },
@@ -226,6 +260,8 @@ export async function sectionDetail(db: Knex, sectionId: string) {
     sources,
     neighbours: { before: before && { id: before.id, status: before.status, fromChainageM: before.fromChainageM, toChainageM: before.toChainageM }, after: after && { id: after.id, status: after.status, fromChainageM: after.fromChainageM, toChainageM: after.toChainageM } },
     corrections,
+    records,
+    openChecks,
   };
 }
 export type SectionDetail = Awaited<ReturnType<typeof sectionDetail>>;

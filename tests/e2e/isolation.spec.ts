@@ -106,6 +106,15 @@ const MATRIX: Record<string, Row | PublicRow> = {
     },
   },
   'GET /api/me': { url: () => '/api/me', foreign: NO_OBJECT, denied: ALL_ROLES, allowed: 'maintenance', success: 200 },
+  'PATCH /api/me': { url: () => '/api/me', foreign: { na: 'a person changes only their own units' }, denied: ALL_ROLES, allowed: 'maintenance', body: () => ({ unitSystem: null }), success: 200 },
+  // ---- trench records: quality checks (lead) ----
+  'GET /api/projects/[projectId]/checks': {
+    url: (c) => `/api/projects/${c.projectId}/checks`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/checks`,
+    denied: ALL_ROLES,
+    allowed: 'owner',
+    success: 200,
+  },
   'GET /api/projects': { url: () => '/api/projects', foreign: NO_OBJECT, denied: ALL_ROLES, allowed: 'surveyor', success: 200 },
   'POST /api/projects': {
     url: () => '/api/projects',

@@ -21,6 +21,8 @@ import { Badge, Card, Notice, PageHeader } from '@/components/ui/primitives';
 import { PLANNED_COLOUR, REVIEW_STYLE, STATUS_STYLE } from '@/components/ui/section-status';
 import { R95_FACTOR } from '@/lib/records/accuracy-classes';
 import { formatInZone } from '@/lib/records/zoned-time';
+import { shownSystem } from '@/lib/records/units';
+import { SectionChecks, SectionRecordsCard } from '@/components/records/section-records';
 
 export const metadata: Metadata = { title: 'Section' };
 
@@ -183,12 +185,24 @@ export default async function SectionPage({ params }: { params: Promise<{ projec
             }))}
           />
         </Card>
+        {s.plannedRouteRef !== null && (
+          <SectionRecordsCard
+            records={d.records}
+            projectId={project.id}
+            system={shownSystem(me.unitSystem, project.unitSystem)}
+            minCoverM={project.minCoverDepthM}
+            timeZone={project.timeZone}
+            fromM={s.fromChainageM}
+            toM={s.toChainageM}
+          />
+        )}
+        {current && <SectionChecks findings={d.openChecks} />}
         {can(me.role, 'section.review') && current && (
           <Card title="Review">
             {s.status === 'not_built' && (
               <p className="mb-3 text-sm text-ink-soft">Nothing was laid here to approve. Acknowledge the stretch as not built, with the reason, to settle it; or reject it if it must still be built.</p>
             )}
-            <SectionReview sections={[{ id: s.id, label: title, review: s.review }]} notBuilt={s.status === 'not_built'} />
+            <SectionReview sections={[{ id: s.id, label: title, review: s.review }]} notBuilt={s.status === 'not_built'} openChecks={d.openChecks.length} />
           </Card>
         )}
         <Card title="Corrections">
