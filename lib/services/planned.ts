@@ -2,6 +2,7 @@ import { createHash, randomUUID } from 'node:crypto';
 import { readFile } from 'node:fs/promises';
 import type { Knex } from 'knex';
 import { z } from 'zod';
+import { refreshPlannedBundles } from './duct-bundles';
 import { writeAudit } from '@/db/audit';
 import {
   deriveExtentFromPlan,
@@ -122,6 +123,8 @@ export async function importPlan(db: Knex, actor: Principal, project: Project, f
       });
       const after = await trx('projects').where({ id: project.id }).first(trx.raw('ST_XMin(extent) as w, ST_YMin(extent) as s, ST_XMax(extent) as e, ST_YMax(extent) as n'));
       await writeAudit(trx, auditActor(actor), { projectId: project.id, objectType: 'project', objectId: project.id, action: 'extent_from_plan', before: { extent: before }, after: { extent: [after.w, after.s, after.e, after.n] } });
+      // the planned duct bundles follow the design's `ducts` attribute (audited when something changed)
+      await refreshPlannedBundles(trx, actor, project);
     });
   } catch (err) {
     await removeOriginals(stored);
