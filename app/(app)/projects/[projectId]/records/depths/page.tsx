@@ -3,6 +3,7 @@ import Link from 'next/link';
 import { getDb } from '@/db/client';
 import { listDepthReadings } from '@/db/depth-readings';
 import { listAnchorRoutes } from '@/db/record-anchors';
+import { listUploads } from '@/db/uploads';
 import { requireProjectPage } from '@/lib/auth/page-guards';
 import { can } from '@/lib/auth/roles';
 import { complianceCounts, coverCompliance } from '@/lib/records/depth-compliance';
@@ -14,6 +15,7 @@ import { DataTable, type Column, type Row } from '@/components/ui/data-table';
 import { DepthPlot } from '@/components/charts/depth-plot';
 import { DepthReadingForm } from '@/components/forms/depth-reading-form';
 import { DepthImport } from '@/components/forms/depth-import';
+import { TakeFromUpload } from '@/components/forms/take-from-upload';
 
 export const metadata: Metadata = { title: 'Depth readings' };
 
@@ -34,7 +36,8 @@ export default async function DepthsPage({ params }: { params: Promise<{ project
   const { projectId } = await params;
   const { me, project } = await requireProjectPage(projectId, 'record.read');
   const db = getDb();
-  const [readings, routes] = await Promise.all([listDepthReadings(db, project.id), listAnchorRoutes(db, project.id)]);
+  const [readings, routes, uploads] = await Promise.all([listDepthReadings(db, project.id), listAnchorRoutes(db, project.id), listUploads(db, project.id)]);
+  const stored = uploads.filter((u) => u.status === 'stored').map((u) => ({ id: u.id, label: `${u.fileName} (${u.createdAt.slice(0, 10)})` }));
   const system = shownSystem(me.unitSystem, project.unitSystem);
   const canWrite = can(me.role, 'record.write') && me.organisationId === project.contractorOrgId;
   const min = project.minCoverDepthM;
@@ -84,6 +87,9 @@ export default async function DepthsPage({ params }: { params: Promise<{ project
             </Card>
             <Card title="Import readings from a CSV">
               <DepthImport projectId={project.id} system={system} />
+            </Card>
+            <Card title="Take readings from an upload">
+              <TakeFromUpload projectId={project.id} path="depth-readings/from-upload" uploads={stored} field="attribute" label="Attribute holding the cover (m)" hint="A depth column of a shapefile, a GeoJSON property, or the depth column mapped in a survey CSV (named depth)." placeholder="depth" submitLabel="Take the readings" what={['reading', 'readings']} />
             </Card>
           </>
         ) : (

@@ -4,6 +4,7 @@ import { listUtilityKinds } from '@/db/catalogues';
 import { getDb } from '@/db/client';
 import { listAnchorRoutes } from '@/db/record-anchors';
 import { listTestPits, listUtilityCrossings } from '@/db/test-pits';
+import { listUploads } from '@/db/uploads';
 import { requireProjectPage } from '@/lib/auth/page-guards';
 import { can } from '@/lib/auth/roles';
 import { clearanceStatus } from '@/lib/records/utility-clearance';
@@ -12,6 +13,7 @@ import { Badge, Card, PageHeader } from '@/components/ui/primitives';
 import { Cautions } from '@/components/ui/cautions';
 import { DataTable, type Column, type Row } from '@/components/ui/data-table';
 import { TestPitForm, UtilityCrossingForm } from '@/components/forms/test-pit-forms';
+import { TakeFromUpload } from '@/components/forms/take-from-upload';
 
 export const metadata: Metadata = { title: 'Test pits and utilities' };
 
@@ -43,7 +45,8 @@ export default async function PitsPage({ params }: { params: Promise<{ projectId
   const { projectId } = await params;
   const { me, project } = await requireProjectPage(projectId, 'record.read');
   const db = getDb();
-  const [pits, crossings, routes, kinds] = await Promise.all([listTestPits(db, project.id), listUtilityCrossings(db, project.id), listAnchorRoutes(db, project.id), listUtilityKinds(db, project.id)]);
+  const [pits, crossings, routes, kinds, uploads] = await Promise.all([listTestPits(db, project.id), listUtilityCrossings(db, project.id), listAnchorRoutes(db, project.id), listUtilityKinds(db, project.id), listUploads(db, project.id)]);
+  const stored = uploads.filter((u) => u.status === 'stored').map((u) => ({ id: u.id, label: `${u.fileName} (${u.createdAt.slice(0, 10)})` }));
   const system = shownSystem(me.unitSystem, project.unitSystem);
   const canWrite = can(me.role, 'record.write') && me.organisationId === project.contractorOrgId;
   const min = project.records.minClearanceM;
@@ -111,6 +114,9 @@ export default async function PitsPage({ params }: { params: Promise<{ projectId
                 kinds={kinds.filter((k) => !k.retired).map((k) => ({ id: k.id, label: k.label }))}
                 pits={pits.map((p) => ({ id: p.id, label: `${p.name || 'unnamed pit'} · ${p.routeRef} ${formatQuantity(p.chainageM, 'length', system)}` }))}
               />
+            </Card>
+            <Card title="Take pits from an upload">
+              <TakeFromUpload projectId={project.id} path="test-pits/from-upload" uploads={stored} field="code" label="Code that marks a pit" hint="A survey point's code, or a GPX waypoint's type or name (PIT, PIT 3, PIT-04)." placeholder="PIT" submitLabel="Take the pits" what={['test pit', 'test pits']} />
             </Card>
           </div>
         ) : (
