@@ -82,7 +82,7 @@ export function SectionsReviewTable({ projectId, columns, rows, meta, reviewer }
           {picked.length === 0 ? 'Pick sections in the table to review them together.' : `${picked.length} picked${notBuilt ? `, ${notBuilt} of them not built` : ''}.`}
         </p>
         <div className="grid gap-3 sm:grid-cols-[1fr_auto] sm:items-end">
-          <Field label="Comment (the reason, to reject or acknowledge)" htmlFor="bulk-comment" error={error ?? undefined}>
+          <Field label="Comment (the reason, to reject or acknowledge; to approve sections with open quality checks)" htmlFor="bulk-comment" error={error ?? undefined}>
             <Input id="bulk-comment" value={comment} onChange={(e) => setComment(e.target.value)} aria-invalid={!!error} placeholder="e.g. not built: the owner withdrew the address" />
           </Field>
           <div className="flex flex-wrap gap-2">

@@ -73,7 +73,13 @@ test('an engineer sees dashes where nothing was measured, one colour per status,
   await mapReady(page);
   await page.screenshot({ path: path.join(SHOTS, 'reconciliation-desktop-before.png'), fullPage: true });
 
-  // approve every as-planned section shown at once
+  // approve every as-planned section shown at once: nothing is recorded in its trench yet (no depth reading,
+  // no duct bundle), so its quality checks are open and the approval needs a comment saying why
+  await expect(table.getByRole('row').filter({ hasText: 'as planned' })).toContainText(/\d+ open/);
+  await page.getByRole('button', { name: /^Approve (it|all \d+)$/ }).click();
+  const bulkComment = page.getByRole('group', { name: 'Review the picked sections' }).getByLabel(/Comment/);
+  await expect(page.getByText(/open quality checks: approve them with a comment/)).toBeVisible();
+  await bulkComment.fill('records follow with the next upload; position checked on site');
   await page.getByRole('button', { name: /^Approve (it|all \d+)$/ }).click();
   await expect(page.getByText('1 section approved.')).toBeVisible();
   await expect(table.getByRole('row').filter({ hasText: 'as planned' })).toContainText('approved');
@@ -97,6 +103,7 @@ test('an engineer sees dashes where nothing was measured, one colour per status,
     const row = rows.nth(i);
     if (!/approved|acknowledged/.test(await row.innerText())) await row.getByRole('checkbox').check();
   }
+  await bulk.getByLabel(/Comment/).fill('checked on site; records follow');
   await bulk.getByRole('button', { name: 'Approve' }).click();
   await expect(page.getByText(`Fully approved: all ${total} sections are settled (${total - 1} approved, 1 acknowledged as not built).`)).toBeVisible();
   await page.screenshot({ path: path.join(SHOTS, 'reconciliation-desktop-approved.png'), fullPage: true });

@@ -6,6 +6,8 @@ import { can } from '@/lib/auth/roles';
 import { formatLength } from '@/lib/records/units';
 import { plannedFeatureCollection } from '@/lib/services/planned';
 import { reviewProgress, sectionFeature, sectionTotals } from '@/lib/services/reconcile';
+import { projectFindings } from '@/lib/services/quality-checks';
+import { findingsOnStretch } from '@/lib/records/quality-checks';
 import { Card, Notice, PageHeader } from '@/components/ui/primitives';
 import { GeoMap, type MapLayer } from '@/components/map/geo-map';
 import { JobButton } from '@/components/forms/job-button';
@@ -18,7 +20,8 @@ export default async function ReconciliationPage({ params }: { params: Promise<{
   const { projectId } = await params;
   const { me, project } = await requireProjectPage(projectId, 'section.read');
   const db = getDb();
-  const [sections, planned] = await Promise.all([listCurrentSections(db, project.id), plannedFeatureCollection(db, project.id, false)]);
+  const [sections, planned, findings] = await Promise.all([listCurrentSections(db, project.id), plannedFeatureCollection(db, project.id, false), projectFindings(db, project)]);
+  const openChecks = (s: (typeof sections)[number]) => findingsOnStretch(findings, s.plannedRouteRef, s.fromChainageM, s.toChainageM).length;
   const totals = sectionTotals(sections);
   const features = sections.map(sectionFeature);
   const layers: MapLayer[] = [
@@ -86,6 +89,7 @@ export default async function ReconciliationPage({ params }: { params: Promise<{
               { key: 'status', label: 'Status' },
               // review beside status: on a narrow screen the columns that scroll away are the figures
               { key: 'review', label: 'Review' },
+              { key: 'checks', label: 'Open checks', align: 'right' },
               { key: 'max', label: 'Max offset', align: 'right' },
               { key: 'p95', label: 'P95 offset', align: 'right' },
               { key: 'acc', label: 'Accuracy (95 %)', align: 'right' },
@@ -109,6 +113,10 @@ export default async function ReconciliationPage({ params }: { params: Promise<{
                   sources: s.sourceUploadIds.length,
                   laid: s.laidOn ?? '—',
                   review: { text: REVIEW_STYLE[s.review].label, tone: REVIEW_STYLE[s.review].tone },
+                  checks: (() => {
+                    const n = openChecks(s);
+                    return n === 0 ? { text: 'none', tone: 'ok' as const, sort: 0 } : { text: `${n} open`, tone: 'warn' as const, sort: n, href: `/projects/${project.id}/sections/${s.id}` };
+                  })(),
                 },
               };
             })}
