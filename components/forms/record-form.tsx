@@ -14,7 +14,7 @@
 import { zodResolver } from '@hookform/resolvers/zod';
 import { useRouter } from 'next/navigation';
 import { useCallback, useEffect, useId, useRef, useState, type ReactNode } from 'react';
-import { useForm, useWatch, type FieldValues, type Path, type UseFormReturn } from 'react-hook-form';
+import { useForm, type FieldValues, type Path, type UseFormReturn } from 'react-hook-form';
 import type { z } from 'zod';
 import { Button, Field, Input, Notice, Select } from '@/components/ui/primitives';
 import { fromShown, toShown, unitOf, QUANTITIES, type Quantity, type UnitSystem } from '@/lib/records/units';
@@ -106,10 +106,14 @@ export function useRecordForm<S extends z.ZodType<FieldValues, FieldValues>>(opt
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [opts.draftKey]);
 
-  const values = useWatch({ control: form.control });
+  // every change a person makes (typed, picked, or set by a field such as "Use my position") goes to the
+  // draft; a reset (after saving, or discarding) names no field and writes nothing
   useEffect(() => {
-    if (loaded.current && form.formState.isDirty) writeDraft(opts.draftKey, values);
-  }, [values, opts.draftKey, form.formState.isDirty]);
+    const sub = form.watch((values, info) => {
+      if (loaded.current && info.name) writeDraft(opts.draftKey, values);
+    });
+    return () => sub.unsubscribe();
+  }, [form, opts.draftKey]);
 
   const send = useCallback(
     async (v: z.output<S>) => {

@@ -166,7 +166,7 @@ export async function reviewSections(db: Knex, actor: Principal, projectId: stri
         const s = found.get(id)!;
         return f ? [{ path: `sectionIds.${i}`, message: `${s.plannedRouteRef ?? 'unplanned'} ${s.fromChainageM.toFixed(0)}–${s.toChainageM.toFixed(0)} m: ${OPEN_CHECKS_NEED_COMMENT(f.length, f)}` }] : [];
       });
-      throw new AppError('invalid', `${open.size} of the ${ids.length} sections have open quality checks: approve them with a comment saying why; nothing was changed.`, [{ path: 'comment', message: 'Open quality checks: say why you approve.' }, ...details]);
+      throw new AppError('invalid', `${open.size} of the ${ids.length} sections have open quality checks: approve them with a comment saying why; nothing was changed.`, [{ path: 'comment', message: `${open.size} of the ${ids.length} sections have open quality checks: say why you approve them.` }, ...details]);
     }
     const review = REVIEW_OF[input.decision];
     await setSectionsReview(trx, ids, review, input.comment, actor.id);

@@ -78,7 +78,7 @@ test('an engineer sees dashes where nothing was measured, one colour per status,
   await expect(table.getByRole('row').filter({ hasText: 'as planned' })).toContainText(/\d+ open/);
   await page.getByRole('button', { name: /^Approve (it|all \d+)$/ }).click();
   const bulkComment = page.getByRole('group', { name: 'Review the picked sections' }).getByLabel(/Comment/);
-  await expect(page.getByText(/open quality checks: approve them with a comment/)).toBeVisible();
+  await expect(page.getByText(/sections have open quality checks: say why you approve them/)).toBeVisible();
   await bulkComment.fill('records follow with the next upload; position checked on site');
   await page.getByRole('button', { name: /^Approve (it|all \d+)$/ }).click();
   await expect(page.getByText('1 section approved.')).toBeVisible();
