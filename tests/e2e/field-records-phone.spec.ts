@@ -1,4 +1,5 @@
 import { expect, test, type Page } from '@playwright/test';
+// Named field-*: it runs before the isolation matrix, which reviews, splits and re-plans the demo's sections.
 import { DEMO, signIn } from '../helpers/e2e';
 
 // Issue 14's end-to-end case, on a phone at the kerb: a surveyor records a duct bundle and two depth readings
