@@ -1,4 +1,5 @@
 import { parse } from 'csv-parse/sync';
+import { guessByAliases } from './guess-columns';
 import { DEPTH_LIMITS } from '@/lib/records/depth-schemas';
 import { wallTimeToUtc } from '@/lib/records/zoned-time';
 import { guessDelimiter } from './guess-delimiter';
@@ -43,7 +44,6 @@ const ALIASES: Record<keyof DepthColumnMap, string[]> = {
   time: ['measured_at', 'datetime', 'date_time', 'timestamp', 'time', 'date'],
   note: ['note', 'notes', 'remark', 'remarks', 'comment', 'comments'],
 };
-const norm = (h: string) => h.trim().toLowerCase().replace(/[\s.-]+/g, '_').replace(/^_|_$/g, '');
 
 
 /**
@@ -51,19 +51,7 @@ const norm = (h: string) => h.trim().toLowerCase().replace(/[\s.-]+/g, '_').repl
  * `guessDepthColumns(['Route', 'Chainage', 'Cover'])` → `{ route: 'Route', chainage: 'Chainage', cover: 'Cover' }`
  */
 export function guessDepthColumns(headers: string[]): DepthColumnMap {
-  const map: DepthColumnMap = {};
-  const used = new Set<string>();
-  for (const key of DEPTH_COLUMN_KEYS) {
-    for (const alias of ALIASES[key]) {
-      const h = headers.find((x) => norm(x) === alias && !used.has(x));
-      if (h) {
-        map[key] = h;
-        used.add(h);
-        break;
-      }
-    }
-  }
-  return map;
+  return guessByAliases(headers, ALIASES) as DepthColumnMap;
 }
 
 export type Placement = { kind: 'position'; lon: number; lat: number } | { kind: 'chainage'; routeRef: string; chainageM: number };

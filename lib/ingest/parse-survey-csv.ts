@@ -1,4 +1,5 @@
 import { parse } from 'csv-parse/sync';
+import { guessByAliases } from './guess-columns';
 import { guessDelimiter } from './guess-delimiter';
 import { datumWarning, makeTransformer } from './reproject';
 import { resolveCrsName } from './resolve-crs';
@@ -24,7 +25,6 @@ const ALIASES: Record<keyof ColumnMap, string[]> = {
   rmsV: ['rms_v', 'vrms', 'v_rms', 'sigma_v', 'vsdv', 'v_prec'],
   depth: ['depth', 'cover', 'cover_m', 'cover_depth', 'depth_m', 'doc'],
 };
-const norm = (h: string) => h.trim().toLowerCase().replace(/[\s.-]+/g, '_').replace(/^_|_$/g, '');
 
 /**
  * Map headers to columns by their usual names; each header is used at most once.
@@ -33,19 +33,7 @@ const norm = (h: string) => h.trim().toLowerCase().replace(/[\s.-]+/g, '_').repl
  * guessColumns(['Pt', 'Easting', 'Northing', 'Elev', 'Code']); // { id: 'Pt', x: 'Easting', y: 'Northing', z: 'Elev', code: 'Code' }
  */
 export function guessColumns(headers: string[]): ColumnMap {
-  const map: ColumnMap = {};
-  const used = new Set<string>();
-  for (const key of Object.keys(ALIASES) as (keyof ColumnMap)[]) {
-    for (const alias of ALIASES[key]) {
-      const h = headers.find((x) => norm(x) === alias && !used.has(x));
-      if (h) {
-        map[key] = h;
-        used.add(h);
-        break;
-      }
-    }
-  }
-  return map;
+  return guessByAliases(headers, ALIASES) as ColumnMap;
 }
 
 
