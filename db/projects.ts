@@ -21,6 +21,8 @@ export interface Project {
   accuracySigmas: Partial<Record<AccuracyClass, number>>;
   /** the settings the trench records are checked against */
   records: RecordSettings;
+  /** how addresses are tied to routes and counted as passed */
+  households: HouseholdSettings;
   createdAt: string;
   updatedAt: string;
 }
@@ -40,6 +42,16 @@ export interface RecordSettings {
   colourSequenceId: string | null;
 }
 
+/** How addresses are tied to their serving route and counted as passed (project settings, not constants). */
+export interface HouseholdSettings {
+  /** how far from its serving street route an address may lie (m) */
+  serveDistanceM: number;
+  /** how far a built road crossing's route-side end may lie from an address's foot point to serve it (m) */
+  crossingServeDistanceM: number;
+  /** how far short of an address's foot point a built stretch may stop and still pass it (m) */
+  footToleranceM: number;
+}
+
 export interface ProjectValues {
   name: string;
   ownerOrgId: string;
@@ -54,6 +66,7 @@ export interface ProjectValues {
   defaultAccuracyClass: AccuracyClass;
   accuracySigmas?: Partial<Record<AccuracyClass, number>>;
   records?: Partial<RecordSettings>;
+  households?: Partial<HouseholdSettings>;
 }
 
 type JoinedRow = ProjectRow & {
@@ -92,6 +105,11 @@ const toDto = (r: JoinedRow): Project => ({
     compactionPassesDefault: r.compaction_passes_default,
     surfaceThicknessMm: r.surface_thickness_mm,
     colourSequenceId: r.colour_sequence_id,
+  },
+  households: {
+    serveDistanceM: r.serve_distance_m,
+    crossingServeDistanceM: r.crossing_serve_distance_m,
+    footToleranceM: r.foot_tolerance_m,
   },
   createdAt: r.created_at.toISOString(),
   updatedAt: r.updated_at.toISOString(),
@@ -145,6 +163,10 @@ function toColumns(db: Db, v: Partial<ProjectValues>): Record<string, unknown> {
     ['colourSequenceId', 'colour_sequence_id'],
   ];
   for (const [k, col] of recordColumns) if (r[k] !== undefined) c[col] = r[k];
+  const h = v.households ?? {};
+  if (h.serveDistanceM !== undefined) c.serve_distance_m = h.serveDistanceM;
+  if (h.crossingServeDistanceM !== undefined) c.crossing_serve_distance_m = h.crossingServeDistanceM;
+  if (h.footToleranceM !== undefined) c.foot_tolerance_m = h.footToleranceM;
   return c;
 }
 

@@ -77,6 +77,9 @@ export interface ProjectRow {
   compaction_passes_default: number;
   surface_thickness_mm: number;
   colour_sequence_id: string | null;
+  serve_distance_m: number;
+  crossing_serve_distance_m: number;
+  foot_tolerance_m: number;
   created_at: Date;
   updated_at: Date;
 }

@@ -7,7 +7,7 @@ export interface NavItem {
 
 /** What each role finds in the top navigation. Later capabilities add their entries here. */
 export function navigationFor(role: Role): NavItem[] {
-  const items: NavItem[] = [{ href: '/projects', label: 'Projects' }];
+  const items: NavItem[] = [{ href: '/projects', label: 'Projects' }, { href: '/lookup', label: 'Duct lookup' }];
   if (role === 'admin') {
     items.push({ href: '/admin/users', label: 'People' }, { href: '/admin/activity', label: 'Activity' });
   }

@@ -44,6 +44,13 @@ export const PERMISSIONS = {
   // catalogues (duct sizes, colour sequences, utility kinds, backfill materials) per project
   'catalogue.manage': ['admin', 'engineer'],
   'check.read': ALL,
+  // the address register and households passed: admins and engineers import, the contractor's people record
+  // drops as installed (routes add side: 'contractor'), everyone who sees the project reads
+  'address.read': ALL,
+  'address.import': ['admin', 'engineer'],
+  'address.connect': ['admin', 'engineer', 'surveyor'],
+  // the duct lookup at an address, across every project the organisation sees
+  'lookup.read': ALL,
 } as const satisfies Record<string, readonly Role[]>;
 
 export type Action = keyof typeof PERMISSIONS;

@@ -1,6 +1,7 @@
 import type { Knex } from 'knex';
 import type { Action } from '@/lib/auth/roles';
 import { exportAuditLog } from './audit-export';
+import { householdsJob } from './households-job';
 import { reconcileJob } from './reconcile-job';
 
 export interface JobContext {
@@ -24,6 +25,7 @@ export interface JobKindSpec {
 export const JOB_KINDS = {
   'audit-export': { run: exportAuditLog, action: 'audit.export' },
   reconcile: { run: reconcileJob, action: 'reconcile.run' },
+  households: { run: householdsJob, action: 'address.read' },
 } satisfies Record<string, JobKindSpec>;
 
 export type JobKind = keyof typeof JOB_KINDS;

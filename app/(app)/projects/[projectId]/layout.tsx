@@ -12,6 +12,7 @@ export default async function ProjectLayout({ children, params }: { children: Re
     { href: `${base}/reconciliation`, label: 'Planned against built' },
     { href: `${base}/records`, label: 'Trench records' },
     { href: `${base}/checks`, label: 'Quality checks' },
+    { href: `${base}/households`, label: 'Households' },
   ];
   if (can(me.role, 'project.manage')) items.push({ href: `${base}/settings`, label: 'Settings' });
   if (can(me.role, 'audit.read')) items.push({ href: `${base}/activity`, label: 'Activity log' });
