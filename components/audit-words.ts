@@ -270,6 +270,10 @@ export function describeAudit(e: AuditLike): string {
       return `Matched the uploads to the plan: ${Number(a.matched ?? 0).toLocaleString('en-GB')} of ${plural(Number(a.fixes ?? 0), 'fix', 'fixes')} on a planned route; ${plural(Number(a.sections ?? 0), 'section')} (${Number(a.created ?? 0)} new, ${Number(a.retired ?? 0)} retired).`;
     case 'plan_version import':
       return `Imported version ${say(a.version)} of the planned network: ${plural(Number(a.routes ?? 0), 'route')}; ${Number(a.added ?? 0)} added, ${Number(a.removed ?? 0)} removed, ${Number(a.reshaped ?? 0)} reshaped, ${Number(a.retagged ?? 0)} retagged.`;
+    case 'address_import import': {
+      const what = a.partial ? 'Imported part of the address register (added and updated only)' : 'Imported the address register';
+      return `${what} from ${say(a.fileName)}: ${plural(Number(a.rows ?? 0), 'address', 'addresses')}; ${['added', 'changed', 'removed', 'restored', 'unchanged'].map((k) => `${Number(a[k] ?? 0).toLocaleString('en-GB')} ${k}`).join(', ')}.`;
+    }
     case 'upload create': {
       const names = say(a.fileName);
       if (a.status === 'failed') return `Uploaded ${names}; it was refused (${REFUSAL[String(a.error)] ?? say(a.error)}) and kept for another try.`;

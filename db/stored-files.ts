@@ -11,6 +11,8 @@ const ORIGINAL_KEY_COLUMNS = [
   // photos (issue 14): the original and its thumbnail
   { table: 'photos', column: 'storage_key' },
   { table: 'photos', column: 'thumbnail_key' },
+  // the address register's imports (issue 15)
+  { table: 'address_imports', column: 'storage_key' },
 ] as const;
 
 /** Of the given keys of the originals store, those a committed row names. */

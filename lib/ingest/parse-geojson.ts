@@ -7,7 +7,7 @@ import { badTimesError, timesToUtc, timeToUtc, type BadTime } from './utc-time';
 
 const GEOMETRY_TYPES = new Set(['Point', 'MultiPoint', 'LineString', 'MultiLineString', 'Polygon', 'MultiPolygon', 'GeometryCollection']);
 
-function parseJson(text: string): unknown {
+export function parseJson(text: string): unknown {
   try {
     return JSON.parse(text);
   } catch (e) {
@@ -34,7 +34,7 @@ function isNumberArray(a: unknown, min: number): a is number[] {
   return Array.isArray(a) && a.length >= min && a.every((v) => typeof v === 'number' && Number.isFinite(v));
 }
 
-async function sourceCrs(root: Record<string, unknown>, opts: ParseOptions, warnings: string[]): Promise<CrsDefinition | null> {
+export async function sourceCrs(root: Record<string, unknown>, opts: ParseOptions, warnings: string[]): Promise<CrsDefinition | null> {
   const legacy = legacyCrs(root);
   if (opts.crs) {
     const def = await resolveCrsName(opts.crs, opts.resolveCrs);

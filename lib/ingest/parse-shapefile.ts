@@ -8,20 +8,20 @@ import { resolveCode, resolveCrsName } from './resolve-crs';
 import { outOfRange, positionProblem, type RangeProblem } from './validate-coords';
 import { IngestError, type CrsDefinition, type IngestLimits, type ParseOptions, type ParsedFeature, type ParsedUpload, type Position } from './types';
 
-interface PartFile {
+export interface PartFile {
   name: string;
   bytes: Buffer;
 }
-type Ext = 'shp' | 'shx' | 'dbf' | 'prj' | 'cpg';
-type ShapeSet = { base: string } & Partial<Record<Ext, PartFile>>;
+export type Ext = 'shp' | 'shx' | 'dbf' | 'prj' | 'cpg';
+export type ShapeSet = { base: string } & Partial<Record<Ext, PartFile>>;
 
-const PART = /^(.*)\.(shp|shx|dbf|prj|cpg)$/i;
+export const SHAPEFILE_PART = /^(.*)\.(shp|shx|dbf|prj|cpg)$/i;
 
 /** Group files into sets by name without extension; the name pairs the parts of one set. */
-function groupSets(files: PartFile[]): ShapeSet[] {
+export function groupSets(files: PartFile[]): ShapeSet[] {
   const sets = new Map<string, ShapeSet>();
   for (const f of files) {
-    const m = PART.exec(f.name);
+    const m = SHAPEFILE_PART.exec(f.name);
     if (!m) continue;
     const key = m[1].toLowerCase();
     const set = sets.get(key) ?? { base: m[1] };
@@ -31,7 +31,7 @@ function groupSets(files: PartFile[]): ShapeSet[] {
   return [...sets.values()];
 }
 
-async function crsFor(set: ShapeSet, opts: ParseOptions): Promise<CrsDefinition> {
+export async function crsFor(set: ShapeSet, opts: ParseOptions): Promise<CrsDefinition> {
   if (opts.crs) return resolveCrsName(opts.crs, opts.resolveCrs);
   const label = `'${set.base}.shp'`;
   if (!set.prj) throw new IngestError('crs_required', `the shapefile ${label} has no readable .prj; send the EPSG code in the crs field`);
@@ -48,7 +48,7 @@ async function crsFor(set: ShapeSet, opts: ParseOptions): Promise<CrsDefinition>
   return def;
 }
 
-function attributeValue(v: unknown): unknown {
+export function attributeValue(v: unknown): unknown {
   if (v instanceof Date) {
     // parsedbf builds dates at local midnight: read them back in local time to keep the calendar day
     return Number.isNaN(v.getTime()) ? null : `${v.getFullYear()}-${String(v.getMonth() + 1).padStart(2, '0')}-${String(v.getDate()).padStart(2, '0')}`;
@@ -152,6 +152,6 @@ export async function parseShapefile(files: PartFile[], opts: ParseOptions): Pro
  * await parseZippedShapefile(zipBytes, opts);
  */
 export async function parseZippedShapefile(bytes: Buffer, opts: ParseOptions & { limits: IngestLimits }): Promise<ParsedUpload> {
-  const entries = await readZip(bytes, opts.limits, (n) => PART.test(n));
+  const entries = await readZip(bytes, opts.limits, (n) => SHAPEFILE_PART.test(n));
   return parseShapefile(entries, opts);
 }

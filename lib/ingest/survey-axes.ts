@@ -26,7 +26,7 @@ const fmt = (p: Position) => `${p[1].toFixed(5)}, ${p[0].toFixed(5)}`;
  * projection within a metre, and for transverse Mercator it lies within 15° of the central
  * meridian (zones are a few degrees wide; far outside, the projection's series break down).
  */
-function projectedGood(def: CrsDefinition): (p: Position, src: [number, number]) => boolean {
+export function projectedGood(def: CrsDefinition): (p: Position, src: [number, number]) => boolean {
   const back = proj4('+proj=longlat +datum=WGS84 +no_defs', def.proj4);
   const info = proj4.Proj(def.proj4) as unknown as { projName?: string; long0?: number };
   const tm = ['utm', 'tmerc', 'etmerc'].includes(String(info.projName));

@@ -60,6 +60,15 @@ describe('the activity log in words', () => {
     expect(words('plan_version')).toBe('plan version');
   });
 
+  it('tells address register imports, whole and partial', () => {
+    expect(describeAudit({ objectType: 'address_import', action: 'import', before: null, after: { fileName: 'register.csv', rows: 1200, added: 3, changed: 2, removed: 1, restored: 1, unchanged: 1194 } })).toBe(
+      'Imported the address register from register.csv: 1,200 addresses; 3 added, 2 changed, 1 removed, 1 restored, 1,194 unchanged.',
+    );
+    expect(describeAudit({ objectType: 'address_import', action: 'import', before: null, after: { fileName: 'new-homes.geojson', partial: true, rows: 1, added: 1, changed: 0, removed: 0, restored: 0, unchanged: 0 } })).toBe(
+      'Imported part of the address register (added and updated only) from new-homes.geojson: 1 address; 1 added, 0 changed, 0 removed, 0 restored, 0 unchanged.',
+    );
+  });
+
   it('tells section reviews, one at a time and in bulk', () => {
     expect(describeAudit({ objectType: 'section', action: 'review_approved', before: { review: 'pending' }, after: { review: 'approved', comment: 'Checked on site' } })).toBe('Approved the section. Comment: Checked on site.');
     expect(describeAudit({ objectType: 'section', action: 'review_approved', before: { review: 'pending' }, after: { review: 'approved', bulk: 12 } })).toBe('Approved the section (one of 12 reviewed together).');
