@@ -1,3 +1,4 @@
+import { getAddressImport } from '@/db/address-imports';
 import { getCorrection } from '@/db/corrections';
 import type { Db } from '@/db/client';
 import { getJob } from '@/db/jobs';
@@ -68,4 +69,11 @@ export function byProjectRecord(table: string, param: string) {
     const row = await db(table).where({ id: params[param] }).first('project_id');
     return row && row.project_id === params.projectId ? { projectId: row.project_id } : undefined;
   };
+}
+
+/** An address import belongs to its project. */
+export async function byAddressImportParam(params: Record<string, string>, db: Db): Promise<Scope | undefined> {
+  if (!isUuid(params.importId)) return undefined;
+  const imp = await getAddressImport(db, params.importId);
+  return imp && { projectId: imp.projectId };
 }

@@ -752,6 +752,31 @@ const MATRIX: Record<string, Row | PublicRow> = {
     success: 200,
   },
   // ---- end of depth readings, test pits and utility crossings ----
+  // ---- households: the address register's import (helper A) ----
+  'POST /api/projects/[projectId]/addresses': {
+    url: () => `/api/projects/${ap.projectId}/addresses`,
+    foreign: () => `/api/projects/${ap.foreignProjectId}/addresses`,
+    denied: 'surveyor',
+    // the owner's admin may import the register too (no contractor-side restriction)
+    allowed: 'admin',
+    body: () => addressForm(`M-${Date.now()}`),
+    success: 201,
+  },
+  'GET /api/projects/[projectId]/address-imports': {
+    url: () => `/api/projects/${ap.projectId}/address-imports`,
+    foreign: () => `/api/projects/${ap.foreignProjectId}/address-imports`,
+    denied: ALL_ROLES,
+    allowed: 'maintenance',
+    success: 200,
+  },
+  'GET /api/address-imports/[importId]/original': {
+    url: () => `/api/address-imports/${ap.importId}/original`,
+    foreign: () => `/api/address-imports/${ap.foreignImportId}/original`,
+    denied: ALL_ROLES,
+    allowed: 'owner',
+    success: 200,
+  },
+  // ---- end of the address register's import ----
   'GET /api/crs': { url: () => '/api/crs?q=25832', foreign: NO_OBJECT, denied: ALL_ROLES, allowed: 'surveyor', success: 200 },
   'GET /api/audit': { url: () => '/api/audit', foreign: NO_OBJECT, denied: 'maintenance', allowed: 'admin', success: 200 },
 };
@@ -881,6 +906,21 @@ interface DepthsCtx {
 }
 let dx: DepthsCtx;
 // ---- end of depth readings, test pits and utility crossings ----
+
+// ---- households: the address register's import (helper A) ----
+interface AddressImportCtx {
+  /** a project between the demo owner and contractor, so the demo's own register is left alone */
+  projectId: string;
+  foreignProjectId: string;
+  importId: string;
+  foreignImportId: string;
+}
+let ap: AddressImportCtx;
+/** A one-address register as a CSV form, in Quillhaven's part of the map. */
+const addressForm = (key: string) => ({
+  multipart: { file: { name: 'register.csv', mimeType: 'text/csv', buffer: Buffer.from(`key,street,number,lon,lat\n${key},Matrix Lane,${Date.now() % 1000},9.2001,52.2001\n`) } },
+});
+// ---- end of the address register's import ----
 
 let ctx: Ctx;
 
@@ -1149,6 +1189,25 @@ test.beforeAll(async ({ request }) => {
     };
   }
   // ---- end of depth readings, test pits and utility crossings ----
+  // ---- households: the address register's import (helper A) ----
+  {
+    const stamp = Date.now();
+    const mine = await json<{ project: { id: string } }>(request, 'POST', '/api/projects', tokens.admin, { name: `Matrix addresses ${stamp}`, partnerOrganisationId: tarnwickId });
+    const theirs = await json<{ project: { id: string } }>(request, 'POST', '/api/projects', foreignToken, { name: `Mossgate addresses ${stamp}`, partnerOrganisation: 'Larkspur Ground Works' });
+    expect([mine.status, theirs.status]).toEqual([201, 201]);
+    const imported = async (pid: string, token: string) => {
+      const r = await json<{ import: { id: string } }>(request, 'POST', `/api/projects/${pid}/addresses`, token, addressForm(`A-${stamp}`));
+      expect(r.status).toBe(201);
+      return r.body!.import.id;
+    };
+    ap = {
+      projectId: mine.body!.project.id,
+      foreignProjectId: theirs.body!.project.id,
+      importId: await imported(mine.body!.project.id, tokens.engineer),
+      foreignImportId: await imported(theirs.body!.project.id, foreignToken),
+    };
+  }
+  // ---- end of the address register's import ----
   ctx = {
     currentSection,
     correctionId,
