@@ -42,7 +42,15 @@ export interface ReadOptions {
 const FORMATS = 'a CSV (lon/lat or x/y columns), GeoJSON points or a zipped shapefile of points';
 
 export async function readAddressFile(file: { name: string; bytes: Buffer }, opts: ReadOptions): Promise<AddressFile> {
-  const detected = detectFormat([file]);
+  let detected: ReturnType<typeof detectFormat>;
+  try {
+    detected = detectFormat([file]);
+  } catch (err) {
+    // a CSV of its header alone reads as no format at all: say what it is
+    const lines = err instanceof IngestError && err.code === 'unknown_format' ? decodeText(file.bytes).split(/\r?\n/).filter((l) => l.trim() !== '') : [];
+    if (lines.length === 1 && guessDelimiter(lines[0])) throw new IngestError('empty_file', `'${file.name}' is a CSV with a header but no rows`);
+    throw err;
+  }
   if (detected.container === 'loose') {
     throw new IngestError('unsupported_format', `'${file.name}' is one part of a shapefile; zip the .shp, .shx, .dbf and .prj together and send the zip`);
   }
