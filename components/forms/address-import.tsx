@@ -110,9 +110,9 @@ export function AddressImport({ projectId }: { projectId: string }) {
           type="file"
           accept=".csv,.txt,.geojson,.json,.zip,text/csv,application/geo+json,application/zip"
           onChange={(e) => {
+            // the mapping stays: a corrected file usually has the same columns (the preview says when not)
             setFile(e.target.files?.[0] ?? null);
             setPreview(null);
-            setMapping(null);
             setError(null);
             setDone(null);
           }}
