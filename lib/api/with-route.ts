@@ -35,9 +35,10 @@ interface Options<B extends z.ZodType | undefined, Q extends z.ZodType | undefin
   query?: Q;
   /**
    * 'contractor': only people of the project's contractor organisation may do it (what was built is
-   * recorded by those who built it; the owner's people read). Checked after the role, 403.
+   * recorded by those who built it; the owner's people read). 'owner': only the network owner's people
+   * (accepting or returning a handover package). Checked after the role, 403.
    */
-  side?: 'contractor';
+  side?: 'contractor' | 'owner';
 }
 
 export type Scope = { projectId: string } | { organisationId: string };
@@ -79,6 +80,9 @@ export function withRoute<B extends z.ZodType | undefined = undefined, Q extends
       }
       if (opts.side === 'contractor' && project && principal.organisationId !== project.contractorOrgId) {
         throw new AppError('forbidden', `Only the contractor's people (${project.contractorOrgName}) record what was built; the network owner's people read it.`);
+      }
+      if (opts.side === 'owner' && project && principal.organisationId !== project.ownerOrgId) {
+        throw new AppError('forbidden', `Only the network owner's people (${project.ownerOrgName}) accept or return what is handed over.`);
       }
 
       const search = Object.fromEntries(req.nextUrl.searchParams.entries());

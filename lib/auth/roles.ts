@@ -49,6 +49,13 @@ export const PERMISSIONS = {
   'address.read': ALL,
   'address.import': ['admin', 'engineer'],
   'address.connect': ['admin', 'engineer', 'surveyor'],
+  // handover packages: the contractor's admins and engineers build them (side: 'contractor'), the owner's
+  // people accept or return them (side: 'owner'), everyone who sees the project reads and downloads
+  'handover.read': ALL,
+  'handover.build': ['admin', 'engineer'],
+  'handover.review': ['admin', 'owner'],
+  // the last e-mails the server sent (the local fake SMTP server's inbox in development)
+  'mail.read': ['admin'],
   // the duct lookup at an address, across every project the organisation sees
   'lookup.read': ALL,
 } as const satisfies Record<string, readonly Role[]>;

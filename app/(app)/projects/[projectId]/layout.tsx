@@ -13,6 +13,7 @@ export default async function ProjectLayout({ children, params }: { children: Re
     { href: `${base}/records`, label: 'Trench records' },
     { href: `${base}/checks`, label: 'Quality checks' },
     { href: `${base}/households`, label: 'Households' },
+    { href: `${base}/handover`, label: 'Handover' },
   ];
   if (can(me.role, 'project.manage')) items.push({ href: `${base}/settings`, label: 'Settings' });
   if (can(me.role, 'audit.read')) items.push({ href: `${base}/activity`, label: 'Activity log' });
