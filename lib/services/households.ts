@@ -1,4 +1,9 @@
 import type { Knex } from 'knex';
+import { loadCrossingRecords, loadHouseholdAddresses, loadHouseholdRoutes, loadHouseholdSections, upsertProgress, writeDerivedColumns, type DerivedColumns } from '@/db/households';
+import { getProject } from '@/db/projects';
+import { computePassed, householdFigures, type SectionInput } from '@/lib/households/passed';
+import { findServing } from '@/lib/households/serving';
+import { dayOnClock } from '@/lib/records/production';
 
 export interface HouseholdFigures {
   addresses: number;
@@ -13,12 +18,42 @@ export interface HouseholdFigures {
 
 /**
  * Derives every address's serving route, side, foot point and passed flag from the current plan, the built
- * sections and the road crossings, in one transaction, and upserts the day's progress row.
- * (Being built in issue 15: the helper replaces this body.)
+ * sections and the road crossings (lib/households/serving.ts and passed.ts), writes them in one
+ * transaction, and upserts the day's progress row (the project's own calendar day of `now`). A run that
+ * dies midway leaves the derived columns as the previous run left them.
  */
-export async function recomputeHouseholds(db: Knex, projectId: string, progress: (f: number, m: string) => Promise<void>): Promise<HouseholdFigures> {
-  void db; void projectId; void progress;
-  throw new Error('recomputeHouseholds is being built');
+export async function recomputeHouseholds(
+  db: Knex,
+  projectId: string,
+  progress: (f: number, m: string) => Promise<void>,
+  now: Date = new Date(),
+): Promise<HouseholdFigures> {
+  const project = await getProject(db, projectId);
+  if (!project) throw new Error(`No project ${projectId}`);
+  await progress(0.05, 'Reading the addresses, the plan, the built sections and the road crossings');
+  const figures = await db.transaction(async (trx) => {
+    // one recompute of a project at a time, each reading what the one before it left: a second waits, then reads afresh
+    await trx.raw('SELECT pg_advisory_xact_lock(hashtext(?))', [`households:${projectId}`]);
+    const addresses = await loadHouseholdAddresses(trx, projectId);
+    const routes = await loadHouseholdRoutes(trx, projectId);
+    const sections = await loadHouseholdSections(trx, projectId);
+    const records = await loadCrossingRecords(trx, projectId);
+    await progress(0.25, `Finding the serving route of ${addresses.length} addresses among ${routes.filter((r) => r.kind === 'street' && !r.removed).length} street routes`);
+    const { servings, crossings } = findServing(addresses, routes, project.households);
+    await progress(0.55, 'Checking what is built in front of each address');
+    const passed = computePassed(addresses, servings, sections as SectionInput[], crossings, records, project.households);
+    const rows: DerivedColumns[] = servings.map((s, i) => ({
+      id: s.addressId, servingRouteId: s.routeId, servingBy: s.by, side: s.side, footChainageM: s.footChainageM, distanceM: s.distanceM,
+      passed: passed[i].passed, passedApproved: passed[i].passedApproved, passedViaCrossingId: passed[i].viaCrossingId, notPassedReason: passed[i].notPassedReason,
+    }));
+    const f = householdFigures(addresses.map((a, i) => ({ units: a.units, served: servings[i].routeId !== null, passed: passed[i].passed, passedApproved: passed[i].passedApproved, connected: a.connected })));
+    await progress(0.7, `Writing ${rows.length} addresses`);
+    await writeDerivedColumns(trx, projectId, rows, now);
+    await upsertProgress(trx, projectId, { day: dayOnClock(now, project.timeZone), ...f }, now);
+    return f;
+  });
+  await progress(1, `${figures.addressesPassed} of ${figures.addresses} addresses passed`);
+  return figures;
 }
 
 /** Queues a households recompute unless one is already waiting: changes in quick succession share one run. */
