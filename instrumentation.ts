@@ -11,6 +11,8 @@ export async function register(): Promise<void> {
   try {
     await startHousekeeping(getDb());
     await startWorkers(getDb());
+    const { startMailLoop } = await import('./lib/mail/loop');
+    console.log(`[trenchbook] ${(await startMailLoop(getDb())).where}`);
   } catch (err) {
     console.error('[trenchbook] job workers did not start', err);
   }

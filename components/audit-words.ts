@@ -287,6 +287,17 @@ export function describeAudit(e: AuditLike): string {
       return `Left ${a.kind === 'time' ? `the time from ${say(a.from)} to ${say(a.to)}` : `${say(a.from)}–${say(a.to)} m`} of an upload out of matching. Reason: ${quoted(a.reason)}`;
     case 'upload include_range':
       return 'Took a left-out range of an upload back into matching.';
+    // the owner's review of handover packages (issue 16, helper E2)
+    case 'handover accept':
+    case 'handover return': {
+      const cs = Array.isArray(a.comments) ? (a.comments as Obj[]) : [];
+      const said = cs.map((c) => `${c.section ? `section ${say(c.section)}` : 'the package'}: “${say(c.text)}”`).join('; ');
+      return `${e.action === 'accept' ? 'Accepted' : 'Returned'} handover revision ${say(a.revision)}${cs.length ? ` with ${plural(cs.length, 'comment')} (${said})` : ''}.`;
+    }
+    case 'handover answer': {
+      const n = Array.isArray(a.answers) ? a.answers.length : 0;
+      return `Answered ${plural(n, 'comment')} of the network owner on handover revision ${say(a.revision)}.`;
+    }
     // road crossings and photos (issue 14)
     case 'road_crossing create':
       return `Recorded road crossing ${say(a.route)} ${crossingFacts(a)}.`;

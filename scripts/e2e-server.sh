@@ -13,6 +13,8 @@ export NEXTAUTH_URL="http://127.0.0.1:$E2E_PORT"
 export NEXTAUTH_SECRET="${NEXTAUTH_SECRET:-e2e-secret-not-for-production}"
 export EXPORTS_DIR="$here/.data/e2e-exports" STORAGE_DIR="$here/.data/e2e-storage"
 # small limits so the sign-in limit can be seen to trip and recover within a test
+# the fake SMTP server of the worker on any free port (a developer's own may hold 2525), sending every second
+export MAIL_FAKE_PORT=0 MAIL_INTERVAL_SECONDS=1
 export SIGNIN_MAX_PER_EMAIL=3 SIGNIN_WINDOW_SECONDS=8 SIGNIN_MAX_PER_IP=1000
 npm run --silent db:migrate
 npm run --silent db:seed

@@ -39,6 +39,9 @@ start_worker() {
   worker=$!
   echo "$worker" >"$RUN_DIR/worker.pid"
   echo "trenchbook: job worker started (pid $worker, log $RUN_DIR/worker.log)"
+  if [ -z "${SMTP_URL:-}" ] && [ -z "${SMTP_HOST:-}" ]; then
+    echo "trenchbook: no SMTP configured: e-mail goes to the local fake SMTP server in the worker (127.0.0.1:${MAIL_FAKE_PORT:-2525}); read it at http://127.0.0.1:$PORT/admin/mail"
+  fi
 }
 start_worker
 node --import tsx scripts/server.ts &

@@ -4,6 +4,7 @@ import { closeDb, getDb } from '../db/client';
 import { env } from '../lib/env';
 import { stopBoss } from '../lib/jobs/boss';
 import { startHousekeeping } from '../lib/jobs/housekeeping';
+import { startMailLoop } from '../lib/mail/loop';
 import { startWorkers } from '../lib/jobs/queue';
 
 // The worker outlives a database that goes away: the queue's own background queries then fail now and then,
@@ -15,9 +16,12 @@ async function main() {
   const db = getDb();
   const stopHousekeeping = await startHousekeeping(db);
   await startWorkers(db);
+  const mail = await startMailLoop(db);
   console.log('trenchbook worker: waiting for jobs');
+  console.log(`trenchbook worker: ${mail.where}`);
   const stop = async () => {
     stopHousekeeping();
+    await mail.stop();
     await stopBoss();
     await closeDb();
     process.exit(0);

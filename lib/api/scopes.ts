@@ -77,3 +77,10 @@ export async function byAddressImportParam(params: Record<string, string>, db: D
   const imp = await getAddressImport(db, params.importId);
   return imp && { projectId: imp.projectId };
 }
+
+/** A handover package belongs to its project (routes under /api/handovers/[handoverId]). */
+export async function byHandoverParam(params: Record<string, string>, db: Db): Promise<Scope | undefined> {
+  if (!isUuid(params.handoverId)) return undefined;
+  const row = await db('handovers').where({ id: params.handoverId }).first('project_id');
+  return row && { projectId: row.project_id };
+}

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { appUrl, enqueueMail } from '@/lib/mail/outbox';
 import type { Knex } from 'knex';
 import { getUserRow, getUserRowByEmail, insertUser, listUsers, toUserDto, updateUser, type User } from '@/db/users';
 import { findLiveUserLink, insertUserLink, markUserLinkUsed } from '@/db/user-links';
@@ -63,7 +64,27 @@ async function issueCredentials(
     expiresAt,
     createdBy: actor?.id ?? null,
   });
-  return { linkPath: `/welcome/${secret}`, linkExpiresAt: expiresAt.toISOString() };
+  const linkPath = `/welcome/${secret}`;
+  // the link by e-mail too (issue 16), queued in this transaction: see lib/mail/outbox.ts
+  const user = (await getUserRow(trx, userId))!;
+  const invited = kind === 'invitation';
+  await enqueueMail(trx, {
+    kind: invited ? 'invitation' : 'reset',
+    to: [user.email],
+    subject: invited ? 'Your Trenchbook account' : 'Set a new Trenchbook password',
+    body: [
+      `Hello ${user.name},`,
+      '',
+      invited
+        ? `${actor ? `${actor.name} (${actor.organisationName})` : 'An administrator'} has made you a Trenchbook account. Open this link to choose your password:`
+        : 'Open this link to choose a new password for your Trenchbook account:',
+      '',
+      `${appUrl()}${linkPath}`,
+      '',
+      `The link works once and until ${expiresAt.toISOString().slice(0, 16).replace('T', ' ')} UTC.`,
+    ].join('\n'),
+  });
+  return { linkPath, linkExpiresAt: expiresAt.toISOString() };
 }
 
 /** Creates a user in the admin's organisation, audited, with a temporary password or a one-time link. */

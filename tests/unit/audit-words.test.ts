@@ -113,6 +113,11 @@ describe('parser warnings', () => {
     expect(describeAudit({ objectType: 'road_crossing', action: 'create', before: null, after: { route: 'QN-X3', built: false } })).toBe('Recorded road crossing QN-X3 as not built yet.');
     expect(describeAudit({ objectType: 'road_crossing', action: 'update', before: built, after: { ...built, lengthM: 9.4, note: 'Kerb reset' } })).toBe('Changed road crossing QN-X1: the measured length from 9.2 m to 9.4 m; the note from nothing to Kerb reset.');
     expect(describeAudit({ objectType: 'road_crossing', action: 'delete', before: built, after: null })).toBe('Removed the record of road crossing QN-X1.');
+    // the owner's review of handover packages (issue 16)
+    expect(describeAudit({ objectType: 'handover', action: 'return', before: { revision: 1, status: 'issued' }, after: { revision: 1, status: 'returned', comments: [{ section: 'QN-101 0–120 m', text: 'Depth missing' }, { section: null, text: 'Add the crossings' }] } }))
+      .toBe('Returned handover revision 1 with 2 comments (section QN-101 0–120 m: “Depth missing”; the package: “Add the crossings”).');
+    expect(describeAudit({ objectType: 'handover', action: 'accept', before: { revision: 2, status: 'issued' }, after: { revision: 2, status: 'accepted', comments: [] } })).toBe('Accepted handover revision 2.');
+    expect(describeAudit({ objectType: 'handover', action: 'answer', before: null, after: { revision: 1, answers: [{ id: 3, answers: 1, text: 'Re-surveyed' }] } })).toBe('Answered 1 comment of the network owner on handover revision 1.');
     const photo = { fileName: 'IMG_0042.jpg', caption: 'Slot at no. 12', route: 'QN-101', chainageM: 57.3, placedBy: 'exif', crossing: null, pitId: null, takenAt: null, sizeBytes: 1 };
     expect(describeAudit({ objectType: 'photo', action: 'create', before: null, after: photo })).toBe('Added the photo IMG_0042.jpg on QN-101 at 57.3 m, placed from its own GPS position. Caption: Slot at no. 12.');
     expect(describeAudit({ objectType: 'photo', action: 'update', before: photo, after: { ...photo, chainageM: 60, placedBy: 'hand', crossing: 'QN-X1' } })).toBe(
