@@ -762,6 +762,14 @@ const MATRIX: Record<string, Row | PublicRow> = {
     body: () => addressForm(`M-${Date.now()}`),
     success: 201,
   },
+  // helper C: the register's list and exports, read by every role of the project
+  'GET /api/projects/[projectId]/addresses': {
+    url: () => `/api/projects/${ap.projectId}/addresses?format=csv`,
+    foreign: () => `/api/projects/${ap.foreignProjectId}/addresses`,
+    denied: ALL_ROLES,
+    allowed: 'maintenance',
+    success: 200,
+  },
   'GET /api/projects/[projectId]/address-imports': {
     url: () => `/api/projects/${ap.projectId}/address-imports`,
     foreign: () => `/api/projects/${ap.foreignProjectId}/address-imports`,
