@@ -49,6 +49,13 @@ export const RANGES = {
   layingTempToleranceC: { min: 1, max: 100, unit: '°C', what: 'The laying temperature tolerance' },
   compactionPassesDefault: { min: 0, max: 20, unit: 'passes', what: 'The number of compaction passes' },
   surfaceThicknessMm: { min: 5, max: 500, unit: 'mm', what: 'The surface thickness' },
+  // The household settings (migration 20261206100000 holds the same bounds as CHECKs).
+  /** 1 m: an address on the route's line; 500 m: beyond it a house is not on that street but on another. */
+  serveDistanceM: { min: 1, max: 500, unit: 'm', what: 'The serve distance' },
+  /** The Bundesnetzagentur counts a home passed within 20 m of its plot [published]; 200 m is a long drop. */
+  crossingServeDistanceM: { min: 1, max: 200, unit: 'm', what: 'The crossing distance' },
+  /** 0: the stretch must reach the foot point exactly; 50 m is about a plot's frontage several times over. */
+  footToleranceM: { min: 0, max: 50, unit: 'm', what: 'The foot tolerance' },
 } as const satisfies Record<string, PlausibleRange>;
 
 /**

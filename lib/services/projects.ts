@@ -10,7 +10,9 @@ import type { OrgKind } from '@/lib/auth/roles';
 
 import { ACCURACY_CLASSES } from '@/lib/records/accuracy-classes';
 import { RANGES, rangedNumber } from '@/lib/records/plausible-ranges';
+import { householdSettingsSchema } from '@/lib/records/household-settings';
 import { recordSettingsSchema } from '@/lib/records/record-settings';
+import { requestHouseholds } from './households';
 
 const timeZones = new Set<string>([...Intl.supportedValuesOf('timeZone'), 'UTC']);
 
@@ -65,6 +67,7 @@ export const updateProjectSchema = z
     defaultAccuracyClass: z.enum(ACCURACY_CLASSES),
     accuracySigmas: sigmasSchema,
     records: recordSettingsSchema,
+    households: householdSettingsSchema,
     // named only to be refused: a typed name once moved the project to a new (misspelt) organisation
     partnerOrganisation: z.unknown(),
     partnerOrganisationId: z.unknown(),
@@ -178,6 +181,7 @@ export async function changeProject(db: Knex, actor: Principal, projectId: strin
         defaultAccuracyClass: input.defaultAccuracyClass,
         accuracySigmas: input.accuracySigmas,
         records: input.records,
+        households: input.households,
       };
       if (input.records?.colourSequenceId && !(await colourSequenceOfProject(trx, projectId, input.records.colourSequenceId))) {
         throw new AppError('invalid', 'That colour sequence is not in this project\'s catalogue.', [{ path: 'records.colourSequenceId', message: 'Pick a colour sequence of this project.' }]);
@@ -193,5 +197,11 @@ export async function changeProject(db: Knex, actor: Principal, projectId: strin
       });
       return after;
     })
-    .catch((e) => guardUniqueName(e, input.name ?? ''));
+    .catch((e) => guardUniqueName(e, input.name ?? ''))
+    .then(async (after) => {
+      // the rule's distances changed: households passed are derived again
+      const h = input.households;
+      if (h && Object.values(h).some((v) => v !== undefined)) await requestHouseholds(db, projectId, actor.id);
+      return after;
+    });
 }

@@ -17,6 +17,7 @@ import { getJob } from '@/db/jobs';
 import { CHECKS, findingsOnStretch, type CheckFinding } from '@/lib/records/quality-checks';
 import { projectFindings } from './quality-checks';
 import { sectionRecordsAndChecks } from './section-records';
+import { requestHouseholds } from './households';
 
 const SURVEY_GRADE = new Set(['rtk_gnss', 'total_station']);
 // what is matched onto the plan: the trench line and road crossings; test pits and depth shots are records
@@ -128,6 +129,13 @@ const OPEN_CHECKS_NEED_COMMENT = (n: number, open: CheckFinding[]) =>
   `This section has ${n} open quality check${n === 1 ? '' : 's'} (${checkNames(open)}): confirm the approval with a comment saying why it is acceptable.`;
 
 export async function reviewSection(db: Knex, actor: Principal, sectionId: string, input: z.infer<typeof reviewSchema>) {
+  const out = await reviewSectionInTrx(db, actor, sectionId, input);
+  // passed and approved follows the reviews
+  await requestHouseholds(db, out.projectId, actor.id);
+  return out;
+}
+
+async function reviewSectionInTrx(db: Knex, actor: Principal, sectionId: string, input: z.infer<typeof reviewSchema>) {
   return db.transaction(async (trx) => {
     const [before] = await getSectionsForUpdate(trx, [sectionId]);
     const refusal = reviewRefusal(before, input.decision);
@@ -150,7 +158,7 @@ export async function reviewSection(db: Knex, actor: Principal, sectionId: strin
  */
 export async function reviewSections(db: Knex, actor: Principal, projectId: string, input: z.infer<typeof bulkReviewSchema>) {
   const ids = [...new Set(input.sectionIds)];
-  return db.transaction(async (trx) => {
+  const out = await db.transaction(async (trx) => {
     const found = new Map((await getSectionsForUpdate(trx, ids)).map((s) => [s.id, s]));
     const problems: { path: string; message: string }[] = [];
     ids.forEach((id, i) => {
@@ -177,6 +185,9 @@ export async function reviewSections(db: Knex, actor: Principal, projectId: stri
     }
     return { reviewed: ids.length, review };
   });
+  // passed and approved follows the reviews
+  await requestHouseholds(db, projectId, actor.id);
+  return out;
 }
 
 /** Settled sections are approved, or acknowledged as not built; a project whose every section is settled is fully approved. */

@@ -10,6 +10,7 @@ import { AppError } from '@/lib/api/errors';
 import { auditActor, type Principal } from '@/lib/auth/principal';
 import { can } from '@/lib/auth/roles';
 import type { RoadCrossingInput, RoadCrossingPatch } from '@/lib/records/road-crossing-schema';
+import { requestHouseholds } from './households';
 
 /**
  * The rule the routes apply with `side: 'contractor'`, kept here too so that no other caller (a seed, a
@@ -82,6 +83,8 @@ export async function createRoadCrossing(db: Knex, actor: Principal, project: Pr
     await writeAudit(trx, auditActor(actor), { projectId: project.id, objectType: 'road_crossing', objectId: newId, action: 'create', after: audited(created) });
     return newId;
   });
+  // a crossing carries the service across the street: households passed follow
+  await requestHouseholds(db, project.id, actor.id);
   return (await getRoadCrossing(db, id))!;
 }
 
@@ -114,6 +117,7 @@ export async function editRoadCrossing(db: Knex, actor: Principal, project: Proj
     await writeAudit(trx, auditActor(actor), { projectId: project.id, objectType: 'road_crossing', objectId: id, action: 'update', before: audited(before), after: audited(after) });
     return id;
   });
+  await requestHouseholds(db, project.id, actor.id);
   return (await getRoadCrossing(db, id2))!;
 }
 
@@ -126,4 +130,5 @@ export async function removeRoadCrossing(db: Knex, actor: Principal, project: Pr
     await deleteRoadCrossing(trx, id);
     await writeAudit(trx, auditActor(actor), { projectId: project.id, objectType: 'road_crossing', objectId: id, action: 'delete', before: audited(before) });
   });
+  await requestHouseholds(db, project.id, actor.id);
 }

@@ -159,3 +159,25 @@ describe('passed', () => {
     expect(PASSED_DEFINITION).toMatch(/2 m/);
   });
 });
+
+describe('household settings', () => {
+  it('accepts the bounds the database CHECKs hold, refuses just outside, and a change queues a recompute', async () => {
+    const { changeProject, updateProjectSchema } = await import('@/lib/services/projects');
+    // [field, column, floor, ceiling]: lib/records/plausible-ranges.ts and migration 20261206100000
+    const cases = [['serveDistanceM', 'serve_distance_m', 1, 500], ['crossingServeDistanceM', 'crossing_serve_distance_m', 1, 200], ['footToleranceM', 'foot_tolerance_m', 0, 50]] as const;
+    for (const [field, column, floor, ceiling] of cases) {
+      expect(updateProjectSchema.safeParse({ households: { [field]: floor } }).success, field).toBe(true);
+      expect(updateProjectSchema.safeParse({ households: { [field]: ceiling } }).success, field).toBe(true);
+      expect(updateProjectSchema.safeParse({ households: { [field]: floor - 0.001 } }).success, field).toBe(false);
+      expect(updateProjectSchema.safeParse({ households: { [field]: ceiling + 0.001 } }).success, field).toBe(false);
+      await expect(db('projects').where({ id: plan.project.id }).update({ [column]: ceiling + 0.001 }), column).rejects.toThrow(/check constraint/);
+    }
+    await db('jobs').where({ project_id: plan.project.id, kind: 'households' }).delete();
+    const after = await changeProject(db, plan.admin, plan.project.id, updateProjectSchema.parse({ households: { serveDistanceM: 60 } }));
+    expect(after.households).toEqual({ serveDistanceM: 60, crossingServeDistanceM: 30, footToleranceM: 2 });
+    expect(await db('jobs').where({ project_id: plan.project.id, kind: 'households', status: 'queued' }).count('* as n').first()).toEqual({ n: 1 });
+    // a second change before the run shares the queued job
+    await changeProject(db, plan.admin, plan.project.id, updateProjectSchema.parse({ households: { footToleranceM: 3 } }));
+    expect(await db('jobs').where({ project_id: plan.project.id, kind: 'households', status: 'queued' }).count('* as n').first()).toEqual({ n: 1 });
+  });
+});

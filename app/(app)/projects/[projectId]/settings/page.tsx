@@ -7,6 +7,7 @@ import { Card, Notice, PageHeader } from '@/components/ui/primitives';
 import { ProjectForm } from '@/components/forms/project-form';
 import { OrgChangePanel } from '@/components/forms/org-change-panel';
 import { RecordSettingsForm } from '@/components/forms/record-settings-form';
+import { HouseholdSettingsForm } from '@/components/forms/household-settings-form';
 import { listColourSequences } from '@/db/catalogues';
 import { shownSystem } from '@/lib/records/units';
 
@@ -49,6 +50,13 @@ export default async function ProjectSettingsPage({ params }: { params: Promise<
             sequences={sequences.map((q) => ({ id: q.id, name: q.name }))}
             system={shownSystem(me.unitSystem, project.unitSystem)}
           />
+        </Card>
+        <Card title="Households passed">
+          <p className="mb-4 text-sm text-ink-soft">
+            How addresses are tied to their serving street route and counted as passed. Changing them works the figures out again; see the
+            definition on the Households page.
+          </p>
+          <HouseholdSettingsForm projectId={project.id} initial={project.households} system={shownSystem(me.unitSystem, project.unitSystem)} />
         </Card>
         <Card title="Network owner and contractor">
           <OrgChangePanel
