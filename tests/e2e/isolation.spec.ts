@@ -1,7 +1,7 @@
 import { readdirSync, readFileSync, statSync } from 'node:fs';
 import path from 'node:path';
 import { expect, test, type APIRequestContext } from '@playwright/test';
-import { addUserWithToken, DEMO, json } from '../helpers/e2e';
+import { addUserWithToken, DEMO, issuedHandoverFixture, json } from '../helpers/e2e';
 import { gpxTrack } from '../helpers/upload-form';
 // road crossings and photos: a small PNG to upload
 import sharp from 'sharp';
@@ -785,6 +785,32 @@ const MATRIX: Record<string, Row | PublicRow> = {
     success: 200,
   },
   // ---- end of the address register's import ----
+  // ---- handover review and answers (helper E2) ----
+  'GET /api/projects/[projectId]/handovers': {
+    url: () => `/api/projects/${hv.projectId}/handovers`,
+    foreign: () => `/api/projects/${hv.foreignProjectId}/handovers`,
+    denied: ALL_ROLES,
+    allowed: 'maintenance',
+    success: 200,
+  },
+  'POST /api/handovers/[handoverId]/review': {
+    url: () => `/api/handovers/${hv.issuedId}/review`,
+    foreign: () => `/api/handovers/${hv.foreignId}/review`,
+    // the contractor's engineer builds, never reviews (and the owner's maintenance role has no review right)
+    denied: 'engineer',
+    allowed: 'owner',
+    body: () => ({ decision: 'accept' }),
+    success: 200,
+  },
+  'POST /api/handovers/[handoverId]/answers': {
+    url: () => `/api/handovers/${hv.returnedId}/answers`,
+    foreign: () => `/api/handovers/${hv.foreignId}/answers`,
+    denied: 'surveyor',
+    allowed: 'engineer',
+    body: () => ({ answers: [{ commentId: hv.commentId, text: 'isolation matrix' }] }),
+    success: 201,
+  },
+  // ---- end of handover review and answers ----
   'GET /api/crs': { url: () => '/api/crs?q=25832', foreign: NO_OBJECT, denied: ALL_ROLES, allowed: 'surveyor', success: 200 },
   'GET /api/audit': { url: () => '/api/audit', foreign: NO_OBJECT, denied: 'maintenance', allowed: 'admin', success: 200 },
 };
@@ -929,6 +955,20 @@ const addressForm = (key: string) => ({
   multipart: { file: { name: 'register.csv', mimeType: 'text/csv', buffer: Buffer.from(`key,street,number,lon,lat\n${key},Matrix Lane,${Date.now() % 1000},9.2001,52.2001\n`) } },
 });
 // ---- end of the address register's import ----
+
+// ---- handover review and answers (helper E2) ----
+interface HandoverCtx {
+  /** a project between the demo owner and contractor, so the demo's own handovers are left alone */
+  projectId: string;
+  foreignProjectId: string;
+  /** an issued revision (to accept), a returned one with the owner's comment commentId (to answer), one of Mossgate's */
+  issuedId: string;
+  returnedId: string;
+  commentId: number;
+  foreignId: string;
+}
+let hv: HandoverCtx;
+// ---- end of handover review and answers ----
 
 let ctx: Ctx;
 
@@ -1216,6 +1256,23 @@ test.beforeAll(async ({ request }) => {
     };
   }
   // ---- end of the address register's import ----
+  // ---- handover review and answers (helper E2): revisions as an issued build leaves them (test fixture) ----
+  {
+    const mine = await between('Matrix handover');
+    const returnedId = issuedHandoverFixture(mine);
+    const ret = await json(request, 'POST', `/api/handovers/${returnedId}/review`, tokens.owner, { decision: 'return', comments: [{ text: 'isolation matrix' }] });
+    expect(ret.status).toBe(200);
+    const list = await json<{ handovers: { id: string; comments: { id: number }[] }[] }>(request, 'GET', `/api/projects/${mine}/handovers`, tokens.engineer);
+    hv = {
+      projectId: mine,
+      foreignProjectId: fp.body!.project.id,
+      returnedId,
+      commentId: list.body!.handovers.find((h) => h.id === returnedId)!.comments[0].id,
+      issuedId: issuedHandoverFixture(mine),
+      foreignId: issuedHandoverFixture(fp.body!.project.id),
+    };
+  }
+  // ---- end of handover review and answers ----
   ctx = {
     currentSection,
     correctionId,

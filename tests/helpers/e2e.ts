@@ -23,6 +23,17 @@ export function addUserWithToken(u: { email: string; name: string; role: string;
   return out.trim().split('\n').at(-1)!;
 }
 
+/**
+ * TEST ONLY (issue 16, helper E2): an issued handover revision of the project in the e2e database, as a
+ * finished build leaves it (tests/helpers/handover-fixture.ts); returns its id.
+ */
+export function issuedHandoverFixture(projectId: string): string {
+  const out = execFileSync('node', ['--import', 'tsx', 'tests/helpers/handover-fixture.ts', projectId], {
+    cwd: root, env: { ...process.env, DATABASE_URL: e2eDbUrl(), STORAGE_DIR: path.join(root, '.data/e2e-storage') }, encoding: 'utf8',
+  });
+  return out.trim().split('\n').at(-1)!;
+}
+
 export async function signInThroughForm(page: Page, email: string, password = DEMO_PASSWORD): Promise<void> {
   await page.goto('/sign-in');
   await page.getByLabel('E-mail').fill(email);
