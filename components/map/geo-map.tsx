@@ -10,6 +10,9 @@ export interface MapLayer {
   colour: string;
   dashed?: boolean;
   width?: number;
+  /** points: the circle's radius (default 4), and hollow (a ring in the colour) so a status differs by shape too */
+  pointRadius?: number;
+  hollow?: boolean;
 }
 
 function bounds(layers: MapLayer[]): [number, number, number, number] | null {
@@ -41,7 +44,9 @@ export function GeoMap({ layers, label, height = 420 }: { layers: MapLayer[]; la
         });
         map.addLayer({
           id: `${l.id}-point`, type: 'circle', source: l.id, filter: ['==', ['geometry-type'], 'Point'],
-          paint: { 'circle-color': l.colour, 'circle-radius': 4, 'circle-stroke-color': '#ffffff', 'circle-stroke-width': 1 },
+          paint: l.hollow
+            ? { 'circle-color': '#ffffff', 'circle-radius': l.pointRadius ?? 4, 'circle-stroke-color': l.colour, 'circle-stroke-width': 2 }
+            : { 'circle-color': l.colour, 'circle-radius': l.pointRadius ?? 4, 'circle-stroke-color': '#ffffff', 'circle-stroke-width': 1 },
         });
       }
       const b = bounds(layers);
