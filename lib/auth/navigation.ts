@@ -9,7 +9,7 @@ export interface NavItem {
 export function navigationFor(role: Role): NavItem[] {
   const items: NavItem[] = [{ href: '/projects', label: 'Projects' }, { href: '/lookup', label: 'Duct lookup' }];
   if (role === 'admin') {
-    items.push({ href: '/admin/users', label: 'People' }, { href: '/admin/activity', label: 'Activity' });
+    items.push({ href: '/admin/users', label: 'People' }, { href: '/admin/activity', label: 'Activity' }, { href: '/admin/mail', label: 'E-mail' });
   }
   items.push({ href: '/account', label: 'Account' });
   return items;

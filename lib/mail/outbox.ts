@@ -91,9 +91,20 @@ export interface OutboxEntry {
   givenUp: boolean;
 }
 
-/** The last messages, newest first, for /admin/mail. */
-export async function listOutbox(db: Db, limit = 100): Promise<OutboxEntry[]> {
-  const rows = await db('mail_outbox').orderBy('id', 'desc').limit(limit);
+/**
+ * The last messages an organisation's admin may read, newest first, for /admin/mail: those to its own people,
+ * and those about projects it is the owner or contractor of. Another organisation's invitation links stay
+ * with that organisation.
+ */
+export async function listOutbox(db: Db, organisationId: string, limit = 100): Promise<OutboxEntry[]> {
+  const rows = await db('mail_outbox as m')
+    .where((q) => {
+      q.whereExists(db('users as u').where('u.organisation_id', organisationId).whereRaw('u.email = ANY(m.to_addresses)').select(db.raw('1')))
+        .orWhereExists(
+          db('projects as p').whereRaw('p.id = m.project_id').where((w) => w.where('p.owner_org_id', organisationId).orWhere('p.contractor_org_id', organisationId)).select(db.raw('1')),
+        );
+    })
+    .orderBy('m.id', 'desc').limit(limit).select('m.*');
   return rows.map((r) => ({
     id: Number(r.id), kind: r.kind, to: r.to_addresses, subject: r.subject, body: r.body, createdAt: r.created_at.toISOString(),
     sentAt: r.sent_at ? r.sent_at.toISOString() : null, attempts: r.attempts, lastError: r.last_error, givenUp: r.given_up,

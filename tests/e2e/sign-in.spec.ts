@@ -2,7 +2,7 @@ import { expect, test } from '@playwright/test';
 import { addUserWithToken, DEMO, signIn, signInThroughForm } from '../helpers/e2e';
 
 const ROLE_NAV: [keyof typeof DEMO, string, string[]][] = [
-  ['admin', 'Administrator', ['Projects', 'People', 'Activity', 'Account']],
+  ['admin', 'Administrator', ['Projects', 'People', 'Activity', 'E-mail', 'Account']],
   ['engineer', 'Engineer', ['Projects', 'Account']],
   ['surveyor', 'Surveyor', ['Projects', 'Account']],
   ['owner', 'Network owner', ['Projects', 'Account']],
