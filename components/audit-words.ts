@@ -274,6 +274,10 @@ export function describeAudit(e: AuditLike): string {
       const what = a.partial ? 'Imported part of the address register (added and updated only)' : 'Imported the address register';
       return `${what} from ${say(a.fileName)}: ${plural(Number(a.rows ?? 0), 'address', 'addresses')}; ${['added', 'changed', 'removed', 'restored', 'unchanged'].map((k) => `${Number(a[k] ?? 0).toLocaleString('en-GB')} ${k}`).join(', ')}.`;
     }
+    case 'address connect':
+      return `Recorded the drop at address ${say(a.key)} as installed${a.connectedOn ? ` on ${say(a.connectedOn)}` : ''}.`;
+    case 'address disconnect':
+      return `Took back the drop at address ${say(a.key)}: no longer recorded as installed.`;
     case 'upload create': {
       const names = say(a.fileName);
       if (a.status === 'failed') return `Uploaded ${names}; it was refused (${REFUSAL[String(a.error)] ?? say(a.error)}) and kept for another try.`;

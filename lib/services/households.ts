@@ -1,5 +1,13 @@
 import type { Knex } from 'knex';
-import { loadCrossingRecords, loadHouseholdAddresses, loadHouseholdRoutes, loadHouseholdSections, upsertProgress, writeDerivedColumns, type DerivedColumns } from '@/db/households';
+import { z } from 'zod';
+import { getAddress, type Address } from '@/db/addresses';
+import { writeAudit } from '@/db/audit';
+import type { Project } from '@/db/projects';
+import { AppError } from '@/lib/api/errors';
+import { auditActor, type Principal } from '@/lib/auth/principal';
+import { can } from '@/lib/auth/roles';
+import { plausibleDate } from '@/lib/records/plausible-ranges';
+import { loadCrossingRecords, loadHouseholdAddresses, loadHouseholdRoutes, loadHouseholdSections, setAddressConnected, upsertProgress, writeDerivedColumns, type DerivedColumns } from '@/db/households';
 import { getProject } from '@/db/projects';
 import { computePassed, householdFigures, type SectionInput } from '@/lib/households/passed';
 import { findServing } from '@/lib/households/serving';
@@ -64,4 +72,35 @@ export async function requestHouseholds(db: Knex, projectId: string, requestedBy
   const waiting = await db('jobs').where({ project_id: projectId, kind: 'households', status: 'queued' }).orderBy('created_at').first('id');
   if (waiting) return (await getJob(db, waiting.id))!;
   return enqueueJob(db, { projectId, kind: 'households', input: { requestedBy }, createdBy: requestedBy });
+}
+
+export const connectSchema = z.object({
+  connected: z.boolean({ message: 'Say whether the drop is installed (connected: true or false).' }),
+  connectedOn: plausibleDate('the date the drop was installed').optional(),
+}).refine((v) => v.connected || v.connectedOn === undefined, { message: 'A drop not installed has no date installed.', path: ['connectedOn'] });
+
+/**
+ * Records an address's drop as installed (or takes it back), by hand: the contractor's people only, with a
+ * history row and an audit entry in one transaction; the figures are then worked out again (queued).
+ */
+export async function connectAddress(db: Knex, actor: Principal, project: Project, addressId: string, input: z.infer<typeof connectSchema>): Promise<Address> {
+  if (!can(actor.role, 'address.connect')) throw new AppError('forbidden', `Your role (${actor.role}) may not do this.`);
+  if (actor.organisationId !== project.contractorOrgId) {
+    throw new AppError('forbidden', `Only the contractor's people (${project.contractorOrgName}) record drops as installed; the network owner's people read them.`);
+  }
+  await db.transaction(async (trx) => {
+    const row = await trx('addresses').where({ id: addressId, project_id: project.id }).forUpdate().first('id');
+    const before = row && (await getAddress(trx, addressId));
+    if (!before) throw new AppError('not_found', 'No such address in this project.');
+    if (before.removed) throw new AppError('conflict', `Address ${before.key} was removed from the register by a later import: it is counted nowhere.`);
+    const on = input.connected ? (input.connectedOn ?? dayOnClock(new Date(), project.timeZone)) : null;
+    const was = { connected: before.connected, connectedOn: before.connectedOn, connectedSource: before.connectedSource };
+    await setAddressConnected(trx, addressId, project.id, input.connected, on, actor.id, was);
+    await writeAudit(trx, auditActor(actor), {
+      projectId: project.id, objectType: 'address', objectId: addressId, action: input.connected ? 'connect' : 'disconnect',
+      before: { key: before.key, ...was }, after: { key: before.key, connected: input.connected, connectedOn: on, connectedSource: input.connected ? 'hand' : null },
+    });
+  });
+  await requestHouseholds(db, project.id, actor.id);
+  return (await getAddress(db, addressId))!;
 }

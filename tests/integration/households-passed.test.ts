@@ -181,3 +181,25 @@ describe('household settings', () => {
     expect(await db('jobs').where({ project_id: plan.project.id, kind: 'households', status: 'queued' }).count('* as n').first()).toEqual({ n: 1 });
   });
 });
+
+describe('recording a drop as installed', () => {
+  it('keeps a history row and an audit entry, queues the figures, and refuses the owner\'s people', async () => {
+    const { connectAddress, connectSchema } = await import('@/lib/services/households');
+    const { listAddressHistory } = await import('@/db/households');
+    const a1 = await addr('A1');
+    await db('jobs').where({ project_id: plan.project.id, kind: 'households' }).delete();
+    const after = await connectAddress(db, plan.surveyor, plan.project, a1.id, connectSchema.parse({ connected: true, connectedOn: '2026-12-04' }));
+    expect([after.connected, after.connectedOn, after.connectedSource]).toEqual([true, '2026-12-04', 'hand']);
+    await connectAddress(db, plan.engineer, plan.project, a1.id, connectSchema.parse({ connected: false }));
+    const history = await listAddressHistory(db, a1.id);
+    expect(history.map((h) => h.change)).toEqual(['disconnected', 'connected']);
+    expect(history[1].after).toMatchObject({ connected: true, connectedOn: '2026-12-04' });
+    const audit = await db('audit_log').where({ object_type: 'address', object_id: a1.id }).orderBy('id').select('action');
+    expect(audit.map((r: { action: string }) => r.action)).toEqual(['connect', 'disconnect']);
+    expect(await db('jobs').where({ project_id: plan.project.id, kind: 'households', status: 'queued' }).count('* as n').first()).toEqual({ n: 1 });
+    await expect(connectAddress(db, plan.owner, plan.project, a1.id, connectSchema.parse({ connected: true }))).rejects.toMatchObject({ code: 'forbidden' });
+    await expect(connectAddress(db, plan.maintenance, plan.project, a1.id, connectSchema.parse({ connected: true }))).rejects.toMatchObject({ code: 'forbidden' });
+    expect(connectSchema.safeParse({ connected: false, connectedOn: '2026-12-04' }).success).toBe(false);
+    expect((await listAddressHistory(db, a1.id)).length).toBe(2);
+  });
+});

@@ -69,6 +69,11 @@ describe('the activity log in words', () => {
     );
   });
 
+  it('tells drops recorded as installed and taken back', () => {
+    expect(describeAudit({ objectType: 'address', action: 'connect', before: { key: 'Q-17', connected: false }, after: { key: 'Q-17', connected: true, connectedOn: '2026-12-03' } })).toBe('Recorded the drop at address Q-17 as installed on 2026-12-03.');
+    expect(describeAudit({ objectType: 'address', action: 'disconnect', before: { key: 'Q-17', connected: true }, after: { key: 'Q-17', connected: false } })).toBe('Took back the drop at address Q-17: no longer recorded as installed.');
+  });
+
   it('tells section reviews, one at a time and in bulk', () => {
     expect(describeAudit({ objectType: 'section', action: 'review_approved', before: { review: 'pending' }, after: { review: 'approved', comment: 'Checked on site' } })).toBe('Approved the section. Comment: Checked on site.');
     expect(describeAudit({ objectType: 'section', action: 'review_approved', before: { review: 'pending' }, after: { review: 'approved', bulk: 12 } })).toBe('Approved the section (one of 12 reviewed together).');
