@@ -785,6 +785,24 @@ const MATRIX: Record<string, Row | PublicRow> = {
     success: 200,
   },
   // ---- end of the address register's import ----
+  // ---- households: drops recorded as installed and the daily series (helper B) ----
+  'PATCH /api/projects/[projectId]/addresses/[addressId]': {
+    url: () => `/api/projects/${ap.projectId}/addresses/${ap.addressId}`,
+    foreign: () => `/api/projects/${ap.foreignProjectId}/addresses/${ap.foreignAddressId}`,
+    // the network owner's people read the drops, the contractor's record them
+    denied: 'owner',
+    allowed: 'surveyor',
+    body: () => ({ connected: true, connectedOn: '2026-12-01' }),
+    success: 200,
+  },
+  'GET /api/projects/[projectId]/progress': {
+    url: () => `/api/projects/${ap.projectId}/progress`,
+    foreign: () => `/api/projects/${ap.foreignProjectId}/progress`,
+    denied: ALL_ROLES,
+    allowed: 'maintenance',
+    success: 200,
+  },
+  // ---- end of households passed ----
   // ---- handover review and answers (helper E2) ----
   'GET /api/projects/[projectId]/handovers': {
     url: () => `/api/projects/${hv.projectId}/handovers`,
@@ -948,6 +966,9 @@ interface AddressImportCtx {
   foreignProjectId: string;
   importId: string;
   foreignImportId: string;
+  /** an address of each register (helper B: the drop recorded as installed) */
+  addressId: string;
+  foreignAddressId: string;
 }
 let ap: AddressImportCtx;
 /** A one-address register as a CSV form, in Quillhaven's part of the map. */
@@ -1253,7 +1274,16 @@ test.beforeAll(async ({ request }) => {
       foreignProjectId: theirs.body!.project.id,
       importId: await imported(mine.body!.project.id, tokens.engineer),
       foreignImportId: await imported(theirs.body!.project.id, foreignToken),
+      addressId: '',
+      foreignAddressId: '',
     };
+    const firstAddress = async (pid: string, token: string) => {
+      const r = await json<{ addresses: { id: string }[] }>(request, 'GET', `/api/projects/${pid}/addresses`, token);
+      expect(r.status).toBe(200);
+      return r.body!.addresses[0].id;
+    };
+    ap.addressId = await firstAddress(ap.projectId, tokens.engineer);
+    ap.foreignAddressId = await firstAddress(ap.foreignProjectId, foreignToken);
   }
   // ---- end of the address register's import ----
   // ---- handover review and answers (helper E2): revisions as an issued build leaves them (test fixture) ----

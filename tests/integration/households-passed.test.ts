@@ -12,12 +12,11 @@ import { makeRecordPlan, type RecordPlan } from '../helpers/record-plan';
 
 // The households passed rule on a constructed street (lib/households/passed.ts, PASSED_DEFINITION).
 // Published definitions it is measured against (../shared/REFERENCES.md, "Households passed"):
-// - Bundesnetzagentur: a household counts as passed when the fibre reaches within 20 m of the plot's
-//   boundary, so that it can be connected without further civil works in the street [published]. Ours
-//   measures to the foot point on the route (the address point projected), with a small tolerance
-//   (2 m by default), not to the plot boundary, and asks for a built road crossing for the far side.
-// - FTTH Council, Definition of Terms: homes passed counts premises, each apartment of a multi-dwelling
-//   unit one premises [published]. Ours: households passed sums the units of each passed address.
+// - Bundesnetzagentur (Germany): a home counts as passed when FTTB/FTTH infrastructure runs past its plot
+//   at most 20 m away [published]. Ours measures from the address point to its foot point on the serving
+//   route (serve distance, 40 m by default, a project setting), asks that the built stretch reach the foot
+//   point (2 m tolerance), and for the far side a built road crossing within 30 m of the foot point.
+// - FTTH Council, Definition of Terms: each apartment in a multi-dwelling unit is one premises [published]. Ours: households passed sums the units of each passed address.
 // Where ours differs: an unplanned stretch passes nobody until an engineer promotes it, and "approved"
 // is a second figure (every section that passes the address approved).
 
