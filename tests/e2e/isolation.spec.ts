@@ -70,6 +70,11 @@ interface Row {
   /** the body names the current section (a route that takes section ids in its body) */
   current?: true;
   success: number;
+  /**
+   * For a route that reads across the organisation's projects (no object to name): another organisation
+   * asks the same URL and gets 200 with an empty `key` list, while the allowed role's answer is not empty.
+   */
+  emptyForOthers?: { key: string };
 }
 
 type PublicRow = { public: string; check: (req: APIRequestContext) => Promise<void> };
@@ -114,6 +119,24 @@ const MATRIX: Record<string, Row | PublicRow> = {
     denied: ALL_ROLES,
     allowed: 'owner',
     success: 200,
+  },
+  // ---- duct lookup (issue 17): across the organisation's projects; another organisation sees nothing ----
+  'GET /api/lookup/addresses': {
+    url: () => '/api/lookup/addresses?q=Lanternfield%20Road%202',
+    foreign: { na: 'searches every project of the caller’s organisation; another organisation gets an empty list (emptyForOthers)' },
+    denied: ALL_ROLES,
+    allowed: 'maintenance',
+    success: 200,
+    emptyForOthers: { key: 'candidates' },
+  },
+  'GET /api/lookup/nearby': {
+    // 50 m east of the demo's origin, on Lanternfield Road (QN-101)
+    url: () => '/api/lookup/nearby?lon=9.10473&lat=52.10602&radius=60',
+    foreign: { na: 'reads the sections of the caller’s organisation’s projects near a spot; another organisation gets an empty list (emptyForOthers)' },
+    denied: ALL_ROLES,
+    allowed: 'maintenance',
+    success: 200,
+    emptyForOthers: { key: 'stretches' },
   },
   'GET /api/projects': { url: () => '/api/projects', foreign: NO_OBJECT, denied: ALL_ROLES, allowed: 'surveyor', success: 200 },
   'POST /api/projects': {
@@ -1375,5 +1398,12 @@ for (const [key, row] of Object.entries(MATRIX)) {
 
     const ok = await json(request, method, url, ctx.tokens[row.allowed], body);
     expect(ok.status, `role ${row.allowed}`).toBe(row.success);
+    if (row.emptyForOthers) {
+      const key = row.emptyForOthers.key;
+      expect((ok.body as Record<string, unknown[]>)[key].length, `${key} for ${row.allowed}`).toBeGreaterThan(0);
+      const theirs = await json<Record<string, unknown[]>>(request, method, url, ctx.foreignToken, body);
+      expect(theirs.status, 'another organisation').toBe(200);
+      expect(theirs.body![key], 'another organisation sees nothing').toEqual([]);
+    }
   });
 }
