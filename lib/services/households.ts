@@ -6,7 +6,7 @@ import type { Project } from '@/db/projects';
 import { AppError } from '@/lib/api/errors';
 import { auditActor, type Principal } from '@/lib/auth/principal';
 import { can } from '@/lib/auth/roles';
-import { plausibleDate } from '@/lib/records/plausible-ranges';
+import { connectSchema } from '@/lib/households/connect';
 import { loadCrossingRecords, loadHouseholdAddresses, loadHouseholdRoutes, loadHouseholdSections, setAddressConnected, upsertProgress, writeDerivedColumns, type DerivedColumns } from '@/db/households';
 import { getProject } from '@/db/projects';
 import { computePassed, householdFigures, type SectionInput } from '@/lib/households/passed';
@@ -74,10 +74,7 @@ export async function requestHouseholds(db: Knex, projectId: string, requestedBy
   return enqueueJob(db, { projectId, kind: 'households', input: { requestedBy }, createdBy: requestedBy });
 }
 
-export const connectSchema = z.object({
-  connected: z.boolean({ message: 'Say whether the drop is installed (connected: true or false).' }),
-  connectedOn: plausibleDate('the date the drop was installed').optional(),
-}).refine((v) => v.connected || v.connectedOn === undefined, { message: 'A drop not installed has no date installed.', path: ['connectedOn'] });
+export { connectSchema };
 
 /**
  * Records an address's drop as installed (or takes it back), by hand: the contractor's people only, with a
