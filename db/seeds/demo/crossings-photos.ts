@@ -12,7 +12,8 @@ import { createRoadCrossing } from '../../../lib/services/road-crossings';
 import type { DemoCtx } from './context';
 
 // The demo's road crossings and photos on Lanternfield Road: QN-X1 and QN-X2 sawn and laid on 2 November,
-// QN-X2 after the lengthways cut (the crew came back for it), QN-X3 not built yet (no record); three
+// QN-X2 after the lengthways cut (the crew came back for it), QN-X3 not built yet (no record); each lists
+// the keys of the houses across that it serves (db/seeds/04_demo_addresses.ts); three
 // photos along QN-101, placed by hand or by chainage (they carry no GPS), one of them showing QN-X1.
 // The pictures are drawn here: asphalt, the sawn slot and the coloured microducts. Fictional.
 
@@ -48,10 +49,10 @@ export async function seedCrossingsPhotos(knex: Knex, ctx: DemoCtx): Promise<voi
   const size14 = (await listDuctSizes(knex, project.id)).find((s) => s.outerMm === 14 && s.innerMm === 10)?.id ?? null;
 
   const x1 = await createRoadCrossing(knex, surveyor, project, roadCrossingSchema.parse({
-    routeId: route('QN-X1'), built: true, builtOn: '2026-11-02', lengthM: 9.3, sawnBeforeMain: true, ductCount: 1, ductSizeId: size14, addressRef: '14 Lanternfield Road',
+    routeId: route('QN-X1'), built: true, builtOn: '2026-11-02', lengthM: 9.3, sawnBeforeMain: true, ductCount: 1, ductSizeId: size14, addressRef: 'QH-LR-14; QH-LR-16',
   }));
   await createRoadCrossing(knex, surveyor, project, roadCrossingSchema.parse({
-    routeId: route('QN-X2'), built: true, builtOn: '2026-11-02', lengthM: 9.6, sawnBeforeMain: false, ductCount: 1, ductSizeId: size14, addressRef: '27 Lanternfield Road',
+    routeId: route('QN-X2'), built: true, builtOn: '2026-11-02', lengthM: 9.6, sawnBeforeMain: false, ductCount: 1, ductSizeId: size14, addressRef: 'QH-LR-28',
     note: 'Sawn after the lengthways cut: parked van over the crossing in the morning.',
   }));
 
