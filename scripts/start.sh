@@ -40,7 +40,7 @@ start_worker() {
   echo "$worker" >"$RUN_DIR/worker.pid"
   echo "trenchbook: job worker started (pid $worker, log $RUN_DIR/worker.log)"
   if [ -z "${SMTP_URL:-}" ] && [ -z "${SMTP_HOST:-}" ]; then
-    echo "trenchbook: no SMTP configured: e-mail goes to the local fake SMTP server in the worker (127.0.0.1:${MAIL_FAKE_PORT:-2525}); read it at http://127.0.0.1:$PORT/admin/mail"
+    echo "trenchbook: no SMTP configured: e-mail goes to the local fake SMTP server in the worker (its log names the port); read it at http://127.0.0.1:$PORT/admin/mail"
   fi
 }
 start_worker

@@ -12,7 +12,16 @@ import { smtpConfigured, smtpSender } from './transport';
 export async function startMailLoop(db: Db): Promise<{ stop: () => Promise<void>; where: string }> {
   const e = env();
   let fake: FakeSmtp | undefined;
-  if (!smtpConfigured(e)) fake = await startFakeSmtp(db, e.MAIL_FAKE_PORT);
+  if (!smtpConfigured(e)) {
+    try {
+      fake = await startFakeSmtp(db, e.MAIL_FAKE_PORT);
+    } catch (err) {
+      // another process (a second checkout's worker) holds the port: any free one will do
+      if ((err as NodeJS.ErrnoException).code !== 'EADDRINUSE') throw err;
+      console.error(`[trenchbook] mail: port ${e.MAIL_FAKE_PORT} is taken; the fake SMTP server takes a free one`);
+      fake = await startFakeSmtp(db, 0);
+    }
+  }
   const sender = smtpSender(e, fake?.port);
   let running = false;
   const tick = async () => {

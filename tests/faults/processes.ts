@@ -57,6 +57,9 @@ export function productEnv(extra: Record<string, string> = {}): NodeJS.ProcessEn
     EXPORTS_DIR: process.env.EXPORTS_DIR,
     UPLOAD_TMP_DIR: process.env.UPLOAD_TMP_DIR,
     JOB_HEARTBEAT_SECONDS: '1',
+    // the worker's fake SMTP server on any free port, never a developer's 2525; mail sent every second
+    MAIL_FAKE_PORT: '0',
+    MAIL_INTERVAL_SECONDS: '1',
     ...extra,
   };
 }
