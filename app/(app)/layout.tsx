@@ -12,7 +12,7 @@ export default async function AppLayout({ children }: { children: React.ReactNod
   const me = await requirePrincipal();
   return (
     <div className="min-h-screen">
-      <header className="border-b border-ink/10 bg-paper-raised">
+      <header className="border-b border-ink/10 bg-paper-raised print:hidden">
         {/* one row at every width: on a phone the mark stands for the name and the links scroll sideways */}
         <div className="mx-auto flex max-w-6xl items-center gap-x-3 px-4 py-2 sm:gap-x-6 sm:py-3">
           <Link href="/projects" className="flex shrink-0 items-center gap-2 text-ink no-underline hover:no-underline" aria-label="Trenchbook, all projects">

@@ -2,11 +2,11 @@ import { expect, test } from '@playwright/test';
 import { addUserWithToken, DEMO, signIn, signInThroughForm } from '../helpers/e2e';
 
 const ROLE_NAV: [keyof typeof DEMO, string, string[]][] = [
-  ['admin', 'Administrator', ['Projects', 'People', 'Activity', 'E-mail', 'Account']],
-  ['engineer', 'Engineer', ['Projects', 'Account']],
-  ['surveyor', 'Surveyor', ['Projects', 'Account']],
-  ['owner', 'Network owner', ['Projects', 'Account']],
-  ['maintenance', 'Maintenance', ['Projects', 'Account']],
+  ['admin', 'Administrator', ['Projects', 'Duct lookup', 'People', 'Activity', 'E-mail', 'Account']],
+  ['engineer', 'Engineer', ['Projects', 'Duct lookup', 'Account']],
+  ['surveyor', 'Surveyor', ['Projects', 'Duct lookup', 'Account']],
+  ['owner', 'Network owner', ['Projects', 'Duct lookup', 'Account']],
+  ['maintenance', 'Maintenance', ['Projects', 'Duct lookup', 'Account']],
 ];
 
 for (const [who, label, nav] of ROLE_NAV) {
