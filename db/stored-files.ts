@@ -13,6 +13,8 @@ const ORIGINAL_KEY_COLUMNS = [
   { table: 'photos', column: 'thumbnail_key' },
   // the address register's imports (issue 15)
   { table: 'address_imports', column: 'storage_key' },
+  // handover packages (issue 16): the issued ZIP
+  { table: 'handovers', column: 'storage_key' },
 ] as const;
 
 /** Of the given keys of the originals store, those a committed row names. */

@@ -30,6 +30,9 @@ export const ERROR_CODES = {
   too_few_points: { status: 422, summary: 'No track or line has the two points a line needs.' },
   // photos (issue 14): a photo must be placed
   position_required: { status: 422, summary: 'The photo has no GPS position of its own and none was given; details name the fields to fill.' },
+  // handover packages (issue 16)
+  nothing_to_package: { status: 422, summary: 'No current, approved section lies in the chosen scope of the handover package.' },
+  range_not_satisfiable: { status: 416, summary: 'The Range header asks for bytes outside the file; Content-Range gives its size.' },
   rate_limited: { status: 429, summary: 'Too many attempts; try again later.' },
   internal: { status: 500, summary: 'An unexpected error; it has been logged.' },
 } as const satisfies Record<string, { status: number; summary: string }>;

@@ -1,6 +1,7 @@
 import type { Knex } from 'knex';
 import { uploadTmpRoot } from '@/lib/api/multipart';
 import { env } from '@/lib/env';
+import { settleHandovers } from '@/lib/services/handovers';
 import { sweepOrphanFiles, type SweepReport } from '@/lib/services/orphans';
 import { exportsStore } from '@/lib/storage/exports-store';
 import { originalsStore } from '@/lib/storage/originals-store';
@@ -11,6 +12,8 @@ import { MISSED_BEATS, settleJobs, type SettleOutcome } from './settle';
 export async function housekeep(db: Knex, what: { jobs?: boolean; files?: boolean } = { jobs: true, files: true }): Promise<{ jobs: SettleOutcome[]; files: SweepReport | null }> {
   const e = env();
   const jobs = what.jobs ? await settleJobs(db, await getBoss(), e.JOB_HEARTBEAT_SECONDS) : [];
+  // a handover package whose build job ended without issuing it is failed with the job's reason
+  if (what.jobs) await settleHandovers(db);
   const files = what.files
     ? await sweepOrphanFiles(db, { originals: originalsStore(), exports: exportsStore(), uploadTmpRoot: uploadTmpRoot(), minAgeSeconds: e.ORPHAN_MIN_AGE_SECONDS })
     : null;

@@ -1,6 +1,7 @@
 import type { Knex } from 'knex';
 import type { Action } from '@/lib/auth/roles';
 import { exportAuditLog } from './audit-export';
+import { handoverJob } from '@/lib/services/handovers';
 import { householdsJob } from './households-job';
 import { reconcileJob } from './reconcile-job';
 
@@ -26,6 +27,7 @@ export const JOB_KINDS = {
   'audit-export': { run: exportAuditLog, action: 'audit.export' },
   reconcile: { run: reconcileJob, action: 'reconcile.run' },
   households: { run: householdsJob, action: 'address.read' },
+  handover: { run: handoverJob, action: 'handover.build' },
 } satisfies Record<string, JobKindSpec>;
 
 export type JobKind = keyof typeof JOB_KINDS;

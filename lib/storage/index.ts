@@ -16,7 +16,8 @@ export interface StoredObject {
  */
 export interface ObjectStore {
   put(key: string, body: Readable | Buffer): Promise<{ size: number }>;
-  get(key: string): Readable;
+  /** the object, or the bytes start..end (inclusive) of it */
+  get(key: string, range?: { start: number; end: number }): Readable;
   size(key: string): Promise<number | undefined>;
   /** removes the object; a folder it leaves empty goes too */
   remove(key: string): Promise<void>;
@@ -64,8 +65,8 @@ export class LocalStore implements ObjectStore {
     return { size: (await stat(target)).size };
   }
 
-  get(key: string): Readable {
-    return createReadStream(this.file(key));
+  get(key: string, range?: { start: number; end: number }): Readable {
+    return createReadStream(this.file(key), range);
   }
 
   async size(key: string): Promise<number | undefined> {

@@ -1,5 +1,7 @@
 import { listHandoverSummaries } from '@/db/handover-reviews';
+import { NextResponse } from 'next/server';
 import { byProjectParam, withRoute } from '@/lib/api/with-route';
+import { createHandover, createHandoverSchema } from '@/lib/services/handovers';
 
 // A project's handover packages, newest revision first: status, file, review, comments and answers.
 export const GET = withRoute({ action: 'handover.read', scope: byProjectParam }, async ({ db, project }) => {
@@ -15,3 +17,8 @@ export const GET = withRoute({ action: 'handover.read', scope: byProjectParam },
     })),
   };
 });
+
+// Builds the next revision: 202 with the package (status building) and its job; the job issues it or fails it.
+export const POST = withRoute({ action: 'handover.build', scope: byProjectParam, side: 'contractor', body: createHandoverSchema }, async ({ db, principal, project, body }) =>
+  NextResponse.json(await createHandover(db, principal, project, body), { status: 202 }),
+);
