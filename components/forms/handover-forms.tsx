@@ -12,12 +12,12 @@ const textareaClass = 'block w-full rounded-md border border-ink/20 bg-white px-
  * The contractor's build form: what goes into the package (every approved section, chosen routes, or an
  * area), the coordinate systems of its files and a note; then the build job's progress bar.
  */
-export function HandoverBuildForm({ projectId, routes, crsChoices }: { projectId: string; routes: { ref: string; name: string }[]; crsChoices: { code: string; label: string }[] }) {
+export function HandoverBuildForm({ projectId, routes, projectCrs }: { projectId: string; routes: { ref: string; name: string }[]; projectCrs: string | null }) {
   const router = useRouter();
   const [mode, setMode] = useState<'all' | 'routes' | 'bbox'>('all');
   const [picked, setPicked] = useState<string[]>([]);
   const [bbox, setBbox] = useState(['', '', '', '']);
-  const [crs, setCrs] = useState<string[]>(crsChoices.map((c) => c.code));
+  const [inProjectCrs, setInProjectCrs] = useState(projectCrs !== null);
   const [note, setNote] = useState('');
   const [error, setError] = useState<string | null>(null);
   const [fieldErrors, setFieldErrors] = useState<Record<string, string>>({});
@@ -27,8 +27,8 @@ export function HandoverBuildForm({ projectId, routes, crsChoices }: { projectId
     e.preventDefault();
     setError(null);
     setFieldErrors({});
-    const scope = mode === 'routes' ? { routes: picked } : mode === 'bbox' ? { bbox: bbox.map(Number) } : {};
-    const res = await callApi<{ job?: JobView; handover?: { jobId?: string } }>(`/api/projects/${projectId}/handovers`, 'POST', { scope, crs, note });
+    const scope = { ...(mode === 'routes' ? { routes: picked } : mode === 'bbox' ? { bbox: bbox.map(Number) } : {}), projectCrs: inProjectCrs };
+    const res = await callApi<{ job?: JobView }>(`/api/projects/${projectId}/handovers`, 'POST', { scope, note });
     if (!res.ok) {
       setFieldErrors(res.fieldErrors);
       return setError(res.message);
@@ -69,13 +69,13 @@ export function HandoverBuildForm({ projectId, routes, crsChoices }: { projectId
       )}
       <fieldset className="space-y-1">
         <legend className="text-sm font-medium">Coordinate systems of the files</legend>
-        {crsChoices.map((c) => (
-          <label key={c.code} className="flex items-center gap-2 text-sm">
-            <input type="checkbox" checked={crs.includes(c.code)} onChange={(e) => setCrs(e.target.checked ? [...crs, c.code] : crs.filter((x) => x !== c.code))} />
-            {c.label}
+        <p className="text-sm">WGS 84 longitude/latitude (EPSG:4326), always</p>
+        {projectCrs && (
+          <label className="flex items-center gap-2 text-sm">
+            <input type="checkbox" checked={inProjectCrs} onChange={(e) => setInProjectCrs(e.target.checked)} />
+            Also in the project&apos;s coordinate system ({projectCrs})
           </label>
-        ))}
-        {fieldErrors.crs && <p className="text-xs font-medium text-status-bad">{fieldErrors.crs}</p>}
+        )}
       </fieldset>
       <Field label="Note" htmlFor="handover-note" error={fieldErrors.note}>
         <textarea id="handover-note" className={textareaClass} rows={2} maxLength={2000} value={note} onChange={(e) => setNote(e.target.value)} />

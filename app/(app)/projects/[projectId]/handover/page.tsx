@@ -25,9 +25,10 @@ const isObj = (v: unknown): v is Record<string, unknown> => typeof v === 'object
 /** Words for the change report's keys (written by the package builder); other keys show as they are. */
 const CHANGE_WORDS: Record<string, string> = {
   added: 'added', removed: 'removed', changed: 'changed', gained: 'gained', lost: 'lost',
-  sections: 'Sections', householdsPassed: 'Households passed', households: 'Households passed', previousRevision: 'Compared with revision',
+  sectionsAdded: 'Sections added', sectionsRemoved: 'Sections removed', sectionsChanged: 'Sections changed',
+  passedGained: 'Households passed gained', passedLost: 'Households passed lost', previousRevision: 'Compared with revision',
 };
-const countOf = (v: unknown): string => (Array.isArray(v) ? String(v.length) : typeof v === 'number' || typeof v === 'string' ? String(v) : isObj(v) ? Object.entries(v).map(([k, x]) => `${CHANGE_WORDS[k] ?? k} ${countOf(x)}`).join(', ') : '—');
+const countOf = (v: unknown): string => (v === null ? '—' : Array.isArray(v) ? String(v.length) : typeof v === 'number' || typeof v === 'string' ? String(v) : isObj(v) ? Object.entries(v).map(([k, x]) => `${CHANGE_WORDS[k] ?? k} ${countOf(x)}`).join(', ') : '—');
 
 function ChangeReport({ report }: { report: unknown }) {
   if (!isObj(report)) return <p className="text-sm text-ink-soft">The first revision: nothing to compare with.</p>;
@@ -88,8 +89,6 @@ export default async function HandoverPage({ params }: { params: Promise<{ proje
   const builder = can(me.role, 'handover.build') && me.organisationId === project.contractorOrgId;
   const reviewer = can(me.role, 'handover.review') && me.organisationId === project.ownerOrgId;
   const labels = await sectionsOfProject(db, project.id, [...new Set(handovers.flatMap((h) => h.sectionIds))]);
-  const crsChoices = [{ code: 'EPSG:4326', label: 'WGS 84 longitude/latitude (EPSG:4326)' }];
-  if (project.defaultCrs && project.defaultCrs !== 'EPSG:4326') crsChoices.push({ code: project.defaultCrs, label: `The project's coordinate system (${project.defaultCrs})` });
 
   return (
     <>
@@ -97,7 +96,7 @@ export default async function HandoverPage({ params }: { params: Promise<{ proje
       <Cautions kinds={['digging']} />
       {builder && (
         <Card title="Build a new revision">
-          <HandoverBuildForm projectId={project.id} routes={routes.map((r) => ({ ref: r.ref, name: r.street ?? '' }))} crsChoices={crsChoices} />
+          <HandoverBuildForm projectId={project.id} routes={routes.map((r) => ({ ref: r.ref, name: r.street ?? '' }))} projectCrs={project.defaultCrs && project.defaultCrs !== 'EPSG:4326' ? project.defaultCrs : null} />
         </Card>
       )}
       {handovers.length === 0 ? <Notice>No package has been built yet.</Notice> : null}
