@@ -4,7 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb, getDb } from '@/db/client';
 import { AppError } from '@/lib/api/errors';
 import { startFakeSmtp } from '@/lib/mail/fake-smtp';
-import { appUrl, MAX_ATTEMPTS, sendDueMail } from '@/lib/mail/outbox';
+import { appUrl, listOutbox, MAX_ATTEMPTS, sendDueMail } from '@/lib/mail/outbox';
 import { smtpSender } from '@/lib/mail/transport';
 import { answerComments, answersSchema, reviewHandover, reviewSchema } from '@/lib/services/handover-reviews';
 import { createToken } from '@/lib/services/tokens';
@@ -233,5 +233,10 @@ describe('e-mail through the outbox and the fake SMTP server', () => {
     expect(got.map((g) => g.subject)).toEqual(['Your Trenchbook account']);
     expect(got[0].body).toContain(`${appUrl()}${onboarding.linkPath}`);
     expect(got[0].body).toContain(admin.name);
+    // /admin/mail: the inviting organisation's admin reads it; another organisation's admin does not
+    expect((await listOutbox(db, admin.organisationId)).filter((m) => m.to.includes(email)).map((m) => [m.subject, m.sentAt !== null])).toEqual([['Your Trenchbook account', true]]);
+    expect((await listOutbox(db, plan.owner.organisationId)).some((m) => m.to.includes(email))).toBe(false);
+    // the owner's admin reads the e-mails about its project sent to the contractor
+    expect((await listOutbox(db, plan.owner.organisationId)).map((m) => m.subject)).toContain(`${plan.project.name}: handover revision 1 returned`);
   });
 });
