@@ -48,7 +48,7 @@ test('an engineer sees the counts the API gives, filters passed, opens an addres
   expect(passed.some((a) => `${a.street} ${a.number}` === name)).toBe(true);
   await first.click();
   await expect(page).toHaveURL(/\/households\/addresses\/[0-9a-f-]{36}$/);
-  await expect(page.getByText(name).first()).toBeVisible();
+  await expect(page.getByRole('heading', { name, level: 1 })).toBeVisible();
 
   const dir = mkdtempSync(path.join(os.tmpdir(), 'households-e2e-'));
   await page.goto(url);
