@@ -132,3 +132,10 @@ export async function crossingsOn(db: Db, projectIds: string[], p: LonLat, radiu
   );
   return rows.map((r: Record<string, any>) => ({ id: r.id, projectId: r.project_id, routeRef: r.ref, built: r.built, coords: r.geometry.coordinates }));
 }
+
+/** The organisations' contacts (free text, empty when not set). */
+export async function ownerContacts(db: Db, orgIds: string[]): Promise<Map<string, string>> {
+  if (orgIds.length === 0) return new Map();
+  const rows = await db('organisations').whereIn('id', orgIds).select('id', 'contact');
+  return new Map(rows.map((r) => [r.id, r.contact]));
+}

@@ -5,6 +5,8 @@ export interface OrganisationRow {
   id: string;
   name: string;
   kind: OrgKind;
+  /** how to reach the organisation about its network; empty when not set */
+  contact: string;
   created_at: Date;
 }
 

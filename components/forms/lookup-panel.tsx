@@ -193,7 +193,7 @@ function StretchItem({ s }: { s: Stretch }) {
         <dt className="text-ink-soft">Laid</dt>
         <dd>{s.laidOn ?? '—'} · {REVIEW[s.review] ?? s.review} · {s.handoverRevision === null ? 'not handed over yet' : `handover revision ${s.handoverRevision}`}</dd>
         <dt className="text-ink-soft">Network</dt>
-        <dd>{s.projectName} · owner {s.ownerOrganisation}</dd>
+        <dd>{s.projectName} · owner {s.ownerOrganisation}{s.ownerContact ? ` · ${s.ownerContact}` : ''}</dd>
       </dl>
     </li>
   );

@@ -2,7 +2,7 @@ import { z } from 'zod';
 import type { Db } from '@/db/client';
 import { searchAddresses, type AddressCandidate } from '@/db/address-search';
 import { listDuctBundlesOnSection } from '@/db/duct-bundles';
-import { coverReadings, crossingsOn, nearbyPoints, nearbySections, routesByRef, uploadClasses, type NearbyPoint } from '@/db/lookup';
+import { coverReadings, crossingsOn, ownerContacts, nearbyPoints, nearbySections, routesByRef, uploadClasses, type NearbyPoint } from '@/db/lookup';
 import { listProjectsForOrganisation, type Project } from '@/db/projects';
 import { ACCURACY_CLASS_LABELS, type AccuracyClass } from '@/lib/records/accuracy-classes';
 import { snapOnLine } from '@/lib/records/anchor';
@@ -56,6 +56,8 @@ export interface Stretch {
   projectId: string;
   projectName: string;
   ownerOrganisation: string;
+  /** how to reach the network owner (organisations.contact); empty when not set */
+  ownerContact: string;
   routeRef: string | null;
   street: string | null;
   status: string;
@@ -99,6 +101,7 @@ export async function lookupNearby(db: Db, me: Principal, q: z.infer<typeof near
   const routes = await routesByRef(db, [...new Map(sections.filter((s) => s.routeRef).map((s) => [`${s.projectId}|${s.routeRef}`, { projectId: s.projectId, ref: s.routeRef! }])).values()]);
   const route = (projectId: string, ref: string | null) => routes.find((r) => r.projectId === projectId && r.ref === ref);
   const covers = await coverReadings(db, routes.map((r) => r.id));
+  const contacts = await ownerContacts(db, [...new Set(projects.map((p) => p.ownerOrgId))]);
   const classes = await uploadClasses(db, [...new Set(sections.flatMap((s) => s.sourceUploadIds))]);
 
   let addressSide: RouteSide | null = null;
@@ -123,7 +126,7 @@ export async function lookupNearby(db: Db, me: Principal, q: z.infer<typeof near
     const srcClasses = [...new Set(s.sourceUploadIds.map((u) => classes.get(u)?.accuracyClass).filter((c): c is AccuracyClass => c !== undefined))];
     const p = byId.get(s.projectId)!;
     stretches.push({
-      id: s.id, projectId: s.projectId, projectName: p.name, ownerOrganisation: p.ownerOrgName, routeRef: s.routeRef, street: r?.street ?? null, status: s.status,
+      id: s.id, projectId: s.projectId, projectName: p.name, ownerOrganisation: p.ownerOrgName, ownerContact: contacts.get(p.ownerOrgId) ?? '', routeRef: s.routeRef, street: r?.street ?? null, status: s.status,
       fromChainageM: s.fromChainageM, toChainageM: s.toChainageM, distanceM: round(s.distanceM, 2), radiusM: s.accuracyM === null ? null : round(s.accuracyM, 3),
       radiusSource: srcClasses.length ? srcClasses.map((c) => ACCURACY_CLASS_LABELS[c]).join(', ') : 'unknown',
       couldBeThisCloseM: round(couldBeThisClose(s.distanceM, s.accuracyM), 2), side: r ? side : null, sideOfAddress: r ? relativeSide(side, addressSide) : null,

@@ -67,6 +67,7 @@ function distanceToLine(p: [number, number], a: [number, number], b: [number, nu
 
 beforeAll(async () => {
   plan = await makeRecordPlan(db, 'Lookup', ORIGIN);
+  await db('organisations').where({ id: plan.project.ownerOrgId }).update({ contact: 'Network desk 555 0100' });
   foreign = await makeRecordPlan(db, 'Lookup elsewhere', ORIGIN);
   const rtk = await uploadOf(plan, 'rtk_gnss', 0.02);
   const walk = await uploadOf(plan, 'handheld_gnss', 4);
@@ -177,6 +178,8 @@ describe('nearby stretches', () => {
     expect(north.radiusSource).toBe('RTK GNSS');
     expect(north.handoverRevision).toBeNull();
     expect(north.laidOn).toBe('2026-11-03');
+    expect(north.ownerOrganisation).toBe(plan.project.ownerOrgName);
+    expect(north.ownerContact).toBe('Network desk 555 0100');
   });
   it('sorts by "could be this close" too: the walked crossing, 9.79 m uncertain, could be nearer than the surveyed street', async () => {
     const r = await lookupNearby(db, plan.maintenance, q(45, 9, { order: 'could_be' }));
