@@ -1,13 +1,14 @@
 #!/usr/bin/env bash
 # Installs the Debian packages Trenchbook needs when they are missing.
-#   ensure-system.sh db     -> PostgreSQL 15 + PostGIS 3 (needed to run the product)
+#   ensure-system.sh db     -> PostgreSQL 15 + PostGIS 3, and gdal-bin (ogr2ogr writes the handover package's
+#                              shapefiles and GeoPackage): needed to run the product
 #   ensure-system.sh test   -> the above plus chromium, gdal-bin and python3-openpyxl (needed by the tests)
 # As root it uses apt-get (with apt-get update first); otherwise it stops and says what to install.
 set -euo pipefail
 want="${1:-db}"
 missing=()
 have_pkg() { dpkg-query -W -f='${Status}' "$1" 2>/dev/null | grep -q "install ok installed"; }
-for p in postgresql-15 postgresql-15-postgis-3; do have_pkg "$p" || missing+=("$p"); done
+for p in postgresql-15 postgresql-15-postgis-3 gdal-bin; do have_pkg "$p" || missing+=("$p"); done
 if [ "$want" = "test" ]; then
   for p in chromium gdal-bin python3-openpyxl; do have_pkg "$p" || missing+=("$p"); done
 fi

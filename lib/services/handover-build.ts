@@ -121,7 +121,7 @@ async function load(db: Knex, project: Project, scope: HandoverScope): Promise<L
     .select('t.*', 'r.ref as route').orderBy(['r.ref', 't.from_chainage_m', 't.id']);
   // installed duct metres by size and colour, per section (bundle stretch overlapping the section's stretch)
   const ductRows = await db.raw(
-    `select s.id as section_id, d.outer_mm || '/' || coalesce(d.inner_mm::text, '?') || ' mm' as size, coalesce(d.colour_name, 'uncoloured') as colour,
+    `select s.id as section_id, d.outer_mm || '/' || coalesce(d.inner_mm::text, 'unknown') || ' mm' as size, coalesce(d.colour_name, 'uncoloured') as colour,
             sum(greatest(0, least(b.to_chainage_m, s.to_chainage_m) - greatest(b.from_chainage_m, s.from_chainage_m)))::float8 as metres
        from sections s join planned_routes r on r.project_id = s.project_id and r.ref = s.planned_route_ref and r.removed_in_version is null
        join duct_bundles b on b.route_id = r.id and b.kind = 'installed' join duct_bundle_ducts d on d.bundle_id = b.id
@@ -288,6 +288,8 @@ async function sha256File(file: string): Promise<{ sha256: string; bytes: number
   return { sha256: h.digest('hex'), bytes };
 }
 
+const castOf = (name: string, type: string) =>
+  type === 'real' ? `CAST("${name}" AS float)` : type === 'integer' ? `CAST("${name}" AS integer)` : type === 'date' ? `CAST("${name}" AS date)` : type === 'boolean' ? `"${name}"` : `CAST("${name}" AS character(254))`;
 const PRJ_EPSG = (crs: string) => crs.replace(/^EPSG:/i, '');
 
 export function readmeText(inp: BuildInput, counts: Record<string, number>, crsNote: string): string {
@@ -331,11 +333,20 @@ export async function buildPackage(db: Knex, inp: BuildInput, progress: Progress
     for (const t of crsTargets) {
       const gpkg = path.join(dir, 'gpkg', `handover${t.suffix}.gpkg`);
       for (const def of LAYERS) {
-        const src = path.join(dir, 'geojson', `${def.name}.geojson`);
-        const sql = `SELECT ${def.fields.map((fl) => `"${fl.name}" AS "${fl.short}"`).join(', ')} FROM "${def.name}"`;
-        await ogr(['-f', 'ESRI Shapefile', '-t_srs', t.srs, '-lco', `DBF_DATE_LAST_UPDATE=${day}`, '-lco', 'ENCODING=UTF-8', '-nlt', def.geometry.toUpperCase(), '-sql', sql, '-nln', `${def.name}${t.suffix}`,
+        // GDAL takes the field types from the values it sees: an empty layer gets a seed feature of the right
+        // types that the WHERE drops, and every field is cast to its type
+        let src = path.join(dir, 'geojson', `${def.name}.geojson`);
+        const empty = counts[def.name] === 0;
+        if (empty) {
+          src = path.join(tmpDir, `${def.name}.seed.geojson`);
+          const seed = Object.fromEntries(def.fields.map((fl) => [fl.name, fl.type === 'real' ? 0.5 : fl.type === 'integer' ? 1 : fl.type === 'boolean' ? true : fl.type === 'date' ? '2000-01-01' : 'x']));
+          const geometry = def.geometry === 'Point' ? { type: 'Point', coordinates: [0, 0] } : { type: 'LineString', coordinates: [[0, 0], [1, 1]] };
+          await writeText(src, async (w) => w(JSON.stringify({ type: 'FeatureCollection', name: def.name, features: [{ type: 'Feature', geometry, properties: seed }] })));
+        }
+        const select = (short: boolean) => `SELECT ${def.fields.map((fl) => `${castOf(fl.name, fl.type)} AS "${short ? fl.short : fl.name}"`).join(', ')} FROM "${def.name}"${empty ? ' WHERE 1 = 0' : ''}`;
+        await ogr(['-f', 'ESRI Shapefile', '-t_srs', t.srs, '-lco', `DBF_DATE_LAST_UPDATE=${day}`, '-lco', 'ENCODING=UTF-8', '-nlt', def.geometry.toUpperCase(), '-dialect', 'OGRSQL', '-sql', select(true), '-nln', `${def.name}${t.suffix}`,
           path.join(dir, 'shp', `${def.name}${t.suffix}.shp`), src], inp.createdAt);
-        await ogr(['-f', 'GPKG', '-t_srs', t.srs, '-append', '-nlt', def.geometry.toUpperCase(), '-nln', def.name, gpkg, src], inp.createdAt);
+        await ogr(['-f', 'GPKG', '-t_srs', t.srs, '-append', '-nlt', def.geometry.toUpperCase(), '-dialect', 'OGRSQL', '-sql', select(false), '-nln', def.name, gpkg, src], inp.createdAt);
       }
       await progress(0.35 + 0.25 / crsTargets.length, 'Shapefiles and GeoPackage written');
     }

@@ -1,0 +1,233 @@
+import { execFileSync } from 'node:child_process';
+import { createHash } from 'node:crypto';
+import { existsSync } from 'node:fs';
+import { mkdtemp, readFile, readdir, rm } from 'node:fs/promises';
+import os from 'node:os';
+import path from 'node:path';
+import { check } from '@placemarkio/check-geojson';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { closeDb, getDb } from '@/db/client';
+import { previousIssued } from '@/db/handovers';
+import { AppError } from '@/lib/api/errors';
+import { LAYERS, shortNameProblems } from '@/lib/handover/layers';
+import { parseRange } from '@/lib/handover/range';
+import { buildPackage } from '@/lib/services/handover-build';
+import { createHandover, createHandoverSchema, handoverStatus } from '@/lib/services/handovers';
+import { originalsStore } from '@/lib/storage/originals-store';
+import { count } from '../helpers/fixtures';
+import { makeRecordPlan, type RecordPlan } from '../helpers/record-plan';
+
+// The handover package builder (issue 16, helper E1), checked by independent readers: GDAL's ogrinfo for
+// every layer in every format, Debian's openpyxl for the workbook, @placemarkio/check-geojson for RFC 7946.
+
+const db = getDb();
+let plan: RecordPlan;
+const sections: string[] = [];
+
+async function sectionOf(from: number, to: number, review = 'approved', status = 'as_planned', ref = 'S-1', north = 0): Promise<string> {
+  const [a, b] = [plan.at(from, north), plan.at(to, north)];
+  const [row] = await db('sections').insert({
+    project_id: plan.project.id, planned_route_ref: ref, status, from_chainage_m: from, to_chainage_m: to,
+    geom: db.raw('ST_SetSRID(ST_MakeLine(ST_MakePoint(?, ?), ST_MakePoint(?, ?)), 4326)', [a[0], a[1], b[0], b[1]]),
+    length_m: to - from, max_offset_m: 0.1, p95_offset_m: 0.08, accuracy_m: 0.05, laid_on: '2026-11-03', first_run: 1, last_run: 1, review,
+  }).returning('id');
+  return row.id;
+}
+
+async function issue(scope: Record<string, unknown> = {}) {
+  const out = await createHandover(db, plan.engineer, plan.project, createHandoverSchema.parse({ scope, note: 'test' }));
+  const { runJob } = await import('@/lib/jobs/queue');
+  await runJob(db, out.job.id);
+  return out;
+}
+
+async function unzip(key: string): Promise<string> {
+  const dir = await mkdtemp(path.join(os.tmpdir(), 'tb-ho-test-'));
+  const zip = path.join(dir, 'p.zip');
+  const chunks: Buffer[] = [];
+  for await (const c of originalsStore().get(key)) chunks.push(c as Buffer);
+  await (await import('node:fs/promises')).writeFile(zip, Buffer.concat(chunks));
+  execFileSync('/usr/bin/python3', ['-m', 'zipfile', '-e', zip, path.join(dir, 'x')]);
+  return path.join(dir, 'x');
+}
+
+const ogrinfo = (args: string[]) => execFileSync('ogrinfo', ['-ro', '-so', ...args], { encoding: 'utf8' });
+const ogrAll = (args: string[]) => execFileSync('ogrinfo', ['-ro', '-al', '-q', ...args], { encoding: 'utf8' });
+
+beforeAll(async () => {
+  plan = await makeRecordPlan(db, 'Handover build', [9.7, 52.7]);
+  sections.push(await sectionOf(0, 120), await sectionOf(120, 200, 'approved', 'deviates'), await sectionOf(0, 9, 'approved', 'as_planned', 'X-1'));
+  await sectionOf(0, 9, 'pending', 'as_planned', 'X-2'); // not approved: not packaged
+  await db('road_crossings').insert({ project_id: plan.project.id, route_id: plan.routes.get('X-1'), from_chainage_m: 0, to_chainage_m: 9, built: true, built_on: '2026-11-04', length_m: 9, duct_count: 1, address_ref: 'A-2' });
+  await db('depth_readings').insert([30, 60].map((ch, i) => ({ project_id: plan.project.id, route_id: plan.routes.get('S-1'), chainage_m: ch, offset_m: 0, geom: db.raw('ST_SetSRID(ST_MakePoint(?, ?), 4326)', plan.at(ch, 0)), cover_m: 0.42 + i / 100, trench_depth_m: 0.48, source: 'typed' })));
+  await db('addresses').insert([['A-1', 50, 12, true], ['A-2', 40, -20, true], ['A-3', 400, 30, false]].map(([key, e, n, passed]) => ({
+    project_id: plan.project.id, key, street: 'Test Street', number: String(e), units: 2, geom: db.raw('ST_SetSRID(ST_MakePoint(?, ?), 4326)', plan.at(e as number, n as number)), passed, passed_approved: passed,
+  })));
+});
+afterAll(() => closeDb());
+
+describe('layers', () => {
+  it('short names fit a DBF (≤ 10 characters, unique per layer)', () => {
+    expect(shortNameProblems()).toEqual([]);
+    expect(shortNameProblems([{ name: 'x', title: 'x', geometry: 'Point', fields: [{ name: 'a', short: 'abcdefghijk', type: 'string', description: '' }, { name: 'b', short: 'ABCDEFGHIJK', type: 'string', description: '' }] }])).toHaveLength(3);
+  });
+  it('byte ranges per RFC 9110 §14.1.2', () => {
+    expect(parseRange('bytes=0-9', 100)).toEqual({ start: 0, end: 9 });
+    expect(parseRange('bytes=90-', 100)).toEqual({ start: 90, end: 99 });
+    expect(parseRange('bytes=-10', 100)).toEqual({ start: 90, end: 99 });
+    expect(parseRange('bytes=95-200', 100)).toEqual({ start: 95, end: 99 });
+    expect(parseRange('bytes=100-', 100)).toBe('unsatisfiable');
+    expect(parseRange('bytes=0-1,5-6', 100)).toBeNull();
+  });
+});
+
+describe('a built package', () => {
+  let dir: string;
+  let h: Awaited<ReturnType<typeof handoverStatus>>['handover'];
+
+  beforeAll(async () => {
+    const out = await issue();
+    h = (await handoverStatus(db, out.handover.id)).handover;
+    expect(h.status, String(h.failureReason)).toBe('issued');
+    dir = await unzip((await db('handovers').where({ id: h.id }).first()).storage_key);
+  });
+  afterAll(() => rm(path.dirname(dir), { recursive: true, force: true }));
+
+  it('holds every layer in every format, read back by GDAL with counts, types, CRS and a known value [computed with GDAL 3.6 ogrinfo]', async () => {
+    const expected: Record<string, [number, string]> = {
+      as_built_sections: [3, 'Line String'], planned_routes: [2, 'Line String'], road_crossings: [1, 'Line String'], test_pits: [0, 'Point'],
+      utility_crossings: [0, 'Point'], depth_readings: [2, 'Point'], photo_points: [0, 'Point'], addresses: [3, 'Point'],
+    };
+    for (const def of LAYERS) {
+      const [n, type] = expected[def.name];
+      for (const file of [`geojson/${def.name}.geojson`, `kml/${def.name}.kml`, `shp/${def.name}.shp`]) {
+        const info = ogrinfo([path.join(dir, file), def.name]);
+        expect(info, file).toContain(`Feature Count: ${n}`);
+        if (n > 0 && !file.endsWith('.kml')) expect(info, file).toContain(`Geometry: ${type}`);
+        expect(info, file).toMatch(/WGS 84|WGS_1984/);
+      }
+      const g = ogrinfo([path.join(dir, 'gpkg/handover.gpkg'), def.name]);
+      expect(g).toContain(`Feature Count: ${n}`);
+      expect(g).toContain(`Geometry: ${type}`);
+      expect(g).toMatch(/ID\["EPSG",4326\]/); // the layer's CRS is EPSG:4326
+    }
+    // a known attribute value: the deviating section's status, under its full name and its short name
+    expect(ogrAll([path.join(dir, 'geojson/as_built_sections.geojson')])).toContain('status (String) = deviates');
+    expect(ogrAll([path.join(dir, 'shp/as_built_sections.shp')])).toMatch(/p95_off_m \(Real\) = 0\.08/);
+    expect(ogrAll([path.join(dir, 'kml/addresses.kml')])).toContain('address_key (String) = A-2');
+    expect(ogrAll([path.join(dir, 'gpkg/handover.gpkg'), 'depth_readings'])).toContain('cover_m (Real) = 0.43');
+  });
+
+  it('writes GeoJSON per RFC 7946: valid, no crs, ≤ 7 decimals, a bbox holding every position, no polygon rings to wind', async () => {
+    for (const def of LAYERS) {
+      const text = await readFile(path.join(dir, `geojson/${def.name}.geojson`), 'utf8');
+      const fc = check(text) as unknown as { bbox?: number[]; features: { geometry: { coordinates: unknown } }[]; crs?: unknown }; // throws on an invalid object [@placemarkio/check-geojson]
+      expect(fc.crs).toBeUndefined(); // RFC 7946 §4: no crs member
+      const positions = fc.features.flatMap((f) => (typeof (f.geometry.coordinates as number[])[0] === 'number' ? [f.geometry.coordinates as number[]] : (f.geometry.coordinates as number[][])));
+      for (const m of text.matchAll(/-?\d+\.(\d+)(?=[,\]])/g)) expect(m[1].length).toBeLessThanOrEqual(7); // §11.2
+      if (positions.length) {
+        const [w, s, e, n] = fc.bbox!; // §5: [west, south, east, north]
+        for (const [x, y] of positions) expect(x >= w && x <= e && y >= s && y <= n).toBe(true);
+        expect(positions.some(([x]) => x === w) && positions.some(([, y]) => y === n)).toBe(true);
+      } else expect(fc.bbox).toBeUndefined();
+      // §3.1.6 winding applies to polygons only; every layer here is points or lines
+      expect(['Point', 'LineString']).toContain(def.geometry);
+    }
+  });
+
+  it('has a workbook openpyxl reads: sheets, a header with units, a date cell as a date, the trench total and volumes [computed with openpyxl]', async () => {
+    const script = `import json,sys,openpyxl,datetime
+wb=openpyxl.load_workbook(sys.argv[1])
+s=wb['Sections']; q=wb['Quantities']
+print(json.dumps({'sheets':wb.sheetnames,'header':[c.value for c in s[1]],'laid':isinstance(s['K2'].value,datetime.datetime) and s['K2'].value.strftime('%Y-%m-%d'),
+ 'freeze':s.freeze_panes,'filter':s.auto_filter.ref,'q':{r[0].value:r[1].value for r in q.iter_rows(min_row=2)}}))`;
+    const out = JSON.parse(execFileSync('/usr/bin/python3', ['-c', script, path.join(dir, 'workbook/schedules.xlsx')], { encoding: 'utf8' }));
+    expect(out.sheets).toEqual(['Summary', 'Sections', 'Ducts', 'Depths', 'Road crossings', 'Test pits and utilities', 'Restoration', 'Households passed', 'Deviations', 'Quantities']);
+    expect(out.header.slice(0, 6)).toEqual(['Section id', 'Route', 'Street', 'From chainage (m)', 'To chainage (m)', 'Length (m)']);
+    expect(out.laid).toBe('2026-11-03');
+    expect(out.freeze).toBe('A2');
+    expect(out.filter).toMatch(/^A1:L1$/);
+    expect(out.q['Trench length']).toBeCloseTo(209, 6); // 120 + 80 + 9 m
+    // 209 m × 0.024 m × 0.48 m = 2.40768 m³ (0.01152 m³/m, ../shared/REFERENCES.md) [computed]
+    const spoil = Object.entries(out.q).find(([k]) => k.startsWith('Spoil'))![1] as number;
+    expect(spoil).toBeCloseTo(209 * plan.project.records.trenchWidthMm / 1000 * plan.project.records.trenchDepthMm / 1000, 3);
+  });
+
+  it('lists every file in the manifest with its bytes and SHA-256, and says the cautions in README.txt', async () => {
+    const manifest = JSON.parse(await readFile(path.join(dir, 'manifest.json'), 'utf8'));
+    expect(manifest.revision).toBe(h.revision);
+    expect(manifest.recordCounts.as_built_sections).toBe(3);
+    for (const f of manifest.files as { path: string; bytes: number; sha256: string }[]) {
+      const bytes = await readFile(path.join(dir, f.path));
+      expect(bytes.length, f.path).toBe(f.bytes);
+      expect(createHash('sha256').update(bytes).digest('hex'), f.path).toBe(f.sha256);
+    }
+    const listed = new Set(manifest.files.map((f: { path: string }) => f.path));
+    for (const d of ['geojson', 'kml', 'shp', 'gpkg', 'workbook']) for (const f of await readdir(path.join(dir, d))) expect(listed.has(`${d}/${f}`), f).toBe(true);
+    const readme = await readFile(path.join(dir, 'README.txt'), 'utf8');
+    expect(readme).toContain('verified on site before digging');
+    expect(readme).toContain('p95_offset_m = p95_off_m');
+    expect(h.sha256).toBe(createHash('sha256').update(await readFile(path.join(path.dirname(dir), 'p.zip'))).digest('hex'));
+  });
+
+  it('is byte-identical when the same revision is built again from the same data', async () => {
+    const row = await db('handovers').where({ id: h.id }).first();
+    const inp = { project: plan.project, revision: row.revision, createdAt: row.created_at, createdByName: 'x', scope: {}, note: '', previous: null };
+    const a = await buildPackage(db, inp, async () => undefined);
+    await new Promise((r) => setTimeout(r, 2100)); // a later clock second must not show in the bytes
+    const b = await buildPackage(db, inp, async () => undefined);
+    try {
+      expect(a.sha256).toBe(b.sha256);
+      expect(a.sizeBytes).toBe(b.sizeBytes);
+    } finally {
+      await rm(a.tmpDir, { recursive: true, force: true });
+      await rm(b.tmpDir, { recursive: true, force: true });
+    }
+  });
+});
+
+describe('revisions and failures', () => {
+  it('reports exactly what changed against the previous issued revision', async () => {
+    const prev = (await db('handovers').where({ project_id: plan.project.id, status: 'issued' }).orderBy('revision', 'desc').first());
+    await db('sections').where({ id: sections[1] }).update({ status: 'as_planned' });
+    await db('sections').where({ id: sections[2] }).update({ review: 'pending' });
+    const added = await sectionOf(0, 9, 'approved', 'as_planned', 'X-3');
+    await db('addresses').where({ project_id: plan.project.id, key: 'A-3' }).update({ passed: true, passed_approved: true });
+    await db('addresses').where({ project_id: plan.project.id, key: 'A-1' }).update({ passed: false, passed_approved: false });
+    const out = await issue();
+    const s = (await handoverStatus(db, out.handover.id)).handover;
+    expect(s.status).toBe('issued');
+    const r = s.changeReport as Record<string, unknown>;
+    expect(r.previousRevision).toBe(prev.revision);
+    expect((r.sectionsAdded as { id: string }[]).map((x) => x.id)).toEqual([added]);
+    expect((r.sectionsRemoved as { id: string }[]).map((x) => x.id)).toEqual([sections[2]]);
+    expect(r.sectionsChanged).toEqual([expect.objectContaining({ id: sections[1], changed: ['status'] })]);
+    expect(r.passedGained).toEqual(['A-3']);
+    expect(r.passedLost).toEqual(['A-1']);
+    expect((await previousIssued(db, plan.project.id, s.revision + 1))?.revision).toBe(s.revision);
+  });
+
+  it('refuses a scope with nothing to package (422) and stores nothing', async () => {
+    const before = await count(db, 'handovers');
+    const err = await createHandover(db, plan.engineer, plan.project, createHandoverSchema.parse({ scope: { routes: ['X-2'] } })).catch((e: unknown) => e);
+    expect(err).toBeInstanceOf(AppError);
+    expect((err as AppError).code).toBe('nothing_to_package');
+    expect(await count(db, 'handovers')).toBe(before);
+  });
+
+  it('leaves a failed package with its reason and no stored file when the build fails', async () => {
+    const out = await createHandover(db, plan.engineer, plan.project, createHandoverSchema.parse({ scope: { routes: ['X-3'] } }));
+    // the approval is withdrawn between the request and the build: the job finds nothing to package
+    await db('sections').where({ project_id: plan.project.id, planned_route_ref: 'X-3' }).update({ review: 'pending' });
+    const { runJob } = await import('@/lib/jobs/queue');
+    await runJob(db, out.job.id);
+    const row = await db('handovers').where({ id: out.handover.id }).first();
+    expect(row.status).toBe('failed');
+    expect(row.failure_reason).toContain('Nothing to package');
+    expect(row.storage_key).toBeNull();
+    const key = `handovers/${plan.project.id}/${out.handover.id}/handover-r${row.revision}.zip`;
+    expect(await originalsStore().size(key)).toBeUndefined();
+    expect(existsSync(path.join(os.tmpdir(), 'nothing'))).toBe(false);
+    expect((await db('audit_log').where({ object_id: out.handover.id }).select('action')).map((a: { action: string }) => a.action).sort()).toEqual(['build', 'fail']);
+  });
+});
