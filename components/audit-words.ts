@@ -302,6 +302,19 @@ export function describeAudit(e: AuditLike): string {
       const n = Array.isArray(a.answers) ? a.answers.length : 0;
       return `Answered ${plural(n, 'comment')} of the network owner on handover revision ${say(a.revision)}.`;
     }
+    // building handover packages (issue 16, helper E1)
+    case 'handover build': {
+      const sc = isObj(a.scope) ? a.scope : {};
+      const routes = Array.isArray(sc.routes) ? (sc.routes as unknown[]) : [];
+      const where = routes.length ? ` of route${routes.length === 1 ? '' : 's'} ${routes.map(say).join(', ')}` : Array.isArray(sc.bbox) ? ' of an area' : ' of every approved section';
+      return `Started building handover revision ${say(a.revision)}${where}.`;
+    }
+    case 'handover issue': {
+      const c = isObj(a.changes) ? a.changes : {};
+      return `Issued handover revision ${say(a.revision)} (${say(c.added)} sections added, ${say(c.removed)} removed, ${say(c.changed)} changed).`;
+    }
+    case 'handover fail':
+      return `Handover revision ${say(a.revision)} failed: ${say(a.reason)}`;
     // road crossings and photos (issue 14)
     case 'road_crossing create':
       return `Recorded road crossing ${say(a.route)} ${crossingFacts(a)}.`;

@@ -1,7 +1,7 @@
 import { readdirSync, readFileSync, statSync } from 'node:fs';
 import path from 'node:path';
 import { expect, test, type APIRequestContext } from '@playwright/test';
-import { addUserWithToken, DEMO, issuedHandoverFixture, json } from '../helpers/e2e';
+import { addUserWithToken, approvedSectionFixture, DEMO, issuedHandoverFixture, json } from '../helpers/e2e';
 import { gpxTrack } from '../helpers/upload-form';
 // road crossings and photos: a small PNG to upload
 import sharp from 'sharp';
@@ -852,6 +852,31 @@ const MATRIX: Record<string, Row | PublicRow> = {
     success: 201,
   },
   // ---- end of handover review and answers ----
+  // ---- handover packages: build, status, download (helper E1) ----
+  'POST /api/projects/[projectId]/handovers': {
+    url: () => `/api/projects/${hv.projectId}/handovers`,
+    foreign: () => `/api/projects/${hv.foreignProjectId}/handovers`,
+    // the contractor's engineers and admins build; the owner's people and surveyors do not
+    denied: 'surveyor',
+    allowed: 'engineer',
+    body: () => ({ scope: {}, note: 'isolation matrix' }),
+    success: 202,
+  },
+  'GET /api/handovers/[handoverId]': {
+    url: () => `/api/handovers/${hv.issuedId}`,
+    foreign: () => `/api/handovers/${hv.foreignId}`,
+    denied: ALL_ROLES,
+    allowed: 'maintenance',
+    success: 200,
+  },
+  'GET /api/handovers/[handoverId]/download': {
+    url: () => `/api/handovers/${hv.issuedId}/download`,
+    foreign: () => `/api/handovers/${hv.foreignId}/download`,
+    denied: ALL_ROLES,
+    allowed: 'owner',
+    success: 200,
+  },
+  // ---- end of handover packages ----
   'GET /api/crs': { url: () => '/api/crs?q=25832', foreign: NO_OBJECT, denied: ALL_ROLES, allowed: 'surveyor', success: 200 },
   'GET /api/audit': { url: () => '/api/audit', foreign: NO_OBJECT, denied: 'maintenance', allowed: 'admin', success: 200 },
 };
@@ -1324,6 +1349,8 @@ test.beforeAll(async ({ request }) => {
       issuedId: issuedHandoverFixture(mine),
       foreignId: issuedHandoverFixture(fp.body!.project.id),
     };
+    // the build route needs an approved section in the project (helper E1)
+    approvedSectionFixture(mine);
   }
   // ---- end of handover review and answers ----
   ctx = {

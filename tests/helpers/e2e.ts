@@ -34,6 +34,12 @@ export function issuedHandoverFixture(projectId: string): string {
   return out.trim().split('\n').at(-1)!;
 }
 
+/** TEST ONLY: one approved section in the project (tests/helpers/approved-section-fixture.ts), so a handover can be built. */
+export function approvedSectionFixture(projectId: string): string {
+  const out = execFileSync('node', ['--import', 'tsx', 'tests/helpers/approved-section-fixture.ts', projectId], { cwd: root, env: { ...process.env, DATABASE_URL: e2eDbUrl() }, encoding: 'utf8' });
+  return out.trim().split('\n').at(-1)!;
+}
+
 export async function signInThroughForm(page: Page, email: string, password = DEMO_PASSWORD): Promise<void> {
   await page.goto('/sign-in');
   await page.getByLabel('E-mail').fill(email);

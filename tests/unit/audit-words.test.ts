@@ -122,6 +122,11 @@ describe('parser warnings', () => {
     expect(describeAudit({ objectType: 'handover', action: 'return', before: { revision: 1, status: 'issued' }, after: { revision: 1, status: 'returned', comments: [{ section: 'QN-101 0–120 m', text: 'Depth missing' }, { section: null, text: 'Add the crossings' }] } }))
       .toBe('Returned handover revision 1 with 2 comments (section QN-101 0–120 m: “Depth missing”; the package: “Add the crossings”).');
     expect(describeAudit({ objectType: 'handover', action: 'accept', before: { revision: 2, status: 'issued' }, after: { revision: 2, status: 'accepted', comments: [] } })).toBe('Accepted handover revision 2.');
+    // building them (helper E1)
+    expect(describeAudit({ objectType: 'handover', action: 'build', before: null, after: { revision: 3, scope: { routes: ['QN-101', 'QN-102'] }, note: '' } })).toBe('Started building handover revision 3 of routes QN-101, QN-102.');
+    expect(describeAudit({ objectType: 'handover', action: 'build', before: null, after: { revision: 1, scope: {}, note: '' } })).toBe('Started building handover revision 1 of every approved section.');
+    expect(describeAudit({ objectType: 'handover', action: 'issue', before: { status: 'building' }, after: { revision: 2, status: 'issued', changes: { added: 1, removed: 0, changed: 2 } } })).toBe('Issued handover revision 2 (1 sections added, 0 removed, 2 changed).');
+    expect(describeAudit({ objectType: 'handover', action: 'fail', before: { status: 'building' }, after: { revision: 4, status: 'failed', reason: 'The build failed: disk full' } })).toBe('Handover revision 4 failed: The build failed: disk full');
     expect(describeAudit({ objectType: 'handover', action: 'answer', before: null, after: { revision: 1, answers: [{ id: 3, answers: 1, text: 'Re-surveyed' }] } })).toBe('Answered 1 comment of the network owner on handover revision 1.');
     const photo = { fileName: 'IMG_0042.jpg', caption: 'Slot at no. 12', route: 'QN-101', chainageM: 57.3, placedBy: 'exif', crossing: null, pitId: null, takenAt: null, sizeBytes: 1 };
     expect(describeAudit({ objectType: 'photo', action: 'create', before: null, after: photo })).toBe('Added the photo IMG_0042.jpg on QN-101 at 57.3 m, placed from its own GPS position. Caption: Slot at no. 12.');
