@@ -14,6 +14,11 @@ import { parseRange } from '@/lib/handover/range';
 import { buildPackage } from '@/lib/services/handover-build';
 import { createHandover, createHandoverSchema, handoverStatus } from '@/lib/services/handovers';
 import { originalsStore } from '@/lib/storage/originals-store';
+import { createToken } from '@/lib/services/tokens';
+import { NextRequest } from 'next/server';
+import { GET as downloadRoute } from '@/app/api/handovers/[handoverId]/download/route';
+import { GET as statusRoute } from '@/app/api/handovers/[handoverId]/route';
+import { POST as buildRoute } from '@/app/api/projects/[projectId]/handovers/route';
 import { count } from '../helpers/fixtures';
 import { makeRecordPlan, type RecordPlan } from '../helpers/record-plan';
 
@@ -168,6 +173,28 @@ print(json.dumps({'sheets':wb.sheetnames,'header':[c.value for c in s[1]],'laid'
     expect(readme).toContain('verified on site before digging');
     expect(readme).toContain('p95_offset_m = p95_off_m');
     expect(h.sha256).toBe(createHash('sha256').update(await readFile(path.join(path.dirname(dir), 'p.zip'))).digest('hex'));
+  });
+
+  it('is downloaded through the route whole or by byte range (206, 416), its status read, a build refused to the owner', async () => {
+    const owner = (await createToken(db, plan.owner, { name: 'ho' })).secret;
+    const call = (handler: (req: NextRequest, ctx: { params: Promise<Record<string, string>> }) => Promise<Response>, method: string, url: string, params: Record<string, string>, headers: Record<string, string> = {}, body?: unknown) =>
+      handler(new NextRequest(`http://127.0.0.1${url}`, { method, headers: { authorization: `Bearer ${owner}`, 'content-type': 'application/json', ...headers }, body: body === undefined ? undefined : JSON.stringify(body) }), { params: Promise.resolve(params) });
+    const zip = await readFile(path.join(path.dirname(dir), 'p.zip'));
+    const whole = await call(downloadRoute, 'GET', `/api/handovers/${h.id}/download`, { handoverId: h.id });
+    expect(whole.status).toBe(200);
+    expect(whole.headers.get('accept-ranges')).toBe('bytes');
+    expect(Buffer.from(await whole.arrayBuffer()).equals(zip)).toBe(true);
+    const part = await call(downloadRoute, 'GET', `/api/handovers/${h.id}/download`, { handoverId: h.id }, { range: 'bytes=10-109' });
+    expect(part.status).toBe(206);
+    expect(part.headers.get('content-range')).toBe(`bytes 10-109/${zip.length}`);
+    expect(Buffer.from(await part.arrayBuffer()).equals(zip.subarray(10, 110))).toBe(true);
+    const bad = await call(downloadRoute, 'GET', `/api/handovers/${h.id}/download`, { handoverId: h.id }, { range: `bytes=${zip.length}-` });
+    expect(bad.status).toBe(416);
+    expect(bad.headers.get('content-range')).toBe(`bytes */${zip.length}`);
+    const st = await call(statusRoute, 'GET', `/api/handovers/${h.id}`, { handoverId: h.id });
+    expect(((await st.json()) as { handover: { status: string; progress: number } }).handover).toMatchObject({ status: 'issued', progress: 1 });
+    const refused = await call(buildRoute, 'POST', `/api/projects/${plan.project.id}/handovers`, { projectId: plan.project.id }, {}, { scope: {} });
+    expect(refused.status).toBe(403);
   });
 
   it('is byte-identical when the same revision is built again from the same data', async () => {
