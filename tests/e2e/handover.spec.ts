@@ -46,7 +46,7 @@ test('the owner returns a revision with a comment on a section, the engineer ans
   const picker = review.getByLabel('Section of comment 1');
   const section = (await picker.locator('option').nth(1).textContent())!;
   await picker.selectOption({ label: section });
-  await review.getByLabel('Comment 1').fill('The cover readings at the crossing are missing.');
+  await review.getByLabel('Comment 1', { exact: true }).fill('The cover readings at the crossing are missing.');
   await review.getByRole('button', { name: 'Return revision 1' }).click();
   await expect(owner.getByRole('list', { name: 'Revisions' })).toContainText('returned');
   await expect(owner.getByRole('list', { name: "The network owner's comments" })).toContainText(`Section ${section}: The cover readings at the crossing are missing.`);
@@ -64,7 +64,7 @@ test('the owner returns a revision with a comment on a section, the engineer ans
   // revision 2 shows the comments it answers
   await expect(owner.getByRole('list', { name: 'Answers the comments on revision 1' })).toContainText('Read again on site; in revision 2.');
   const review2 = owner.getByRole('form', { name: 'Review revision 2' });
-  await review2.getByLabel('Accept').check();
+  await review2.getByLabel('Accept', { exact: true }).check();
   await review2.getByRole('button', { name: 'Accept revision 2' }).click();
   await expect(owner.getByRole('list', { name: 'Revisions' }).getByRole('listitem').first()).toContainText('accepted');
 
