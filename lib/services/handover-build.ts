@@ -50,6 +50,8 @@ export interface BuildOutput {
   manifest: Record<string, unknown>;
   changeReport: ChangeReport;
   snapshot: Snapshot;
+  /** milliseconds per step (for the benchmark) */
+  timings: Record<string, number>;
 }
 
 export class NothingToPackage extends Error {}
@@ -86,7 +88,7 @@ const pointRows = (db: Knex, table: string, projectId: string, routeIds: string[
   return q;
 };
 
-interface Loaded {
+export interface Loaded {
   sections: SectionRow[];
   layers: Map<string, LayerFeature[]>;
   ducts: { section_id: string; size: string; colour: string; metres: number }[];
@@ -99,7 +101,7 @@ interface Loaded {
   originals: { zipName: string; storageKey: string }[];
 }
 
-async function load(db: Knex, project: Project, scope: HandoverScope): Promise<Loaded> {
+export async function load(db: Knex, project: Project, scope: HandoverScope): Promise<Loaded> {
   const sections = await scopedSections(db, project.id, scope);
   if (sections.length === 0) throw new NothingToPackage('Nothing to package: no current, approved section lies in the chosen scope. Approve sections in the review first, or widen the routes or area.');
   const routeIds = [...new Set(sections.map((s) => s.route_id).filter((x): x is string => !!x))];
@@ -314,17 +316,24 @@ export function readmeText(inp: BuildInput, counts: Record<string, number>, crsN
 
 /** Builds the package into a temporary folder; the caller stores the ZIP and removes the folder. */
 export async function buildPackage(db: Knex, inp: BuildInput, progress: Progress): Promise<BuildOutput> {
+  const t0 = performance.now();
   const l = await load(db, inp.project, inp.scope);
+  const loadMs = performance.now() - t0;
   const tmpDir = await mkdtemp(path.join(os.tmpdir(), 'tb-handover-'));
   try {
     const dir = path.join(tmpDir, 'pkg');
     for (const d of ['geojson', 'kml', 'shp', 'gpkg', 'workbook']) await mkdir(path.join(dir, d), { recursive: true });
     const counts: Record<string, number> = {};
     let i = 0;
+    const timings = { load: loadMs, geojson: 0, kml: 0, shp: 0, gpkg: 0, workbook: 0, zip: 0 };
     for (const def of LAYERS) {
       const feats = l.layers.get(def.name) ?? [];
+      let t0 = performance.now();
       await writeText(path.join(dir, 'geojson', `${def.name}.geojson`), async (w) => { counts[def.name] = (await writeGeoJsonLayer(def, feats, w)).count; });
+      timings.geojson += performance.now() - t0;
+      t0 = performance.now();
       await writeText(path.join(dir, 'kml', `${def.name}.kml`), (w) => writeKmlLayer(def, feats, w));
+      timings.kml += performance.now() - t0;
       await progress(0.05 + (0.3 * ++i) / LAYERS.length, `Layer ${def.title} written (${feats.length})`);
     }
     const crsTargets: { suffix: string; srs: string }[] = [{ suffix: '', srs: 'EPSG:4326' }];
@@ -344,13 +353,20 @@ export async function buildPackage(db: Knex, inp: BuildInput, progress: Progress
           await writeText(src, async (w) => w(JSON.stringify({ type: 'FeatureCollection', name: def.name, features: [{ type: 'Feature', geometry, properties: seed }] })));
         }
         const select = (short: boolean) => `SELECT ${def.fields.map((fl) => `${castOf(fl.name, fl.type)} AS "${short ? fl.short : fl.name}"`).join(', ')} FROM "${def.name}"${empty ? ' WHERE 1 = 0' : ''}`;
+        let t0 = performance.now();
         await ogr(['-f', 'ESRI Shapefile', '-t_srs', t.srs, '-lco', `DBF_DATE_LAST_UPDATE=${day}`, '-lco', 'ENCODING=UTF-8', '-nlt', def.geometry.toUpperCase(), '-dialect', 'OGRSQL', '-sql', select(true), '-nln', `${def.name}${t.suffix}`,
           path.join(dir, 'shp', `${def.name}${t.suffix}.shp`), src], inp.createdAt);
+        timings.shp += performance.now() - t0;
+        t0 = performance.now();
         await ogr(['-f', 'GPKG', '-t_srs', t.srs, '-append', '-nlt', def.geometry.toUpperCase(), '-dialect', 'OGRSQL', '-sql', select(false), '-nln', def.name, gpkg, src], inp.createdAt);
+        timings.gpkg += performance.now() - t0;
       }
       await progress(0.35 + 0.25 / crsTargets.length, 'Shapefiles and GeoPackage written');
     }
+    let tw = performance.now();
     await writeWorkbook(path.join(dir, 'workbook', 'schedules.xlsx'), l, inp);
+    timings.workbook = performance.now() - tw;
+    tw = performance.now();
     await progress(0.7, 'Workbook written');
 
     const snapshot = snapshotOf(l);
@@ -402,9 +418,10 @@ export async function buildPackage(db: Knex, inp: BuildInput, progress: Progress
     for (const o of originals) zip.append(originalsStore().get(o.storageKey), opts(o.zipName));
     await zip.finalize();
     if (!out.writableFinished) await once(out, 'finish');
+    timings.zip = performance.now() - tw;
     const z = await sha256File(zipPath);
     await progress(0.95, 'Package written');
-    return { zipPath, tmpDir, sizeBytes: (await stat(zipPath)).size, sha256: z.sha256, manifest: manifest as unknown as Record<string, unknown>, changeReport: report, snapshot };
+    return { zipPath, tmpDir, sizeBytes: (await stat(zipPath)).size, sha256: z.sha256, manifest: manifest as unknown as Record<string, unknown>, changeReport: report, snapshot, timings };
   } catch (err) {
     await rm(tmpDir, { recursive: true, force: true });
     throw err;
