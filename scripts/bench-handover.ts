@@ -14,6 +14,7 @@ const root = path.resolve(__dirname, '..');
 const DB = 'trenchbook_bench_handover';
 const url = execFileSync('bash', [path.join(root, 'scripts/db.sh'), 'url', DB], { encoding: 'utf8' }).trim();
 const storage = path.join(root, '.data/bench-handover-storage');
+process.env.NEXTAUTH_SECRET ??= 'bench-secret-not-for-production';
 const env = { ...process.env, DATABASE_URL: url, STORAGE_DIR: storage, EXPORTS_DIR: path.join(root, '.data/bench-handover-exports') };
 
 async function generate(): Promise<string> {
@@ -37,7 +38,7 @@ async function generate(): Promise<string> {
   for (let k = 0; k < 10; k++) {
     const bytes = randomBytes(5 * 1024 * 1024);
     const sha = createHash('sha256').update(bytes).digest('hex');
-    const [u] = await db('uploads').insert({ project_id: project.id, sha256: sha, size_bytes: bytes.length, file_name: `walk-${k}.gpx`, status: 'stored', accuracy_class: 'rtk', sigma_m: 0.02, content: 'trench' }).returning('id');
+    const [u] = await db('uploads').insert({ id: (await import('node:crypto')).randomUUID(), project_id: project.id, sha256: sha, size_bytes: bytes.length, file_name: `walk-${k}.gpx`, status: 'stored', accuracy_class: 'rtk', sigma_m: 0.02, content: 'trench' }).returning('id');
     const key = `uploads/${project.id}/${u.id}/0-walk-${k}.gpx`;
     await originalsStore().put(key, bytes);
     await db('upload_files').insert({ upload_id: u.id, file_name: `walk-${k}.gpx`, storage_key: key, sha256: sha, size_bytes: bytes.length });
