@@ -41,7 +41,7 @@ test('an engineer sees the counts the API gives, filters passed, opens an addres
   await page.screenshot({ path: '/tmp/households-desktop.png', fullPage: true });
   await expect(page.getByRole('list', { name: 'Legend' })).toContainText(`passed (${passed.filter((a) => !a.connected).length})`);
 
-  await page.getByLabel('Status').selectOption('passed');
+  await page.getByLabel('Status', { exact: true }).selectOption('passed');
   await expect(page.getByText(`${passed.length} of ${passed.length} shown`)).toBeVisible();
   const first = page.getByRole('table', { name: 'Addresses' }).getByRole('link').first();
   const name = (await first.textContent())!;
