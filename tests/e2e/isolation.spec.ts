@@ -810,7 +810,7 @@ const MATRIX: Record<string, Row | PublicRow> = {
   // ---- end of the address register's import ----
   // ---- households: drops recorded as installed and the daily series (helper B) ----
   'PATCH /api/projects/[projectId]/addresses/[addressId]': {
-    url: () => `/api/projects/${ap.projectId}/addresses/${ap.addressId}`,
+    url: () => `/api/projects/${ap.dropsProjectId}/addresses/${ap.addressId}`,
     foreign: () => `/api/projects/${ap.foreignProjectId}/addresses/${ap.foreignAddressId}`,
     // the network owner's people read the drops, the contractor's record them
     denied: 'owner',
@@ -1014,7 +1014,8 @@ interface AddressImportCtx {
   foreignProjectId: string;
   importId: string;
   foreignImportId: string;
-  /** an address of each register (helper B: the drop recorded as installed) */
+  /** a project of its own and an address of each register (helper B: the drop recorded as installed) */
+  dropsProjectId: string;
   addressId: string;
   foreignAddressId: string;
 }
@@ -1322,6 +1323,7 @@ test.beforeAll(async ({ request }) => {
       foreignProjectId: theirs.body!.project.id,
       importId: await imported(mine.body!.project.id, tokens.engineer),
       foreignImportId: await imported(theirs.body!.project.id, foreignToken),
+      dropsProjectId: '',
       addressId: '',
       foreignAddressId: '',
     };
@@ -1330,7 +1332,12 @@ test.beforeAll(async ({ request }) => {
       expect(r.status).toBe(200);
       return r.body!.addresses[0].id;
     };
-    ap.addressId = await firstAddress(ap.projectId, tokens.engineer);
+    // its own project: the matrix's import row replaces the register of ap.projectId, removing this address
+    const drops = await json<{ project: { id: string } }>(request, 'POST', '/api/projects', tokens.admin, { name: `Matrix drops ${stamp}`, partnerOrganisationId: tarnwickId });
+    expect(drops.status).toBe(201);
+    await imported(drops.body!.project.id, tokens.engineer);
+    ap.dropsProjectId = drops.body!.project.id;
+    ap.addressId = await firstAddress(ap.dropsProjectId, tokens.engineer);
     ap.foreignAddressId = await firstAddress(ap.foreignProjectId, foreignToken);
   }
   // ---- end of the address register's import ----
