@@ -175,14 +175,36 @@ export function attachCrossings(streetRoutes: ServingRouteInput[], crossingRoute
  * over the route segments: each address is measured only against the routes whose segments come near it.
  */
 export function findServing(addresses: ServingAddressInput[], routes: ServingRouteInput[], settings: { serveDistanceM: number }): ServingResult {
-  const streets = routes.filter((r) => r.kind === 'street' && !r.removed && r.coords.length > 0);
-  const current = new Map(routes.filter((r) => !r.removed && r.coords.length > 0).map((r) => [r.ref, r]));
-  const streetNames = streets.map((r) => (r.street ? normaliseStreet(r.street) : ''));
-  const index = new SegmentIndex(streets);
-  const crossings = attachCrossings(streets, routes.filter((r) => r.kind === 'crossing'), index);
-  const limit = settings.serveDistanceM;
+  const finder = new ServingFinder(routes, settings);
+  const servings: Serving[] = [];
+  for (const a of addresses) servings.push(finder.serve(a));
+  return finder.finish(addresses, servings);
+}
 
-  const servings: Serving[] = addresses.map((a) => {
+/**
+ * findServing in steps, so that a caller can work through many addresses a batch at a time (a job keeps its
+ * heartbeat between batches): `serve` each address, then `finish` decides the sides from all of them.
+ */
+export class ServingFinder {
+  private readonly streets: ServingRouteInput[];
+  private readonly current: Map<string, ServingRouteInput>;
+  private readonly streetNames: string[];
+  private readonly index: SegmentIndex;
+  private readonly crossings: CrossingAttachment[];
+  private readonly limit: number;
+
+  constructor(private readonly routes: ServingRouteInput[], settings: { serveDistanceM: number }) {
+    this.streets = routes.filter((r) => r.kind === 'street' && !r.removed && r.coords.length > 0);
+    this.current = new Map(routes.filter((r) => !r.removed && r.coords.length > 0).map((r) => [r.ref, r]));
+    this.streetNames = this.streets.map((r) => (r.street ? normaliseStreet(r.street) : ''));
+    this.index = new SegmentIndex(this.streets);
+    this.crossings = attachCrossings(this.streets, routes.filter((r) => r.kind === 'crossing'), this.index);
+    this.limit = settings.serveDistanceM;
+  }
+
+  /** The serving route of one address (its side is decided by `finish`). */
+  serve(a: ServingAddressInput): Serving {
+    const { streets, streetNames, limit } = this;
     const p: LonLat = [a.lon, a.lat];
     const none = (reason: string): Serving => ({ addressId: a.id, routeId: null, routeRef: null, by: null, side: null, sideBy: null, footChainageM: null, foot: null, offsetM: null, distanceM: null, reason });
     const serve = (r: ServingRouteInput, by: ServingBy, s = snapOnLine(r.coords, p)): Serving => ({
@@ -190,13 +212,13 @@ export function findServing(addresses: ServingAddressInput[], routes: ServingRou
       offsetM: s.offsetM, distanceM: s.distanceM, reason: null,
     });
     if (a.designRouteRef) {
-      const r = current.get(a.designRouteRef);
+      const r = this.current.get(a.designRouteRef);
       if (r) return serve(r, 'design');
     }
     const own = a.street ? normaliseStreet(a.street) : '';
     let byName: { k: number; s: ReturnType<typeof snapOnLine> } | null = null;
     let any: { k: number; s: ReturnType<typeof snapOnLine> } | null = null;
-    for (const k of index.near(p, limit)) {
+    for (const k of this.index.near(p, limit)) {
       const s = snapOnLine(streets[k].coords, p);
       if (s.distanceM > limit) continue;
       if (own && streetNames[k] === own && (!byName || s.distanceM < byName.s.distanceM)) byName = { k, s };
@@ -207,38 +229,42 @@ export function findServing(addresses: ServingAddressInput[], routes: ServingRou
     return none(a.designRouteRef
       ? `The design's route ${a.designRouteRef} is not in the current plan, and no street route lies within ${fmt(limit)} m.`
       : `No street route within ${fmt(limit)} m.`);
-  });
-
-  // the across sign of each street route: its crossings first, then its addresses
-  const across = new Map<string, { sign: number; by: SideBy }>();
-  const votes = new Map<string, number>();
-  for (const c of crossings) if (c.farSign) votes.set(c.streetRouteId, (votes.get(c.streetRouteId) ?? 0) + c.farSign);
-  for (const [id, v] of votes) if (v !== 0) across.set(id, { sign: Math.sign(v), by: 'crossings' });
-  const spread = new Map<string, { pos: number; np: number; neg: number; nn: number }>();
-  for (const s of servings) {
-    if (!s.routeId || s.offsetM === null || Math.abs(s.offsetM) < 0.5) continue;
-    const t = spread.get(s.routeId) ?? { pos: 0, np: 0, neg: 0, nn: 0 };
-    if (s.offsetM > 0) { t.pos += s.offsetM; t.np++; } else { t.neg -= s.offsetM; t.nn++; }
-    spread.set(s.routeId, t);
-  }
-  for (const [id, t] of spread) {
-    if (across.has(id) || !t.np || !t.nn) continue;
-    const pos = t.pos / t.np;
-    const neg = t.neg / t.nn;
-    if (pos !== neg) across.set(id, { sign: pos > neg ? 1 : -1, by: 'addresses' });
   }
 
-  const routeById = new Map(routes.map((r) => [r.id, r]));
-  const designSide = new Map(addresses.map((a) => [a.id, a.designSide]));
-  for (const s of servings) {
-    if (!s.routeId) continue;
-    s.foot = pointAtChainage(routeById.get(s.routeId)!.coords, s.footChainageM!);
-    const d = designSide.get(s.addressId);
-    if (d) { s.side = d; s.sideBy = 'design'; continue; }
-    const rule = across.get(s.routeId);
-    if (!rule) { s.side = 'route'; s.sideBy = 'default'; continue; }
-    s.side = Math.abs(s.offsetM!) >= 0.5 && Math.sign(s.offsetM!) === rule.sign ? 'across' : 'route';
-    s.sideBy = rule.by;
+  /** Decides the side of the street of every served address (`servings[i]` is `addresses[i]`'s) and returns them all. */
+  finish(addresses: ServingAddressInput[], servings: Serving[]): ServingResult {
+    const { crossings, routes } = this;
+    // the across sign of each street route: its crossings first, then its addresses
+    const across = new Map<string, { sign: number; by: SideBy }>();
+    const votes = new Map<string, number>();
+    for (const c of crossings) if (c.farSign) votes.set(c.streetRouteId, (votes.get(c.streetRouteId) ?? 0) + c.farSign);
+    for (const [id, v] of votes) if (v !== 0) across.set(id, { sign: Math.sign(v), by: 'crossings' });
+    const spread = new Map<string, { pos: number; np: number; neg: number; nn: number }>();
+    for (const s of servings) {
+      if (!s.routeId || s.offsetM === null || Math.abs(s.offsetM) < 0.5) continue;
+      const t = spread.get(s.routeId) ?? { pos: 0, np: 0, neg: 0, nn: 0 };
+      if (s.offsetM > 0) { t.pos += s.offsetM; t.np++; } else { t.neg -= s.offsetM; t.nn++; }
+      spread.set(s.routeId, t);
+    }
+    for (const [id, t] of spread) {
+      if (across.has(id) || !t.np || !t.nn) continue;
+      const pos = t.pos / t.np;
+      const neg = t.neg / t.nn;
+      if (pos !== neg) across.set(id, { sign: pos > neg ? 1 : -1, by: 'addresses' });
+    }
+
+    const routeById = new Map(routes.map((r) => [r.id, r]));
+    const designSide = new Map(addresses.map((a) => [a.id, a.designSide]));
+    for (const s of servings) {
+      if (!s.routeId) continue;
+      s.foot = pointAtChainage(routeById.get(s.routeId)!.coords, s.footChainageM!);
+      const d = designSide.get(s.addressId);
+      if (d) { s.side = d; s.sideBy = 'design'; continue; }
+      const rule = across.get(s.routeId);
+      if (!rule) { s.side = 'route'; s.sideBy = 'default'; continue; }
+      s.side = Math.abs(s.offsetM!) >= 0.5 && Math.sign(s.offsetM!) === rule.sign ? 'across' : 'route';
+      s.sideBy = rule.by;
+    }
+    return { servings, crossings, across };
   }
-  return { servings, crossings, across };
 }

@@ -10,8 +10,11 @@ import { connectSchema } from '@/lib/households/connect';
 import { loadCrossingRecords, loadHouseholdAddresses, loadHouseholdRoutes, loadHouseholdSections, setAddressConnected, upsertProgress, writeDerivedColumns, type DerivedColumns } from '@/db/households';
 import { getProject } from '@/db/projects';
 import { computePassed, householdFigures, type SectionInput } from '@/lib/households/passed';
-import { findServing } from '@/lib/households/serving';
+import { ServingFinder, type Serving } from '@/lib/households/serving';
 import { dayOnClock } from '@/lib/records/production';
+
+/** addresses served between two progress reports (about a tenth of a second of work here) */
+const SERVE_BATCH = 5_000;
 
 export interface HouseholdFigures {
   addresses: number;
@@ -47,7 +50,15 @@ export async function recomputeHouseholds(
     const sections = await loadHouseholdSections(trx, projectId);
     const records = await loadCrossingRecords(trx, projectId);
     await progress(0.25, `Finding the serving route of ${addresses.length} addresses among ${routes.filter((r) => r.kind === 'street' && !r.removed).length} street routes`);
-    const { servings, crossings } = findServing(addresses, routes, project.households);
+    // a batch at a time, reporting between batches: a long synchronous stretch would starve the job's heartbeat
+    // (a run of 200,000 addresses takes seconds) and the sweep would take the living job for dead
+    const finder = new ServingFinder(routes, project.households);
+    const servings: Serving[] = [];
+    for (let i = 0; i < addresses.length; i += SERVE_BATCH) {
+      for (const a of addresses.slice(i, i + SERVE_BATCH)) servings.push(finder.serve(a));
+      if (i + SERVE_BATCH < addresses.length) await progress(0.25 + (0.3 * (i + SERVE_BATCH)) / addresses.length, `Serving routes found for ${i + SERVE_BATCH} of ${addresses.length} addresses`);
+    }
+    const { crossings } = finder.finish(addresses, servings);
     await progress(0.55, 'Checking what is built in front of each address');
     const passed = computePassed(addresses, servings, sections as SectionInput[], crossings, records, project.households);
     const rows: DerivedColumns[] = servings.map((s, i) => ({
