@@ -86,7 +86,14 @@ describe('a reconciliation whose worker or database is killed ends failed with a
       return j?.status === 'completed' || j?.status === 'failed' ? j : undefined;
     }, 120_000, 250);
     expect(done.status).toBe('completed');
-    // no job of the project is left queued or running
-    expect(await db('jobs').where({ project_id: projectId }).whereIn('status', ['queued', 'running']).count<{ n: number }[]>('* as n').then(([r]) => Number(r.n))).toBe(0);
+    // A completed reconciliation queues the households recompute after it: that follow-up must end too,
+    // and no job of the project is left queued or running.
+    const open = () => db('jobs').where({ project_id: projectId }).whereIn('status', ['queued', 'running'])
+      .count<{ n: number }[]>('* as n').then(([r]) => Number(r.n));
+    await waitFor('every follow-up job of the project to end', async () => ((await open()) === 0 ? true : undefined), 60_000, 250);
+    expect(await open()).toBe(0);
+    const followUps = await db('jobs').where({ project_id: projectId, kind: 'households' }).where('created_at', '>=', next.createdAt ?? new Date(0));
+    expect(followUps.length).toBeGreaterThan(0);
+    expect(followUps.map((j) => j.status)).not.toContain('failed');
   });
 });
