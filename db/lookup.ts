@@ -26,14 +26,10 @@ export interface NearbySectionRow {
 export const NEARBY_CANDIDATES = 100;
 
 /**
- * The current built sections (not retired, not `not_built`) of the given projects within `radiusM` of the
- * spot, nearest first: the GIST index walks the sections in planar distance order (`<->`), the nearest
- * NEARBY_CANDIDATES of them are measured geodesically and kept within the radius.
+ * The nearby query itself (positional `?`: lon, lat, project ids, radius in metres). Exported so that the
+ * lookup benchmark's bare server (scripts/bench-lookup.ts) runs exactly this statement as its ceiling.
  */
-export async function nearbySections(db: Db, projectIds: string[], p: LonLat, radiusM: number): Promise<NearbySectionRow[]> {
-  if (projectIds.length === 0) return [];
-  const { rows } = await db.raw(
-    `WITH spot AS (SELECT ST_SetSRID(ST_MakePoint(?, ?), 4326) AS g)
+export const NEARBY_SECTIONS_SQL = `WITH spot AS (SELECT ST_SetSRID(ST_MakePoint(?, ?), 4326) AS g)
      SELECT c.id, c.project_id, c.planned_route_ref, c.status, c.from_chainage_m, c.to_chainage_m, c.accuracy_m,
             to_char(c.laid_on, 'YYYY-MM-DD') AS laid_on, c.review, c.source_upload_ids,
             ST_Distance(c.geom::geography, spot.g::geography) AS distance_m,
@@ -43,7 +39,17 @@ export async function nearbySections(db: Db, projectIds: string[], p: LonLat, ra
               WHERE s.project_id = ANY(?::uuid[]) AND s.retired_in_run IS NULL AND s.status <> 'not_built'
               ORDER BY s.geom <-> spot.g LIMIT ${NEARBY_CANDIDATES}) c, spot
       WHERE ST_DWithin(c.geom::geography, spot.g::geography, ?)
-      ORDER BY distance_m, c.id`,
+      ORDER BY distance_m, c.id`;
+
+/**
+ * The current built sections (not retired, not `not_built`) of the given projects within `radiusM` of the
+ * spot, nearest first: the GIST index walks the sections in planar distance order (`<->`), the nearest
+ * NEARBY_CANDIDATES of them are measured geodesically and kept within the radius.
+ */
+export async function nearbySections(db: Db, projectIds: string[], p: LonLat, radiusM: number): Promise<NearbySectionRow[]> {
+  if (projectIds.length === 0) return [];
+  const { rows } = await db.raw(
+    NEARBY_SECTIONS_SQL,
     [p[0], p[1], projectIds, radiusM],
   );
   return rows.map((r: Record<string, any>) => ({
@@ -77,9 +83,10 @@ export interface DepthOnRoute {
 }
 
 /** Cover readings on the routes (only those with a cover). */
-export async function coverReadings(db: Db, routeIds: string[]): Promise<DepthOnRoute[]> {
-  if (routeIds.length === 0) return [];
-  const rows = await db('depth_readings').whereIn('route_id', routeIds).whereNotNull('cover_m').orderBy(['route_id', 'chainage_m']).select('route_id', 'chainage_m', 'cover_m', 'measured_at');
+export async function coverReadings(db: Db, routes: { projectId: string; id: string }[]): Promise<DepthOnRoute[]> {
+  if (routes.length === 0) return [];
+  // by (project, route): the readings' index leads with the project
+  const rows = await db('depth_readings').whereIn(['project_id', 'route_id'], routes.map((r) => [r.projectId, r.id])).whereNotNull('cover_m').orderBy(['route_id', 'chainage_m']).select('route_id', 'chainage_m', 'cover_m', 'measured_at');
   return rows.map((r) => ({ routeId: r.route_id, chainageM: r.chainage_m, coverM: r.cover_m, measuredAt: r.measured_at?.toISOString() ?? null }));
 }
 
@@ -138,4 +145,22 @@ export async function ownerContacts(db: Db, orgIds: string[]): Promise<Map<strin
   if (orgIds.length === 0) return new Map();
   const rows = await db('organisations').whereIn('id', orgIds).select('id', 'contact');
   return new Map(rows.map((r) => [r.id, r.contact]));
+}
+
+/**
+ * For each section, the newest issued package (issued, accepted or returned) whose snapshot holds it: the
+ * handover revision a crew can ask the owner for. A section re-derived since then has a new id and is not
+ * in any package yet.
+ */
+export async function handedOverIn(db: Db, projectIds: string[], sectionIds: string[]): Promise<Map<string, { handoverId: string; revision: number; status: string }>> {
+  if (projectIds.length === 0 || sectionIds.length === 0) return new Map();
+  const { rows } = await db.raw(
+    `SELECT DISTINCT ON (e->>'id') e->>'id' AS section_id, h.id, h.revision, h.status
+       FROM handovers h
+      CROSS JOIN LATERAL jsonb_array_elements(CASE WHEN jsonb_typeof(h.snapshot->'sections') = 'array' THEN h.snapshot->'sections' ELSE '[]'::jsonb END) e
+      WHERE h.project_id = ANY(?::uuid[]) AND h.status IN ('issued', 'accepted', 'returned') AND e->>'id' = ANY(?::text[])
+      ORDER BY e->>'id', h.revision DESC`,
+    [projectIds, sectionIds],
+  );
+  return new Map(rows.map((r: Record<string, any>) => [r.section_id, { handoverId: r.id, revision: r.revision, status: r.status }]));
 }

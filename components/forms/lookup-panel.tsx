@@ -162,6 +162,8 @@ export function LookupPanel() {
   );
 }
 
+const HANDOVER: Record<string, string> = { issued: 'issued, awaiting the owner', accepted: 'accepted by the owner', returned: 'returned by the owner' };
+
 function StretchItem({ s }: { s: Stretch }) {
   return (
     <li className="rounded-md border border-ink/10 bg-paper-raised p-3 text-sm break-inside-avoid" data-testid="stretch">
@@ -191,7 +193,7 @@ function StretchItem({ s }: { s: Stretch }) {
         <dt className="text-ink-soft">Position</dt>
         <dd data-testid="radius">{s.radiusM === null ? 'radius unknown' : `±${s.radiusM.toFixed(2)} m (95 %)`}, from {s.radiusSource}</dd>
         <dt className="text-ink-soft">Laid</dt>
-        <dd>{s.laidOn ?? '—'} · {REVIEW[s.review] ?? s.review} · {s.handoverRevision === null ? 'not handed over yet' : `handover revision ${s.handoverRevision}`}</dd>
+        <dd>{s.laidOn ?? '—'} · {REVIEW[s.review] ?? s.review} · {s.handoverRevision === null ? 'not handed over yet' : `in handover revision ${s.handoverRevision.revision} (${HANDOVER[s.handoverRevision.status] ?? s.handoverRevision.status})`}</dd>
         <dt className="text-ink-soft">Network</dt>
         <dd>{s.projectName} · owner {s.ownerOrganisation}{s.ownerContact ? ` · ${s.ownerContact}` : ''}</dd>
       </dl>

@@ -2,7 +2,7 @@ import { z } from 'zod';
 import type { Db } from '@/db/client';
 import { searchAddresses, type AddressCandidate } from '@/db/address-search';
 import { listDuctBundlesOnSection } from '@/db/duct-bundles';
-import { coverReadings, crossingsOn, ownerContacts, nearbyPoints, nearbySections, routesByRef, uploadClasses, type NearbyPoint } from '@/db/lookup';
+import { coverReadings, crossingsOn, handedOverIn, ownerContacts, nearbyPoints, nearbySections, routesByRef, uploadClasses, type NearbyPoint } from '@/db/lookup';
 import { listProjectsForOrganisation, type Project } from '@/db/projects';
 import { ACCURACY_CLASS_LABELS, type AccuracyClass } from '@/lib/records/accuracy-classes';
 import { snapOnLine } from '@/lib/records/anchor';
@@ -77,8 +77,8 @@ export interface Stretch {
   ducts: { summary: string; kind: 'planned' | 'installed'; ducts: { position: number; colour: string | null; colourHex: string | null; outerMm: number; innerMm: number | null }[] }[];
   laidOn: string | null;
   review: string;
-  /** handover packages do not exist yet: null, "not handed over yet" */
-  handoverRevision: null;
+  /** the newest issued handover package holding this section; null: not handed over yet */
+  handoverRevision: { handoverId: string; revision: number; status: string } | null;
   coords: LonLat[];
   band: GeoJSON.Polygon | GeoJSON.MultiPolygon | null;
 }
@@ -100,9 +100,10 @@ export async function lookupNearby(db: Db, me: Principal, q: z.infer<typeof near
   const sections = await nearbySections(db, ids, spot, radiusM);
   const routes = await routesByRef(db, [...new Map(sections.filter((s) => s.routeRef).map((s) => [`${s.projectId}|${s.routeRef}`, { projectId: s.projectId, ref: s.routeRef! }])).values()]);
   const route = (projectId: string, ref: string | null) => routes.find((r) => r.projectId === projectId && r.ref === ref);
-  const covers = await coverReadings(db, routes.map((r) => r.id));
+  const covers = await coverReadings(db, routes);
   const contacts = await ownerContacts(db, [...new Set(projects.map((p) => p.ownerOrgId))]);
   const classes = await uploadClasses(db, [...new Set(sections.flatMap((s) => s.sourceUploadIds))]);
+  const handovers = await handedOverIn(db, [...new Set(sections.map((s) => s.projectId))], sections.map((s) => s.id));
 
   let addressSide: RouteSide | null = null;
   let address: { lon: number; lat: number; projectId: string } | undefined;
@@ -133,7 +134,7 @@ export async function lookupNearby(db: Db, me: Principal, q: z.infer<typeof near
       chainageM: r ? round(snap.chainageM, 1) : null,
       cover: { nearest: nearest.map((c) => ({ chainageM: c.chainageM, coverM: c.coverM })), shallowestM: onStretch.length ? Math.min(...onStretch.map((c) => c.coverM)) : null },
       ducts: (installed.length ? installed : bundles).map((b) => ({ summary: b.summary, kind: b.kind, ducts: b.ducts.map((d) => ({ position: d.position, colour: d.colourLabel, colourHex: d.colourHex, outerMm: d.outerMm, innerMm: d.innerMm })) })),
-      laidOn: s.laidOn, review: s.review, handoverRevision: null, coords: s.coords, band: s.band,
+      laidOn: s.laidOn, review: s.review, handoverRevision: handovers.get(s.id) ?? null, coords: s.coords, band: s.band,
     });
   }
   const sorted = sortStretches(stretches, q.order);

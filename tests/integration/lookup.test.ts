@@ -181,6 +181,28 @@ describe('nearby stretches', () => {
     expect(north.ownerOrganisation).toBe(plan.project.ownerOrgName);
     expect(north.ownerContact).toBe('Network desk 555 0100');
   });
+  it('names the newest issued handover revision holding the section; a section of no package stays "not handed over"', async () => {
+    const before = (await lookupNearby(db, plan.maintenance, q(50, 7))).stretches;
+    const north = before[0];
+    const other = before.find((s) => s.id !== north.id)!;
+    expect(other).toBeDefined();
+    // revision n holds only the north street's section; a later returned revision holds it too
+    const snap = (ids: string[]) => JSON.stringify({ sections: ids.map((id) => ({ id })) });
+    const base = { project_id: plan.project.id, storage_key: 'handovers/x.zip', sha256: 'a'.repeat(64), size_bytes: 1, file_name: 'x.zip', issued_at: db.fn.now() };
+    const { max } = (await db('handovers').where({ project_id: plan.project.id }).max('revision as max').first()) as { max: number | null };
+    const r1 = (max ?? 0) + 1;
+    await db('handovers').insert({ ...base, revision: r1, status: 'issued', snapshot: snap([north.id]) });
+    await db('handovers').insert({ ...base, revision: r1 + 1, status: 'returned', reviewed_at: db.fn.now(), snapshot: snap([north.id]) });
+    // a package still building or failed names nothing
+    await db('handovers').insert({ project_id: plan.project.id, revision: r1 + 2, status: 'failed', failure_reason: 'test', snapshot: snap([north.id, other.id]) });
+    try {
+      const after = (await lookupNearby(db, plan.maintenance, q(50, 7))).stretches;
+      expect(after.find((s) => s.id === north.id)!.handoverRevision).toMatchObject({ revision: r1 + 1, status: 'returned' });
+      expect(after.find((s) => s.id === other.id)!.handoverRevision).toBeNull();
+    } finally {
+      await db('handovers').where({ project_id: plan.project.id }).where('revision', '>=', r1).delete();
+    }
+  });
   it('sorts by "could be this close" too: the walked crossing, 9.79 m uncertain, could be nearer than the surveyed street', async () => {
     const r = await lookupNearby(db, plan.maintenance, q(45, 9, { order: 'could_be' }));
     expect(r.stretches[0].routeRef).toBe('X-1');
