@@ -68,7 +68,7 @@ async function generate(): Promise<{ token: string; visibleProjectIds: string[] 
   const uploads: string[][] = [];
   for (const projectId of projects) {
     const pair: string[] = [];
-    for (const [cls, sigma] of [['rtk', 0.02], ['handheld', 4]] as const) {
+    for (const [cls, sigma] of [['rtk_gnss', 0.02], ['handheld_gnss', 4]] as const) {
       const [u] = await db('uploads').insert({ project_id: projectId, sha256: cls.padEnd(64, '0'), size_bytes: 1, file_name: `${cls}.gpx`, status: 'stored', accuracy_class: cls, sigma_m: sigma, content: 'trench' }).returning('id');
       pair.push(u.id);
     }

@@ -16,6 +16,8 @@ import { writeGeoJsonLayer, fmtCoord } from '@/lib/handover/geojson';
 import { writeKmlLayer } from '@/lib/handover/kml';
 import { LAYERS, type LayerDef, type LayerFeature, type Props } from '@/lib/handover/layers';
 import { originalsStore } from '@/lib/storage/originals-store';
+import { accuracyStatement } from '@/lib/handover/accuracy';
+import type { AccuracyClass } from '@/lib/records/accuracy-classes';
 
 // Builds a handover package (issue 16) into a temporary folder and then one ZIP: GeoJSON and KML written
 // here, shapefiles and the GeoPackage by GDAL's ogr2ogr from the GeoJSON (argument lists, never a shell),
@@ -99,6 +101,8 @@ export interface Loaded {
   restorations: Record<string, unknown>[];
   addresses: Record<string, unknown>[];
   originals: { zipName: string; storageKey: string }[];
+  /** each source upload's accuracy class, for the accuracy statement by source */
+  uploadClasses: Map<string, AccuracyClass>;
 }
 
 export async function load(db: Knex, project: Project, scope: HandoverScope): Promise<Loaded> {
@@ -130,6 +134,7 @@ export async function load(db: Knex, project: Project, scope: HandoverScope): Pr
       where s.id = any(?) and b.to_chainage_m > s.from_chainage_m and b.from_chainage_m < s.to_chainage_m
       group by 1, 2, 3 order by 1, 2, 3`, [sections.map((s) => s.id)]);
   const upIds = [...new Set(sections.flatMap((s) => s.source_upload_ids ?? []))].sort();
+  const uploadClasses = new Map<string, AccuracyClass>(upIds.length ? (await db('uploads').whereIn('id', upIds).select('id', 'accuracy_class')).map((u: { id: string; accuracy_class: AccuracyClass }) => [u.id, u.accuracy_class]) : []);
   const upFiles = upIds.length ? await db('upload_files').whereIn('upload_id', upIds).orderBy(['upload_id', 'id']).select('upload_id', 'file_name', 'storage_key') : [];
   const originals = [
     ...upFiles.map((f: { upload_id: string; file_name: string; storage_key: string }) => ({ zipName: `originals/uploads/${f.upload_id}/${f.file_name.replace(/[\\/]/g, '_')}`, storageKey: f.storage_key })),
@@ -153,7 +158,7 @@ export async function load(db: Knex, project: Project, scope: HandoverScope): Pr
     photo_id: p.id, route: p.route, chainage_m: p.chainage_m, file_name: `${p.id}-${String(p.file_name).replace(/[\\/]/g, '_')}`, caption: p.caption, placed_by: p.placed_by } as Props })));
   layers.set('addresses', addresses.map((a: Record<string, never>) => ({ coordinates: pt(a.geometry), props: {
     address_key: a.key, street: a.street, number: a.number, units: a.units, passed: a.passed, passed_approved: a.passed_approved, connected: a.connected } as Props })));
-  return { sections, layers, ducts: ductRows.rows, depths, crossings, pits, utilities, restorations, addresses, originals };
+  return { sections, layers, ducts: ductRows.rows, depths, crossings, pits, utilities, restorations, addresses, originals, uploadClasses };
 }
 
 // ---- snapshot ----
@@ -294,7 +299,7 @@ const castOf = (name: string, type: string) =>
   type === 'real' ? `CAST("${name}" AS float)` : type === 'integer' ? `CAST("${name}" AS integer)` : type === 'date' ? `CAST("${name}" AS date)` : type === 'boolean' ? `"${name}"` : `CAST("${name}" AS character(254))`;
 const PRJ_EPSG = (crs: string) => crs.replace(/^EPSG:/i, '');
 
-export function readmeText(inp: BuildInput, counts: Record<string, number>, crsNote: string): string {
+export function readmeText(inp: BuildInput, counts: Record<string, number>, crsNote: string, accuracy?: ReturnType<typeof accuracyStatement>): string {
   const lines = [
     `Trenchbook handover package: ${inp.project.name}, revision ${inp.revision}, created ${stamp(inp.createdAt)}Z by ${inp.createdByName}.`,
     '',
@@ -302,6 +307,11 @@ export function readmeText(inp: BuildInput, counts: Record<string, number>, crsN
     '',
     crsNote,
     'Units: metres unless a field says otherwise; dates as YYYY-MM-DD.',
+    ...(accuracy ? [
+      '',
+      `Positional accuracy (95 % horizontal radius of each section; manifest.json has the figures): ${accuracy.bands.filter((b) => b.metres > 0).map((b) => `${b.radius95}: ${b.metres} m`).join('; ')}.`,
+      `By source: ${accuracy.bySource.map((g) => `${g.source} ${g.metres} m${g.radius95 ? ` (${g.radius95.min}–${g.radius95.max} m)` : ''}`).join('; ')}. Where the radius is large, locate on site before relying on the line.`,
+    ] : []),
     '',
     'Folders: geojson/ (RFC 7946, one FeatureCollection per layer), kml/ (KML 2.2), shp/ (shapefiles with .prj), gpkg/ (one GeoPackage, every layer), workbook/ (schedules), originals/ (uploads and photos, unchanged). manifest.json lists every file with its size and SHA-256.',
     '',
@@ -384,12 +394,13 @@ export async function buildPackage(db: Knex, inp: BuildInput, progress: Progress
       for await (const c of originalsStore().get(o.storageKey)) { h.update(c as Buffer); bytes += (c as Buffer).length; }
       files.push({ path: o.zipName, bytes, sha256: h.digest('hex') });
     }
-    // positional accuracy: metres known to within each 95 % radius band
-    const bands: [string, number][] = [['≤ 0.1 m', 0.1], ['≤ 0.5 m', 0.5], ['≤ 1 m', 1], ['≤ 5 m', 5], ['> 5 m', Infinity]];
-    const accuracy = bands.map(([label, lim], k) => ({ radius95: label, metres: num(l.sections.filter((s) => s.accuracy_m !== null && s.accuracy_m <= lim && (k === 0 || s.accuracy_m > bands[k - 1][1])).reduce((a, s) => a + s.length_m, 0)) }));
-    accuracy.push({ radius95: 'unknown (not built or not measured)', metres: num(l.sections.filter((s) => s.accuracy_m === null).reduce((a, s) => a + s.length_m, 0)) });
+    // positional accuracy: metres known to within each 95 % radius, overall and by source class
+    const accuracy = accuracyStatement(l.sections.map((sec) => ({
+      lengthM: sec.length_m, radius95M: sec.accuracy_m,
+      classes: (sec.source_upload_ids ?? []).map((u) => l.uploadClasses.get(u)).filter((c): c is AccuracyClass => c !== undefined),
+    })));
     const crsNote = `Coordinates: GeoJSON and KML in WGS 84 longitude/latitude (EPSG:4326, as RFC 7946 and KML 2.2 require); shapefiles and GeoPackage in EPSG:4326${crsTargets.length > 1 ? ` and, with the suffix _${PRJ_EPSG(inp.project.defaultCrs)}, in the project's ${inp.project.defaultCrs}` : ''}. Chainages and lengths are geodesic metres along the ground.`;
-    const readme = readmeText(inp, counts, crsNote);
+    const readme = readmeText(inp, counts, crsNote, accuracy);
     files.push({ path: 'README.txt', bytes: Buffer.byteLength(readme), sha256: createHash('sha256').update(readme).digest('hex') });
     const manifest = {
       project: { id: inp.project.id, name: inp.project.name, area: inp.project.areaName },
@@ -400,7 +411,7 @@ export async function buildPackage(db: Knex, inp: BuildInput, progress: Progress
       note: inp.note,
       scope: inp.scope,
       recordCounts: Object.fromEntries(LAYERS.map((d) => [d.name, counts[d.name] ?? 0])),
-      positionalAccuracy: { statement: 'Metres of packaged section known to within each 95 % horizontal radius (from each section\'s accuracy).', bands: accuracy },
+      positionalAccuracy: accuracy,
       coordinateSystem: crsNote,
       caution: 'Records must be verified on site before digging; defer to local codes and licensed practice.',
       files,

@@ -258,3 +258,61 @@ describe('revisions and failures', () => {
     expect((await db('audit_log').where({ object_id: out.handover.id }).select('action')).map((a: { action: string }) => a.action).sort()).toEqual(['build', 'fail']);
   });
 });
+
+describe("in the project's coordinate system, with the accuracy stated by source class", () => {
+  let dir: string;
+  let manifest: { positionalAccuracy: { bySource: { source: string; metres: number }[] }; coordinateSystem: string };
+
+  beforeAll(async () => {
+    // sources: the long section from an RTK survey, the deviating one from a handheld walk and the survey together
+    const up = async (cls: string, sigma: number) => (await db('uploads').insert({ id: (await import('node:crypto')).randomUUID(), project_id: plan.project.id, sha256: createHash('sha256').update(cls).digest('hex'), size_bytes: 1, file_name: `${cls}.gpx`, status: 'stored', accuracy_class: cls, sigma_m: sigma, content: 'trench' }).returning('id'))[0].id as string;
+    const rtk = await up('rtk_gnss', 0.02);
+    const walk = await up('handheld_gnss', 4);
+    await db('sections').where({ id: sections[0] }).update({ source_upload_ids: [rtk] });
+    await db('sections').where({ id: sections[1] }).update({ source_upload_ids: [walk, rtk], accuracy_m: 9.79 });
+    await db('projects').where({ id: plan.project.id }).update({ default_srid: 25832 });
+    const { getProject } = await import('@/db/projects');
+    plan.project = (await getProject(db, plan.project.id))!;
+    const out = await issue({ projectCrs: true });
+    const row = await db('handovers').where({ id: out.handover.id }).first();
+    expect(row.status, String(row.failure_reason)).toBe('issued');
+    dir = await unzip(row.storage_key);
+    manifest = JSON.parse(await readFile(path.join(dir, 'manifest.json'), 'utf8'));
+  });
+  afterAll(() => rm(path.dirname(dir), { recursive: true, force: true }));
+
+  it('writes the shapefiles and GeoPackage again in EPSG:25832, each coordinate where proj4 puts it [proj4 with the EPSG:25832 parameters, read back by GDAL ogrinfo]', async () => {
+    const { default: proj4 } = await import('proj4');
+    // EPSG:25832, ETRS89 / UTM zone 32N: GRS80, zone 32 (EPSG registry); ETRS89 taken as WGS 84 at this tolerance
+    const utm = proj4('EPSG:4326', '+proj=utm +zone=32 +ellps=GRS80 +towgs84=0,0,0,0,0,0,0 +units=m +no_defs');
+    const wgs = JSON.parse(await readFile(path.join(dir, 'geojson/as_built_sections.geojson'), 'utf8')) as { features: { properties: { section_id: string }; geometry: { coordinates: [number, number][] } }[] };
+    for (const file of ['gpkg/handover_25832.gpkg', 'shp/as_built_sections_25832.shp']) {
+      const layer = file.endsWith('.gpkg') ? 'as_built_sections' : 'as_built_sections_25832';
+      const info = ogrinfo([path.join(dir, file), layer]);
+      expect(info, file).toMatch(/ID\["EPSG",25832\]|ETRS_1989_UTM_Zone_32N|ETRS89 \/ UTM zone 32N/);
+      const all = ogrAll([path.join(dir, file), layer]);
+      const lines = [...all.matchAll(/LINESTRING \(([^)]+)\)/g)].map((m) => m[1].split(',').map((p) => p.trim().split(' ').map(Number)));
+      expect(lines.length, file).toBe(wgs.features.length);
+      const want = wgs.features.flatMap((f) => f.geometry.coordinates.map((c) => utm.forward(c)));
+      const got = lines.flat();
+      expect(got.length).toBe(want.length);
+      for (const [i, [x, y]] of got.entries()) {
+        expect(Math.abs(x - want[i][0]), `${file} x ${i}`).toBeLessThan(0.01);
+        expect(Math.abs(y - want[i][1]), `${file} y ${i}`).toBeLessThan(0.01);
+      }
+    }
+    // the WGS 84 copies are still there, and the manifest says both
+    expect(ogrinfo([path.join(dir, 'gpkg/handover.gpkg'), 'as_built_sections'])).toMatch(/ID\["EPSG",4326\]/);
+    expect(manifest.coordinateSystem).toContain('_25832');
+  });
+
+  it('states the metres by source class: RTK 120 m, handheld with RTK 80 m (the approved sections left after the revisions above)', () => {
+    const by = Object.fromEntries(manifest.positionalAccuracy.bySource.map((g) => [g.source, g.metres]));
+    expect(by).toEqual({ 'RTK GNSS': 120, 'Handheld GNSS + RTK GNSS': 80 });
+  });
+  it('says the same in README.txt', async () => {
+    const readme = await readFile(path.join(dir, 'README.txt'), 'utf8');
+    expect(readme).toContain('By source: RTK GNSS 120 m (0.05–0.05 m); Handheld GNSS + RTK GNSS 80 m (9.79–9.79 m)');
+    expect(readme).toContain('≤ 0.1 m: 120 m; > 5 m: 80 m');
+  });
+});
