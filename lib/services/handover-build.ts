@@ -298,6 +298,7 @@ async function sha256File(file: string): Promise<{ sha256: string; bytes: number
 const castOf = (name: string, type: string) =>
   type === 'real' ? `CAST("${name}" AS float)` : type === 'integer' ? `CAST("${name}" AS integer)` : type === 'date' ? `CAST("${name}" AS date)` : type === 'boolean' ? `"${name}"` : `CAST("${name}" AS character(254))`;
 const PRJ_EPSG = (crs: string) => crs.replace(/^EPSG:/i, '');
+const xml = (t: string) => t.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;');
 
 export function readmeText(inp: BuildInput, counts: Record<string, number>, crsNote: string, accuracy?: ReturnType<typeof accuracyStatement>): string {
   const lines = [
@@ -349,28 +350,41 @@ export async function buildPackage(db: Knex, inp: BuildInput, progress: Progress
     const crsTargets: { suffix: string; srs: string }[] = [{ suffix: '', srs: 'EPSG:4326' }];
     if (inp.scope.projectCrs && inp.project.defaultCrs && inp.project.defaultCrs !== 'EPSG:4326') crsTargets.push({ suffix: `_${PRJ_EPSG(inp.project.defaultCrs)}`, srs: inp.project.defaultCrs });
     const day = isoDay(inp.createdAt)!;
-    for (const t of crsTargets) {
-      const gpkg = path.join(dir, 'gpkg', `handover${t.suffix}.gpkg`);
-      for (const def of LAYERS) {
-        // GDAL takes the field types from the values it sees: an empty layer gets a seed feature of the right
-        // types that the WHERE drops, and every field is cast to its type
-        let src = path.join(dir, 'geojson', `${def.name}.geojson`);
-        const empty = counts[def.name] === 0;
-        if (empty) {
-          src = path.join(tmpDir, `${def.name}.seed.geojson`);
-          const seed = Object.fromEntries(def.fields.map((fl) => [fl.name, fl.type === 'real' ? 0.5 : fl.type === 'integer' ? 1 : fl.type === 'boolean' ? true : fl.type === 'date' ? '2000-01-01' : 'x']));
-          const geometry = def.geometry === 'Point' ? { type: 'Point', coordinates: [0, 0] } : { type: 'LineString', coordinates: [[0, 0], [1, 1]] };
-          await writeText(src, async (w) => w(JSON.stringify({ type: 'FeatureCollection', name: def.name, features: [{ type: 'Feature', geometry, properties: seed }] })));
-        }
-        const select = (short: boolean) => `SELECT ${def.fields.map((fl) => `${castOf(fl.name, fl.type)} AS "${short ? fl.short : fl.name}"`).join(', ')} FROM "${def.name}"${empty ? ' WHERE 1 = 0' : ''}`;
-        let t0 = performance.now();
-        await ogr(['-f', 'ESRI Shapefile', '-t_srs', t.srs, '-lco', `DBF_DATE_LAST_UPDATE=${day}`, '-lco', 'ENCODING=UTF-8', '-nlt', def.geometry.toUpperCase(), '-dialect', 'OGRSQL', '-sql', select(true), '-nln', `${def.name}${t.suffix}`,
-          path.join(dir, 'shp', `${def.name}${t.suffix}.shp`), src], inp.createdAt);
-        timings.shp += performance.now() - t0;
-        t0 = performance.now();
-        await ogr(['-f', 'GPKG', '-t_srs', t.srs, '-append', '-nlt', def.geometry.toUpperCase(), '-dialect', 'OGRSQL', '-sql', select(false), '-nln', def.name, gpkg, src], inp.createdAt);
-        timings.gpkg += performance.now() - t0;
+    // GDAL takes the field types from the values it sees: an empty layer reads a seed feature of the right
+    // types that the WHERE drops, and every field is cast to its type
+    const sources = new Map<string, { src: string; empty: boolean }>();
+    for (const def of LAYERS) {
+      const empty = counts[def.name] === 0;
+      let src = path.join(dir, 'geojson', `${def.name}.geojson`);
+      if (empty) {
+        src = path.join(tmpDir, `${def.name}.seed.geojson`);
+        const seed = Object.fromEntries(def.fields.map((fl) => [fl.name, fl.type === 'real' ? 0.5 : fl.type === 'integer' ? 1 : fl.type === 'boolean' ? true : fl.type === 'date' ? '2000-01-01' : 'x']));
+        const geometry = def.geometry === 'Point' ? { type: 'Point', coordinates: [0, 0] } : { type: 'LineString', coordinates: [[0, 0], [1, 1]] };
+        await writeText(src, async (w) => w(JSON.stringify({ type: 'FeatureCollection', name: def.name, features: [{ type: 'Feature', geometry, properties: seed }] })));
       }
+      sources.set(def.name, { src, empty });
+    }
+    // every layer through one OGR VRT, so that each format is one ogr2ogr process, not one per layer
+    const vrt = async (file: string, short: boolean, suffix: string) => {
+      await writeText(file, async (w) => {
+        await w('<OGRVRTDataSource>\n');
+        for (const def of LAYERS) {
+          const { src, empty } = sources.get(def.name)!;
+          const select = `SELECT ${def.fields.map((fl) => `${castOf(fl.name, fl.type)} AS "${short ? fl.short : fl.name}"`).join(', ')} FROM "${def.name}"${empty ? ' WHERE 1 = 0' : ''}`;
+          await w(`  <OGRVRTLayer name="${xml(def.name + suffix)}">\n    <SrcDataSource>${xml(src)}</SrcDataSource>\n    <SrcSQL dialect="OGRSQL">${xml(select)}</SrcSQL>\n` +
+            `    <GeometryType>wkb${def.geometry}</GeometryType>\n    <LayerSRS>EPSG:4326</LayerSRS>\n  </OGRVRTLayer>\n`);
+        }
+        await w('</OGRVRTDataSource>\n');
+      });
+      return file;
+    };
+    for (const t of crsTargets) {
+      let t0 = performance.now();
+      await ogr(['-f', 'ESRI Shapefile', '-t_srs', t.srs, '-lco', `DBF_DATE_LAST_UPDATE=${day}`, '-lco', 'ENCODING=UTF-8', path.join(dir, 'shp'), await vrt(path.join(tmpDir, `shp${t.suffix}.vrt`), true, t.suffix)], inp.createdAt);
+      timings.shp += performance.now() - t0;
+      t0 = performance.now();
+      await ogr(['-f', 'GPKG', '-t_srs', t.srs, path.join(dir, 'gpkg', `handover${t.suffix}.gpkg`), await vrt(path.join(tmpDir, `gpkg${t.suffix}.vrt`), false, '')], inp.createdAt);
+      timings.gpkg += performance.now() - t0;
       await progress(0.35 + 0.25 / crsTargets.length, 'Shapefiles and GeoPackage written');
     }
     let tw = performance.now();

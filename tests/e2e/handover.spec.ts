@@ -1,5 +1,6 @@
 import { expect, test, type Browser, type Page } from '@playwright/test';
-import { addUserWithToken, DEMO, issuedHandoverFixture, json, signIn } from '../helpers/e2e';
+import { createHash } from 'node:crypto';
+import { addUserWithToken, approvedSectionFixture, bearer, DEMO, issuedHandoverFixture, json, signIn } from '../helpers/e2e';
 
 // The handover review on a phone: an issued revision of the demo project is returned by the network owner
 // with a comment on one of its sections, the contractor's engineer reads and answers it, revision 2 is
@@ -8,9 +9,10 @@ import { addUserWithToken, DEMO, issuedHandoverFixture, json, signIn } from '../
 // package builder, which was not there when this spec was written.
 
 let projectId: string;
+let admin: string;
 
 test.beforeAll(async ({ request }) => {
-  const admin = addUserWithToken({ email: DEMO.admin, name: 'Maren Oakfield', role: 'admin', org: 'Quillhaven Open Fibre', orgKind: 'owner' });
+  admin = addUserWithToken({ email: DEMO.admin, name: 'Maren Oakfield', role: 'admin', org: 'Quillhaven Open Fibre', orgKind: 'owner' });
   const projects = await json<{ projects: { id: string; name: string }[] }>(request, 'GET', '/api/projects', admin);
   projectId = projects.body!.projects.find((p) => p.name === 'Quillhaven North, phase 1')!.id;
 });
@@ -78,4 +80,39 @@ test('the owner returns a revision with a comment on a section, the engineer ans
     await expect(returned).toContainText(DEMO.engineer);
     await expect(admin.getByRole('listitem').filter({ hasText: 'handover revision 2 accepted' })).toContainText('sent');
   }).toPass({ timeout: 30_000 });
+});
+
+test('the engineer builds a real package from the page: a progress bar, then the revision issued with its file, the accuracy by source and the change report; the owner downloads those bytes', async ({ browser, request }) => {
+  // a project of its own with one approved section, so the demo project's review state is left as it is
+  const made = await json<{ project: { id: string } }>(request, 'POST', '/api/projects', admin, { name: `Handover build ${Date.now()}`, partnerOrganisation: 'Tarnwick Slot & Duct Ltd' });
+  expect(made.status).toBe(201);
+  const id = made.body!.project.id;
+  approvedSectionFixture(id);
+  const engineer = await phone(browser, DEMO.engineer);
+  await engineer.goto(`/projects/${id}/handover`);
+  await expect(engineer.getByText('No package has been built yet.')).toBeVisible();
+  const form = engineer.getByRole('form', { name: 'Build a handover package' });
+  await form.getByLabel('Note').fill('First package of the test street.');
+  await form.getByRole('button', { name: 'Build the package' }).click();
+  await expect(form.getByRole('progressbar', { name: 'Building the package' })).toBeVisible();
+  const first = engineer.getByRole('list', { name: 'Revisions' }).getByRole('listitem').first();
+  await expect(async () => {
+    await engineer.reload();
+    await expect(first).toContainText('Revision 1', { timeout: 2_000 });
+    await expect(first).toContainText('issued, waiting for review', { timeout: 2_000 });
+  }).toPass({ timeout: 90_000 });
+  await expect(first).toContainText('Accuracy (95 % radius) by source: No source upload: 50.0 m ±0.05 m');
+  await expect(first).toContainText('Changes against nothing (first revision)');
+  await expect(first).toContainText('First package of the test street.');
+  const href = (await first.getByRole('link', { name: /\.zip$/ }).getAttribute('href'))!;
+  const handoverId = /\/api\/handovers\/([^/]+)\/download/.exec(href)![1];
+
+  // the network owner downloads it: a ZIP whose SHA-256 is the one the API states
+  const res = await request.get(href, { headers: bearer(admin) });
+  expect(res.status()).toBe(200);
+  const bytes = await res.body();
+  expect(bytes.subarray(0, 2).toString()).toBe('PK');
+  const stated = await json<{ handover: { sha256: string; status: string } }>(request, 'GET', `/api/handovers/${handoverId}`, admin);
+  expect(stated.body!.handover.status).toBe('issued');
+  expect(createHash('sha256').update(bytes).digest('hex')).toBe(stated.body!.handover.sha256);
 });

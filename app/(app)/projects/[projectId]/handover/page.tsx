@@ -45,13 +45,18 @@ function ChangeReport({ report }: { report: unknown }) {
 }
 
 /** The manifest's accuracy statement (the first text under a key naming accuracy). */
+/** The manifest's accuracy statement in one line: metres by source class with their 95 % radii. */
 function accuracyOf(manifest: unknown): string | null {
-  if (!isObj(manifest)) return null;
-  for (const [k, v] of Object.entries(manifest)) {
-    if (/accuracy/i.test(k) && typeof v === 'string') return v;
-    if (/accuracy/i.test(k) && isObj(v) && typeof v.statement === 'string') return v.statement;
-  }
-  return null;
+  if (!isObj(manifest) || !isObj(manifest.positionalAccuracy)) return null;
+  const by = manifest.positionalAccuracy.bySource;
+  if (!Array.isArray(by) || by.length === 0) return null;
+  return by
+    .filter(isObj)
+    .map((g) => {
+      const r = isObj(g.radius95) ? (g.radius95.min === g.radius95.max ? ` ±${g.radius95.min} m` : ` ±${g.radius95.min}–${g.radius95.max} m`) : ', radius unknown';
+      return `${String(g.source)}: ${Number(g.metres).toFixed(1)} m${r}`;
+    })
+    .join(' · ');
 }
 
 function Comments({ comments, title }: { comments: HandoverComment[]; title: string }) {
@@ -120,7 +125,7 @@ export default async function HandoverPage({ params }: { params: Promise<{ proje
                     {h.failureReason && (<><dt className="text-ink-faint">Why it failed</dt><dd>{h.failureReason}</dd></>)}
                     {h.reviewedAt && (<><dt className="text-ink-faint">Reviewed</dt><dd>{h.status === 'accepted' ? 'Accepted' : 'Returned'} by {h.reviewedByName ?? '—'}, {when(h.reviewedAt)}</dd></>)}
                   </dl>
-                  {accuracy && <p className="text-sm"><span className="font-medium">Accuracy: </span>{accuracy}</p>}
+                  {accuracy && <p className="text-sm"><span className="font-medium">Accuracy (95 % radius) by source: </span>{accuracy}</p>}
                   {h.status !== 'building' && h.status !== 'failed' && (
                     <div>
                       <h3 className="text-sm font-semibold">Changes against {previous ? `revision ${previous.revision}` : 'nothing (first revision)'}</h3>
