@@ -259,6 +259,8 @@ export function describeAudit(e: AuditLike): string {
     case 'organisation register':
     case 'organisation create':
       return `Registered the ${SIDE(a.kind)} ${say(a.name)}.`;
+    case 'organisation contact':
+      return a.contact ? `Set the organisation's contact for the duct lookup to ${quoted(a.contact)}` : "Removed the organisation's contact from the duct lookup.";
     case 'section review_approved':
     case 'section review_rejected':
     case 'section review_acknowledged': {

@@ -31,3 +31,13 @@ export async function listOrganisations(db: Db, kind?: OrgKind): Promise<Organis
   if (kind) q.where({ kind });
   return (await q).map(toDto);
 }
+
+/** One organisation with its contact (how to reach it about its network, shown in the duct lookup). */
+export async function getOrganisationContact(db: Db, id: string): Promise<(Organisation & { contact: string }) | undefined> {
+  const row = await db<OrganisationRow>('organisations').where({ id }).first();
+  return row && { ...toDto(row), contact: row.contact };
+}
+
+export async function setOrganisationContact(db: Db, id: string, contact: string): Promise<void> {
+  await db<OrganisationRow>('organisations').where({ id }).update({ contact });
+}

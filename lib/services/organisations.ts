@@ -1,10 +1,10 @@
 import type { Knex } from 'knex';
 import { z } from 'zod';
 import { writeAudit } from '@/db/audit';
-import { insertOrganisation, listOrganisations, type Organisation } from '@/db/organisations';
+import { getOrganisationContact, insertOrganisation, listOrganisations, setOrganisationContact, type Organisation } from '@/db/organisations';
 import { AppError } from '@/lib/api/errors';
 import { auditActor, type Principal } from '@/lib/auth/principal';
-import { ORG_KINDS } from '@/lib/auth/roles';
+import { can, ORG_KINDS } from '@/lib/auth/roles';
 
 export const registerOrganisationSchema = z.object({
   name: z.string().trim().min(2, 'Give the organisation’s full name.').max(200),
@@ -30,5 +30,32 @@ export async function registerOrganisation(db: Knex, actor: Principal, input: z.
     const org = await insertOrganisation(trx, input.name, input.kind);
     await writeAudit(trx, auditActor(actor), { organisationId: actor.organisationId, objectType: 'organisation', objectId: org.id, action: 'register', after: org });
     return org;
+  });
+}
+
+export const organisationContactSchema = z.object({
+  contact: z.string().trim().max(500, 'Keep the contact to 500 characters: a desk, a telephone number, an e-mail address.'),
+}).strict();
+
+/** The person's own organisation, with the contact the duct lookup shows beside its network. */
+export async function ownOrganisation(db: Knex, actor: Principal): Promise<Organisation & { contact: string }> {
+  const org = await getOrganisationContact(db, actor.organisationId);
+  if (!org) throw new AppError('not_found', 'Your organisation is not registered.');
+  return org;
+}
+
+/**
+ * Sets how to reach the organisation about its network (shown to maintenance crews in the duct lookup beside
+ * each stretch the organisation owns): the organisation's administrators only, with an audit entry.
+ */
+export async function setOwnContact(db: Knex, actor: Principal, input: z.infer<typeof organisationContactSchema>): Promise<Organisation & { contact: string }> {
+  if (!can(actor.role, 'user.manage')) throw new AppError('forbidden', `Your role (${actor.role}) may not change the organisation's contact; its administrators do.`);
+  return db.transaction(async (trx) => {
+    const before = await getOrganisationContact(trx, actor.organisationId);
+    if (!before) throw new AppError('not_found', 'Your organisation is not registered.');
+    if (before.contact === input.contact) return before;
+    await setOrganisationContact(trx, actor.organisationId, input.contact);
+    await writeAudit(trx, auditActor(actor), { organisationId: actor.organisationId, objectType: 'organisation', objectId: before.id, action: 'contact', before: { contact: before.contact }, after: { contact: input.contact } });
+    return { ...before, contact: input.contact };
   });
 }

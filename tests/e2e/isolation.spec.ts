@@ -112,6 +112,15 @@ const MATRIX: Record<string, Row | PublicRow> = {
   },
   'GET /api/me': { url: () => '/api/me', foreign: NO_OBJECT, denied: ALL_ROLES, allowed: 'maintenance', success: 200 },
   'PATCH /api/me': { url: () => '/api/me', foreign: { na: 'a person changes only their own units' }, denied: ALL_ROLES, allowed: 'maintenance', body: () => ({ unitSystem: null }), success: 200 },
+  'GET /api/me/organisation': { url: () => '/api/me/organisation', foreign: { na: 'reads only the caller’s own organisation' }, denied: ALL_ROLES, allowed: 'maintenance', success: 200 },
+  'PATCH /api/me/organisation': {
+    url: () => '/api/me/organisation',
+    foreign: { na: 'sets only the caller’s own organisation’s contact' },
+    denied: 'engineer',
+    allowed: 'admin',
+    body: () => ({ contact: 'Matrix network desk, 555 0199' }),
+    success: 200,
+  },
   // ---- trench records: quality checks (lead) ----
   'GET /api/projects/[projectId]/checks': {
     url: (c) => `/api/projects/${c.projectId}/checks`,

@@ -9,6 +9,7 @@ import { lookupAddresses, lookupNearby, nearbyQuery } from '@/lib/services/looku
 import { createToken } from '@/lib/services/tokens';
 import { GET as nearbyRoute } from '@/app/api/lookup/nearby/route';
 import { GET as addressesRoute } from '@/app/api/lookup/addresses/route';
+import { PATCH as contactRoute } from '@/app/api/me/organisation/route';
 import { makePrincipal } from '../helpers/fixtures';
 import { makeRecordPlan, type RecordPlan } from '../helpers/record-plan';
 
@@ -241,5 +242,27 @@ describe('nearby stretches', () => {
     }
     const found = await call(addressesRoute, '/api/lookup/addresses?q=lanternfeild%20rd%2012');
     expect((await found.json()).candidates[0]).toMatchObject({ street: 'Lanternfield Road', number: '12', projectId: plan.project.id });
+  });
+  it("the owner's administrator sets the contact the lookup shows (audited); another role gets 403, an over-long one a 422 naming the field, and nothing changes", async () => {
+    const admin = await makePrincipal(db, 'admin', 'owner', plan.project.ownerOrgName);
+    const patch = async (who: typeof admin, body: unknown) => {
+      const token = (await createToken(db, who, { name: 'contact' })).secret;
+      return contactRoute(new NextRequest('http://127.0.0.1/api/me/organisation', { method: 'PATCH', headers: { authorization: `Bearer ${token}`, 'content-type': 'application/json' }, body: JSON.stringify(body) }), { params: Promise.resolve({}) });
+    };
+    const auditRows = () => db('audit_log').where({ object_type: 'organisation', action: 'contact', object_id: plan.project.ownerOrgId }).count<{ n: number }[]>('* as n').then(([r]) => Number(r.n));
+    const before = await auditRows();
+    const ok = await patch(admin, { contact: '  Fault desk 555 0142, faults@quillhaven.example ' });
+    expect(ok.status).toBe(200);
+    expect((await ok.json()).organisation.contact).toBe('Fault desk 555 0142, faults@quillhaven.example');
+    expect((await lookupNearby(db, plan.maintenance, q(50, 7))).stretches[0].ownerContact).toBe('Fault desk 555 0142, faults@quillhaven.example');
+    expect(await auditRows()).toBe(before + 1);
+
+    expect((await patch(plan.maintenance, { contact: 'Someone else' })).status).toBe(403);
+    const long = await patch(admin, { contact: 'x'.repeat(501) });
+    expect(long.status).toBe(422);
+    expect((await long.json()).error.details[0].path).toBe('contact');
+    expect((await db('organisations').where({ id: plan.project.ownerOrgId }).first()).contact).toBe('Fault desk 555 0142, faults@quillhaven.example');
+    expect(await auditRows()).toBe(before + 1);
+    await db('organisations').where({ id: plan.project.ownerOrgId }).update({ contact: 'Network desk 555 0100' });
   });
 });
