@@ -10,8 +10,10 @@
 //     with the same pool size: the ceiling the API's throughput is compared with.
 // Targets (issue 17, this 2-core machine): nearby p95 < 10 ms with one client; at 16 clients at least 25 % of the
 // bare server's throughput; address search p95 < 30 ms with one client.
-// Run it under the build lock: flock /tmp/tb-build.lock npm run bench:lookup   (--keep keeps the database)
+// Run it under the build lock: flock /tmp/tb-build.lock npm run bench:lookup
+//   --keep keeps the generated town (about a gigabyte); --reuse measures again on the kept one without generating
 import { execFileSync, spawn, type ChildProcess } from 'node:child_process';
+import { randomUUID } from 'node:crypto';
 import http from 'node:http';
 import path from 'node:path';
 
@@ -69,7 +71,7 @@ async function generate(): Promise<{ token: string; visibleProjectIds: string[] 
   for (const projectId of projects) {
     const pair: string[] = [];
     for (const [cls, sigma] of [['rtk_gnss', 0.02], ['handheld_gnss', 4]] as const) {
-      const [u] = await db('uploads').insert({ project_id: projectId, sha256: cls.padEnd(64, '0'), size_bytes: 1, file_name: `${cls}.gpx`, status: 'stored', accuracy_class: cls, sigma_m: sigma, content: 'trench' }).returning('id');
+      const [u] = await db('uploads').insert({ id: randomUUID(), project_id: projectId, sha256: cls.padEnd(64, '0'), size_bytes: 1, file_name: `${cls}.gpx`, status: 'stored', accuracy_class: cls, sigma_m: sigma, content: 'trench' }).returning('id');
       pair.push(u.id);
     }
     uploads.push(pair);
@@ -88,23 +90,22 @@ async function generate(): Promise<{ token: string; visibleProjectIds: string[] 
   }
   await db.raw(
     `insert into planned_routes (project_id, ref, street, kind, geom, length_m, first_version, geometry_version)
-     select b.project_id, 'R-' || r || '-' || c, b.name, 'street',
-            ST_SetSRID(ST_MakeLine(ST_MakePoint(? + c * 40 * ?, ? + r * 80 * ?), ST_MakePoint(? + (c + 1) * 40 * ?, ? + r * 80 * ?)), 4326), 40, 1, 1
-       from generate_series(0, ${ROWS - 1}) r, generate_series(0, ${ROUTES_PER_ROW - 1}) c join bench_streets b on b.c0 = (c / 20) * 20
-      where b.r = r`,
+     select b.project_id, 'R-' || b.r || '-' || g.c, b.name, 'street',
+            ST_SetSRID(ST_MakeLine(ST_MakePoint(?::float8 + g.c * 40 * ?::float8, ?::float8 + b.r * 80 * ?::float8), ST_MakePoint(?::float8 + (g.c + 1) * 40 * ?::float8, ?::float8 + b.r * 80 * ?::float8)), 4326), 40, 1, 1
+       from bench_streets b join generate_series(0, ${ROUTES_PER_ROW - 1}) g(c) on b.c0 = (g.c / 20) * 20`,
     [LON0, M_LON, LAT0, M_LAT, LON0, M_LON, LAT0, M_LAT]);
   await db.raw(`insert into address_streets (project_id, name, name_norm, locality) select project_id, name, name_norm, 'Benchford' from bench_streets`);
   // 400 numbers a street: odd on the north side, even on the south, 15 m off the centreline, every 4 m
   await db.raw(
     `insert into addresses (project_id, key, street_id, street, number, number_base, postcode, locality, units, geom)
      select b.project_id, 'A-' || b.k || '-' || n, s.id, b.name, n::text, n, b.postcode, 'Benchford', 1 + (n % 7 = 0)::int * 5,
-            ST_SetSRID(ST_MakePoint(? + (b.c0 * 40 + ((n - 1) / 2) * 4 + 2) * ?, ? + (b.r * 80 + case when n % 2 = 1 then 15 else -15 end) * ?), 4326)
+            ST_SetSRID(ST_MakePoint(?::float8 + (b.c0 * 40 + ((n - 1) / 2) * 4 + 2) * ?::float8, ?::float8 + (b.r * 80 + case when n % 2 = 1 then 15 else -15 end) * ?::float8), 4326)
        from bench_streets b join address_streets s on s.project_id = b.project_id and s.name_norm = b.name_norm, generate_series(1, 400) n`,
     [LON0, M_LON, LAT0, M_LAT]);
   // one section along each route (1.5 m north of the design), RTK on even rows, walked on odd ones
   await db.raw(
     `insert into sections (project_id, planned_route_ref, status, from_chainage_m, to_chainage_m, geom, length_m, max_offset_m, p95_offset_m, accuracy_m, source_upload_ids, laid_on, first_run, last_run, review)
-     select r.project_id, r.ref, 'as_planned', 0, 40, ST_Translate(r.geom, 0, 1.5 * ?), 40, 1.6, 1.5,
+     select r.project_id, r.ref, 'as_planned', 0, 40, ST_Translate(r.geom, 0, 1.5 * ?::float8), 40, 1.6, 1.5,
             case when split_part(r.ref, '-', 2)::int % 2 = 0 then 0.05 else 9.8 end,
             array[(?::uuid[])[1 + (split_part(r.ref, '-', 2)::int / 50) * 2 + split_part(r.ref, '-', 2)::int % 2]], '2026-10-01'::date + (split_part(r.ref, '-', 3)::int % 60), 1, 1,
             case when split_part(r.ref, '-', 3)::int % 3 = 0 then 'pending' else 'approved' end
@@ -128,6 +129,22 @@ async function generate(): Promise<{ token: string; visibleProjectIds: string[] 
   const { secret } = await createToken(db, maintenance, { name: 'bench' });
   await closeDb();
   return { token: secret, visibleProjectIds: projects.slice(0, 4) };
+}
+
+/** --reuse: the town a --keep run left; a new token for its maintenance user. */
+async function reuseGenerated(): Promise<{ token: string; visibleProjectIds: string[] }> {
+  process.env.DATABASE_URL = url;
+  const { getDb, closeDb } = await import('../db/client');
+  const { loadPrincipal } = await import('../lib/auth/principal');
+  const { createToken } = await import('../lib/services/tokens');
+  const db = getDb();
+  const org = await db('organisations').where({ name: 'Benchford Fibre Net' }).first('id');
+  if (!org) throw new Error('--reuse: no generated town in trenchbook_bench_lookup; run once with --keep first');
+  const user = await db('users').where({ organisation_id: org.id, role: 'maintenance' }).first('id');
+  const projects = await db('projects').where({ owner_org_id: org.id }).orderBy('name').select('id');
+  const { secret } = await createToken(db, (await loadPrincipal(db, user.id))!, { name: 'bench' });
+  await closeDb();
+  return { token: secret, visibleProjectIds: projects.map((p: { id: string }) => p.id) };
 }
 
 // ---- the bare ceiling: node:http + pg, the same statement, no framework, no auth, no other queries ----
@@ -188,27 +205,37 @@ const pct = (xs: number[], p: number) => {
 const line = (name: string, r: Run) =>
   `${name.padEnd(34)} ${String(r.latencies.length).padStart(6)} req ${(r.latencies.length / r.seconds).toFixed(0).padStart(6)} req/s   p50 ${pct(r.latencies, 50).toFixed(2).padStart(6)}  p95 ${pct(r.latencies, 95).toFixed(2).padStart(6)}  p99 ${pct(r.latencies, 99).toFixed(2).padStart(6)} ms${r.errors ? `  ${r.errors} ERRORS` : ''}`;
 
-function startChild(args: string[], extraEnv: Record<string, string>): Promise<ChildProcess> {
+/** Starts a server in a process group of its own (listed in `started` at once, so that it is stopped on any failure). */
+function startChild(args: string[], extraEnv: Record<string, string>, started: ChildProcess[]): Promise<ChildProcess> {
   return new Promise((resolve, reject) => {
     const child = spawn('node', ['--import', 'tsx', ...args], { cwd: root, env: { ...env, ...extraEnv }, stdio: ['ignore', 'pipe', 'inherit'], detached: true });
+    started.push(child);
     child.stdout!.on('data', (d: Buffer) => { if (/serving|ready/i.test(d.toString())) resolve(child); });
     child.on('exit', (code) => reject(new Error(`${args.join(' ')} ended (${code}) before it was ready`)));
   });
 }
 
 async function main() {
-  if (process.argv[2] === '--bare') return bare(Number(process.argv[3]), JSON.parse(process.argv[4]));
-  const keep = process.argv.includes('--keep');
-  execFileSync('bash', [path.join(root, 'scripts/db.sh'), 'recreatedb', DB], { stdio: 'inherit' });
-  execFileSync('npm', ['run', '--silent', 'db:migrate'], { cwd: root, env, stdio: ['ignore', 'ignore', 'inherit'] });
-  const t = performance.now();
-  const { token, visibleProjectIds } = await generate();
-  console.log(`generated in ${((performance.now() - t) / 1000).toFixed(0)} s: 1,000,000 addresses on 2,500 streets, 50,000 sections with ducts and cover readings, 5 projects (4 visible to the asking owner)`);
+  const reuse = process.argv.includes('--reuse');
+  const keep = reuse || process.argv.includes('--keep');
+  let token: string;
+  let visibleProjectIds: string[];
+  if (reuse) {
+    ({ token, visibleProjectIds } = await reuseGenerated());
+    console.log('reusing the generated town of an earlier run (--reuse)');
+  } else {
+    execFileSync('bash', [path.join(root, 'scripts/db.sh'), 'recreatedb', DB], { stdio: 'inherit' });
+    execFileSync('npm', ['run', '--silent', 'db:migrate'], { cwd: root, env, stdio: ['ignore', 'ignore', 'inherit'] });
+    const t = performance.now();
+    ({ token, visibleProjectIds } = await generate());
+    console.log(`generated in ${((performance.now() - t) / 1000).toFixed(0)} s: 1,000,000 addresses on 2,500 streets, 50,000 sections with ducts and cover readings, 5 projects (4 visible to the asking owner)`);
+  }
 
-  const api = await startChild(['scripts/server.ts'], { PORT: String(API_PORT), NEXTAUTH_URL: `http://127.0.0.1:${API_PORT}` });
-  const bareServer = await startChild([__filename, '--bare', String(BARE_PORT), JSON.stringify(visibleProjectIds)], {});
-  const stop = () => { for (const c of [api, bareServer]) try { process.kill(-c.pid!, 'SIGTERM'); } catch { /* already gone */ } };
+  const children: ChildProcess[] = [];
+  const stop = () => { for (const c of children) try { process.kill(-c.pid!, 'SIGTERM'); } catch { /* already gone */ } };
   try {
+    await startChild(['scripts/server.ts'], { PORT: String(API_PORT), NEXTAUTH_URL: `http://127.0.0.1:${API_PORT}` }, children);
+    await startChild([__filename, '--bare', String(BARE_PORT), JSON.stringify(visibleProjectIds)], {}, children);
     const auth = { authorization: `Bearer ${token}` };
     const random = rng(17);
     // spots anywhere in the owner's four projects' rows (every spot has streets within 50 m)
@@ -256,7 +283,14 @@ async function main() {
   }
 }
 
-main().then(() => process.exit(0), (err) => {
-  console.error(err);
-  process.exit(1);
-});
+if (process.argv[2] === '--bare') {
+  bare(Number(process.argv[3]), JSON.parse(process.argv[4])).catch((err) => {
+    console.error(err);
+    process.exit(1);
+  });
+} else {
+  main().then(() => process.exit(0), (err) => {
+    console.error(err);
+    process.exit(1);
+  });
+}

@@ -51,3 +51,32 @@ test('the printed sheet fits one A4 page and carries the cautions', async ({ pag
   const pages = pdf.toString('latin1').match(/\/Type\s*\/Page(?!s)/g) ?? [];
   expect(pages.length).toBe(1);
 });
+
+test("the owner's administrator changes the organisation's contact on the People page, and the maintenance crew sees the new one", async ({ browser }) => {
+  const adminCtx = await browser.newContext();
+  const admin = await adminCtx.newPage();
+  await signIn(admin, DEMO.admin);
+  await admin.goto('/admin/users');
+  const form = admin.getByRole('form', { name: 'Contact for the duct lookup' });
+  const field = form.getByLabel('Contact');
+  const before = await field.inputValue();
+  expect(before).toContain('Network desk');
+  await field.fill('Fault line +44 1632 960 499 (day and night)');
+  await form.getByRole('button', { name: 'Save the contact' }).click();
+  await expect(form).toContainText('Saved: the lookup now shows “Fault line +44 1632 960 499 (day and night)”.');
+
+  const crewCtx = await browser.newContext({ viewport: { width: 375, height: 740 } });
+  const crew = await crewCtx.newPage();
+  await signIn(crew, DEMO.maintenance);
+  await crew.goto('/lookup');
+  await crew.getByLabel('Address').fill('Lanternfield Road 5');
+  await crew.getByRole('list', { name: 'Addresses found' }).getByRole('button').first().click();
+  await expect(crew.getByTestId('stretch').first()).toContainText('Fault line +44 1632 960 499 (day and night)');
+
+  // put the demo's contact back for the specs after this one
+  await field.fill(before);
+  await form.getByRole('button', { name: 'Save the contact' }).click();
+  await expect(form).toContainText('Saved:');
+  await adminCtx.close();
+  await crewCtx.close();
+});

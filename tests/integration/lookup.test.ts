@@ -204,6 +204,38 @@ describe('nearby stretches', () => {
       await db('handovers').where({ project_id: plan.project.id }).where('revision', '>=', r1).delete();
     }
   });
+  it('lists utility crossings, test pits and road crossings within the radius, by geodesic distance, and none just outside [positions by geographiclib-geodesic Direct]', async () => {
+    const s1 = plan.routes.get('S-1')!;
+    const x1 = plan.routes.get('X-1')!;
+    const [lon0, lat0] = plan.at(100, 30);
+    const from = (azi: number, dist: number): [number, number] => { const d = G.Direct(lat0, lon0, azi, dist); return [d.lon2!, d.lat2!]; };
+    const kind = (await db('utility_kinds').whereNull('project_id').first('id')).id;
+    const pt = (lonlat: [number, number]) => db.raw('ST_SetSRID(ST_MakePoint(?, ?), 4326)', lonlat);
+    // due east and due north, where a box in degrees is tightest: 49.5 m in, 50.5 m out
+    await db('utility_crossings').insert([
+      { project_id: plan.project.id, route_id: s1, chainage_m: 100, geom: pt(from(90, 49.5)), utility_kind_id: kind, method: 'gpr', owner: 'Quillhaven Water', depth_m: 0.9, clearance_m: 0.3 },
+      { project_id: plan.project.id, route_id: s1, chainage_m: 101, geom: pt(from(90, 50.5)), utility_kind_id: kind, method: 'gpr', owner: 'too far', depth_m: 0.9, clearance_m: 0.3 },
+    ]);
+    await db('test_pits').insert([
+      { project_id: plan.project.id, route_id: s1, chainage_m: 100, geom: pt(from(0, 49.5)), name: 'TP-in', depth_m: 0.6 },
+      { project_id: plan.project.id, route_id: s1, chainage_m: 100, geom: pt(from(180, 50.5)), name: 'TP-out', depth_m: 0.6 },
+    ]);
+    await db('road_crossings').insert({ project_id: plan.project.id, route_id: x1, from_chainage_m: 0, to_chainage_m: 9, built: true, built_on: '2026-11-04', length_m: 9, duct_count: 1 });
+    try {
+      const r = await lookupNearby(db, plan.maintenance, { ...nearbyQuery.parse({ lon: String(lon0), lat: String(lat0), radius: '50' }) });
+      // a box that forgot the cos(latitude) would be about 30 m wide east–west here and lose the utility
+      expect(r.nearby.map((n) => [n.kind, n.kind === 'pit' ? n.label : n.owner]).sort()).toEqual([['pit', 'Test pit TP-in'], ['utility', 'Quillhaven Water']]);
+      for (const n of r.nearby) expect(n.distanceM).toBeCloseTo(49.5, 2);
+      // the X-1 crossing runs 40 m east at 0 to -9 m north: about 74 m from this spot, outside
+      expect(r.crossings).toEqual([]);
+      const near = await lookupNearby(db, plan.maintenance, nearbyQuery.parse({ lon: String(plan.at(45, -4)[0]), lat: String(plan.at(45, -4)[1]) }));
+      expect(near.crossings.map((c) => c.routeRef)).toEqual(['X-1']);
+    } finally {
+      await db('utility_crossings').where({ project_id: plan.project.id }).delete();
+      await db('test_pits').where({ project_id: plan.project.id }).delete();
+      await db('road_crossings').where({ project_id: plan.project.id }).delete();
+    }
+  });
   it('sorts by "could be this close" too: the walked crossing, 9.79 m uncertain, could be nearer than the surveyed street', async () => {
     const r = await lookupNearby(db, plan.maintenance, q(45, 9, { order: 'could_be' }));
     expect(r.stretches[0].routeRef).toBe('X-1');
