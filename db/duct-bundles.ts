@@ -278,3 +278,13 @@ export async function insertDuctJoint(db: Db, projectId: string, userId: string 
 export async function deleteDuctJoint(db: Db, id: string): Promise<number> {
   return db('duct_joints').where({ id }).delete();
 }
+
+/** The bundles (planned and installed) of several routes, by route and chainage: the lookup's one query for all its stretches. */
+export async function listDuctBundlesOnRoutes(db: Db, routes: { projectId: string; id: string }[]): Promise<DuctBundle[]> {
+  if (routes.length === 0) return [];
+  const rows = await bundles(db)
+    .whereIn(['rec.project_id', 'rec.route_id'], routes.map((r) => [r.projectId, r.id]))
+    .orderBy([{ column: 'rec.route_id' }, { column: 'rec.from_chainage_m' }, { column: 'rec.kind', order: 'desc' }])
+    .select(bundleColumns);
+  return withDucts(db, rows);
+}

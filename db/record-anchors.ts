@@ -73,6 +73,8 @@ export function recordsOnSection(db: Db, table: string, section: { projectId: st
   const q = db(`${table} as rec`)
     .join('planned_routes as r', 'r.id', 'rec.route_id')
     .where('rec.project_id', section.projectId)
+    // the route by (project, ref), its unique index: without the project the planner scanned every route
+    .andWhere('r.project_id', section.projectId)
     .andWhere((w) => (section.plannedRouteRef === null ? w.whereRaw('false') : w.where('r.ref', section.plannedRouteRef)));
   if (shape === 'stretch') q.andWhere('rec.from_chainage_m', '<', section.toChainageM).andWhere('rec.to_chainage_m', '>', section.fromChainageM);
   else q.andWhere('rec.chainage_m', '>=', section.fromChainageM).andWhere('rec.chainage_m', '<=', section.toChainageM);

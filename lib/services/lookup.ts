@@ -1,7 +1,7 @@
 import { z } from 'zod';
 import type { Db } from '@/db/client';
 import { searchAddresses, type AddressCandidate } from '@/db/address-search';
-import { listDuctBundlesOnSection } from '@/db/duct-bundles';
+import { listDuctBundlesOnRoutes } from '@/db/duct-bundles';
 import { coverReadings, crossingsOn, handedOverIn, ownerContacts, nearbyPoints, nearbySections, routesByRef, uploadClasses, type NearbyPoint } from '@/db/lookup';
 import { listProjectsForOrganisation, type Project } from '@/db/projects';
 import { ACCURACY_CLASS_LABELS, type AccuracyClass } from '@/lib/records/accuracy-classes';
@@ -98,20 +98,26 @@ export async function lookupNearby(db: Db, me: Principal, q: z.infer<typeof near
   const spot: LonLat = [q.lon, q.lat];
   const radiusM = q.radius ?? env().LOOKUP_RADIUS_M;
   const sections = await nearbySections(db, ids, spot, radiusM);
-  const routes = await routesByRef(db, [...new Map(sections.filter((s) => s.routeRef).map((s) => [`${s.projectId}|${s.routeRef}`, { projectId: s.projectId, ref: s.routeRef! }])).values()]);
+  // what the stretches need, read side by side (independent queries, each on a connection of the pool)
+  const routesAndRecords = (async () => {
+    const routes = await routesByRef(db, [...new Map(sections.filter((s) => s.routeRef).map((s) => [`${s.projectId}|${s.routeRef}`, { projectId: s.projectId, ref: s.routeRef! }])).values()]);
+    const [covers, bundles] = await Promise.all([coverReadings(db, routes), listDuctBundlesOnRoutes(db, routes)]);
+    return { routes, covers, bundles };
+  })();
+  const [{ routes, covers, bundles: allBundles }, contacts, classes, handovers, nearby, crossingRows, address] = await Promise.all([
+    routesAndRecords,
+    ownerContacts(db, [...new Set(projects.map((p) => p.ownerOrgId))]),
+    uploadClasses(db, [...new Set(sections.flatMap((s) => s.sourceUploadIds))]),
+    handedOverIn(db, [...new Set(sections.map((s) => s.projectId))], sections.map((s) => s.id)),
+    nearbyPoints(db, ids, spot, radiusM),
+    crossingsOn(db, ids, spot, radiusM),
+    q.addressId
+      ? db('addresses').where({ id: q.addressId }).whereIn('project_id', ids).first<{ project_id: string; lon: number; lat: number } | undefined>('project_id', db.raw('ST_X(geom) as lon, ST_Y(geom) as lat'))
+      : Promise.resolve(undefined),
+  ]);
+  if (q.addressId && !address) throw new AppError('not_found', 'That address is not in a project your organisation may see.');
   const route = (projectId: string, ref: string | null) => routes.find((r) => r.projectId === projectId && r.ref === ref);
-  const covers = await coverReadings(db, routes);
-  const contacts = await ownerContacts(db, [...new Set(projects.map((p) => p.ownerOrgId))]);
-  const classes = await uploadClasses(db, [...new Set(sections.flatMap((s) => s.sourceUploadIds))]);
-  const handovers = await handedOverIn(db, [...new Set(sections.map((s) => s.projectId))], sections.map((s) => s.id));
-
   let addressSide: RouteSide | null = null;
-  let address: { lon: number; lat: number; projectId: string } | undefined;
-  if (q.addressId) {
-    const a = await db('addresses').where({ id: q.addressId }).whereIn('project_id', ids).first('project_id', db.raw('ST_X(geom) as lon, ST_Y(geom) as lat'));
-    if (!a) throw new AppError('not_found', 'That address is not in a project your organisation may see.');
-    address = { lon: a.lon, lat: a.lat, projectId: a.project_id };
-  }
 
   const stretches: Stretch[] = [];
   for (const s of sections) {
@@ -122,7 +128,8 @@ export async function lookupNearby(db: Db, me: Principal, q: z.infer<typeof near
     addressSide = address ? sideOf(snapOnLine(line, [address.lon, address.lat]).offsetM) : null;
     const onStretch = r ? covers.filter((c) => c.routeId === r.id && c.chainageM >= s.fromChainageM && c.chainageM <= s.toChainageM) : [];
     const nearest = [...onStretch].sort((a, b) => Math.abs(a.chainageM - snap.chainageM) - Math.abs(b.chainageM - snap.chainageM)).slice(0, 2);
-    const bundles = await listDuctBundlesOnSection(db, { projectId: s.projectId, plannedRouteRef: s.routeRef, fromChainageM: s.fromChainageM, toChainageM: s.toChainageM });
+    // the bundles on this stretch, planned and installed, by chainage (as on the section's page)
+    const bundles = r ? allBundles.filter((b) => b.routeId === r.id && b.fromChainageM < s.toChainageM && b.toChainageM > s.fromChainageM) : [];
     const installed = bundles.filter((b) => b.kind === 'installed');
     const srcClasses = [...new Set(s.sourceUploadIds.map((u) => classes.get(u)?.accuracyClass).filter((c): c is AccuracyClass => c !== undefined))];
     const p = byId.get(s.projectId)!;
@@ -138,8 +145,7 @@ export async function lookupNearby(db: Db, me: Principal, q: z.infer<typeof near
     });
   }
   const sorted = sortStretches(stretches, q.order);
-  const nearby = await nearbyPoints(db, ids, spot, radiusM);
-  const crossings = (await crossingsOn(db, ids, spot, radiusM)).map(({ projectId: _p, ...c }) => c);
+  const crossings = crossingRows.map(({ projectId: _p, ...c }) => c);
   return { spot: { lon: q.lon, lat: q.lat }, radiusM, stretches: sorted, nearby, crossings };
 }
 
