@@ -83,7 +83,7 @@ type BundleJoined = DuctBundleRow & { route_ref: string; removed_in_version: num
 
 const bundleColumns = ['rec.*', 'r.ref as route_ref', 'r.removed_in_version', 'u.name as created_by_name'];
 
-const toDuct = (d: DuctBundleDuctRow): Duct => ({
+export const toDuct = (d: DuctBundleDuctRow): Duct => ({
   position: d.position,
   ductSizeId: d.duct_size_id,
   outerMm: d.outer_mm,
@@ -277,14 +277,4 @@ export async function insertDuctJoint(db: Db, projectId: string, userId: string 
 
 export async function deleteDuctJoint(db: Db, id: string): Promise<number> {
   return db('duct_joints').where({ id }).delete();
-}
-
-/** The bundles (planned and installed) of several routes, by route and chainage: the lookup's one query for all its stretches. */
-export async function listDuctBundlesOnRoutes(db: Db, routes: { projectId: string; id: string }[]): Promise<DuctBundle[]> {
-  if (routes.length === 0) return [];
-  const rows = await bundles(db)
-    .whereIn(['rec.project_id', 'rec.route_id'], routes.map((r) => [r.projectId, r.id]))
-    .orderBy([{ column: 'rec.route_id' }, { column: 'rec.from_chainage_m' }, { column: 'rec.kind', order: 'desc' }])
-    .select(bundleColumns);
-  return withDucts(db, rows);
 }

@@ -1,6 +1,8 @@
 import type { Db } from './client';
 import type { LonLat } from '@/lib/matching/types';
 import type { AccuracyClass } from '@/lib/records/accuracy-classes';
+import { toDuct, type Duct } from './duct-bundles';
+import type { DuctBundleDuctRow } from './tables';
 
 /** A current as-built section near a spot, as the lookup reads it. */
 export interface NearbySectionRow {
@@ -26,8 +28,13 @@ export interface NearbySectionRow {
 export const NEARBY_CANDIDATES = 100;
 
 /**
- * The nearby query itself (positional `?`: lon, lat, project ids, radius in metres). Exported so that the
- * lookup benchmark's bare server (scripts/bench-lookup.ts) runs exactly this statement as its ceiling.
+ * The nearby query itself (positional `?`: lon, lat, project ids, radius in metres): the current built
+ * sections (not retired, not `not_built`) of the given projects within the radius of the spot, nearest first.
+ * The GIST index walks the sections in planar distance order (`<->`), the nearest NEARBY_CANDIDATES of them
+ * are measured geodesically and kept within the radius. The spot is a one-row subquery joined LATERAL, not a
+ * CTE: a CTE used twice is materialised, and the KNN order then ran as a sequential scan and sort of every
+ * visible section (174 ms against 0.7 ms on the benchmark's 50,000). Exported so that the lookup benchmark's
+ * bare server (scripts/bench-lookup.ts) runs exactly this statement as its ceiling.
  */
 export const NEARBY_SECTIONS_SQL = `SELECT c.id, c.project_id, c.planned_route_ref, c.status, c.from_chainage_m, c.to_chainage_m, c.accuracy_m,
             to_char(c.laid_on, 'YYYY-MM-DD') AS laid_on, c.review, c.source_upload_ids,
@@ -41,61 +48,65 @@ export const NEARBY_SECTIONS_SQL = `SELECT c.id, c.project_id, c.planned_route_r
       WHERE ST_DWithin(c.geom::geography, spot.g::geography, ?)
       ORDER BY distance_m, c.id`;
 
+const nearbyRow = (r: Record<string, any>): NearbySectionRow => ({
+  id: r.id, projectId: r.project_id, routeRef: r.planned_route_ref, status: r.status, fromChainageM: r.from_chainage_m, toChainageM: r.to_chainage_m,
+  accuracyM: r.accuracy_m, laidOn: r.laid_on, review: r.review, sourceUploadIds: r.source_upload_ids ?? [], distanceM: Number(r.distance_m),
+  coords: r.geometry.coordinates, band: r.band ?? null,
+});
+
+/** A nearby section with everything the lookup says about it, read in one statement. */
+export interface LookupStretchRow extends NearbySectionRow {
+  route: { id: string; street: string | null; coords: LonLat[] } | null;
+  ownerContact: string;
+  /** cover readings on the section's stretch of its route, by chainage */
+  covers: { chainageM: number; coverM: number }[];
+  /** the bundles on the stretch (planned and installed), by chainage, with their ducts */
+  bundles: { kind: 'planned' | 'installed'; ducts: Duct[] }[];
+  /** the accuracy classes of the uploads the section was derived from */
+  classes: AccuracyClass[];
+  /** the newest issued handover package holding the section; null: not handed over yet */
+  handover: { handoverId: string; revision: number; status: string } | null;
+}
+
 /**
- * The current built sections (not retired, not `not_built`) of the given projects within `radiusM` of the
- * spot, nearest first: the GIST index walks the sections in planar distance order (`<->`), the nearest
- * NEARBY_CANDIDATES of them are measured geodesically and kept within the radius. The spot is a one-row
- * subquery joined LATERAL, not a CTE: a CTE used twice is materialised, and the KNN order then ran as a
- * sequential scan and sort of every visible section (174 ms against 0.7 ms on the benchmark's 50,000).
+ * The nearby sections (NEARBY_SECTIONS_SQL) with their route, owner's contact, cover readings, duct bundles,
+ * source classes and handover revision: one statement, each part a correlated subquery on its index, so that
+ * a lookup costs one round trip rather than one per part and stretch.
  */
-export async function nearbySections(db: Db, projectIds: string[], p: LonLat, radiusM: number): Promise<NearbySectionRow[]> {
+export async function lookupStretches(db: Db, projectIds: string[], p: LonLat, radiusM: number): Promise<LookupStretchRow[]> {
   if (projectIds.length === 0) return [];
   const { rows } = await db.raw(
-    NEARBY_SECTIONS_SQL,
+    `WITH near AS (${NEARBY_SECTIONS_SQL})
+     SELECT n.*, r.id AS route_id, r.street, ST_AsGeoJSON(r.geom, 9)::json AS route_geometry,
+            (SELECT o.contact FROM projects pr JOIN organisations o ON o.id = pr.owner_org_id WHERE pr.id = n.project_id) AS owner_contact,
+            (SELECT coalesce(json_agg(json_build_object('chainageM', d.chainage_m, 'coverM', d.cover_m) ORDER BY d.chainage_m), '[]'::json)
+               FROM depth_readings d
+              WHERE d.project_id = n.project_id AND d.route_id = r.id AND d.cover_m IS NOT NULL AND d.chainage_m BETWEEN n.from_chainage_m AND n.to_chainage_m) AS covers,
+            (SELECT coalesce(json_agg(json_build_object('kind', b.kind,
+                      'ducts', (SELECT coalesce(json_agg(row_to_json(dd) ORDER BY dd.position), '[]'::json) FROM duct_bundle_ducts dd WHERE dd.bundle_id = b.id))
+                    ORDER BY b.from_chainage_m, b.kind DESC), '[]'::json)
+               FROM duct_bundles b
+              WHERE b.project_id = n.project_id AND b.route_id = r.id AND b.from_chainage_m < n.to_chainage_m AND b.to_chainage_m > n.from_chainage_m) AS bundles,
+            (SELECT coalesce(array_agg(DISTINCT u.accuracy_class), '{}') FROM uploads u WHERE u.id = ANY(n.source_upload_ids)) AS classes,
+            (SELECT json_build_object('handoverId', h.id, 'revision', h.revision, 'status', h.status)
+               FROM handovers h
+              WHERE h.project_id = n.project_id AND h.status IN ('issued', 'accepted', 'returned')
+                AND h.snapshot->'sections' @> jsonb_build_array(jsonb_build_object('id', n.id::text))
+              ORDER BY h.revision DESC LIMIT 1) AS handover
+       FROM near n
+       LEFT JOIN planned_routes r ON r.project_id = n.project_id AND r.ref = n.planned_route_ref
+      ORDER BY n.distance_m, n.id`,
     [p[0], p[1], projectIds, radiusM],
   );
   return rows.map((r: Record<string, any>) => ({
-    id: r.id, projectId: r.project_id, routeRef: r.planned_route_ref, status: r.status, fromChainageM: r.from_chainage_m, toChainageM: r.to_chainage_m,
-    accuracyM: r.accuracy_m, laidOn: r.laid_on, review: r.review, sourceUploadIds: r.source_upload_ids ?? [], distanceM: Number(r.distance_m),
-    coords: r.geometry.coordinates, band: r.band ?? null,
+    ...nearbyRow(r),
+    route: r.route_id ? { id: r.route_id, street: r.street, coords: r.route_geometry.coordinates } : null,
+    ownerContact: r.owner_contact ?? '',
+    covers: r.covers,
+    bundles: r.bundles.map((b: { kind: 'planned' | 'installed'; ducts: DuctBundleDuctRow[] }) => ({ kind: b.kind, ducts: b.ducts.map(toDuct) })),
+    classes: r.classes ?? [],
+    handover: r.handover ?? null,
   }));
-}
-
-export interface LookupRoute {
-  id: string;
-  projectId: string;
-  ref: string;
-  street: string | null;
-  coords: LonLat[];
-}
-
-export async function routesByRef(db: Db, keys: { projectId: string; ref: string }[]): Promise<LookupRoute[]> {
-  if (keys.length === 0) return [];
-  const rows = await db('planned_routes')
-    .whereIn(['project_id', 'ref'], keys.map((k) => [k.projectId, k.ref]))
-    .select('id', 'project_id', 'ref', 'street', db.raw('ST_AsGeoJSON(geom, 9)::json as geometry'));
-  return rows.map((r) => ({ id: r.id, projectId: r.project_id, ref: r.ref, street: r.street, coords: r.geometry.coordinates }));
-}
-
-export interface DepthOnRoute {
-  routeId: string;
-  chainageM: number;
-  coverM: number;
-  measuredAt: string | null;
-}
-
-/** Cover readings on the routes (only those with a cover). */
-export async function coverReadings(db: Db, routes: { projectId: string; id: string }[]): Promise<DepthOnRoute[]> {
-  if (routes.length === 0) return [];
-  // by (project, route): the readings' index leads with the project
-  const rows = await db('depth_readings').whereIn(['project_id', 'route_id'], routes.map((r) => [r.projectId, r.id])).whereNotNull('cover_m').orderBy(['route_id', 'chainage_m']).select('route_id', 'chainage_m', 'cover_m', 'measured_at');
-  return rows.map((r) => ({ routeId: r.route_id, chainageM: r.chainage_m, coverM: r.cover_m, measuredAt: r.measured_at?.toISOString() ?? null }));
-}
-
-export async function uploadClasses(db: Db, ids: string[]): Promise<Map<string, { accuracyClass: AccuracyClass; sigmaM: number | null }>> {
-  if (ids.length === 0) return new Map();
-  const rows = await db('uploads').whereIn('id', ids).select('id', 'accuracy_class', 'sigma_m');
-  return new Map(rows.map((r) => [r.id, { accuracyClass: r.accuracy_class, sigmaM: r.sigma_m }]));
 }
 
 export interface NearbyPoint {
@@ -149,29 +160,4 @@ export async function crossingsOn(db: Db, projectIds: string[], p: LonLat, radiu
     [projectIds, p[0], p[1], boxDegrees(p, radiusM), p[0], p[1], radiusM],
   );
   return rows.map((r: Record<string, any>) => ({ id: r.id, projectId: r.project_id, routeRef: r.ref, built: r.built, coords: r.geometry.coordinates }));
-}
-
-/** The organisations' contacts (free text, empty when not set). */
-export async function ownerContacts(db: Db, orgIds: string[]): Promise<Map<string, string>> {
-  if (orgIds.length === 0) return new Map();
-  const rows = await db('organisations').whereIn('id', orgIds).select('id', 'contact');
-  return new Map(rows.map((r) => [r.id, r.contact]));
-}
-
-/**
- * For each section, the newest issued package (issued, accepted or returned) whose snapshot holds it: the
- * handover revision a crew can ask the owner for. A section re-derived since then has a new id and is not
- * in any package yet.
- */
-export async function handedOverIn(db: Db, projectIds: string[], sectionIds: string[]): Promise<Map<string, { handoverId: string; revision: number; status: string }>> {
-  if (projectIds.length === 0 || sectionIds.length === 0) return new Map();
-  const { rows } = await db.raw(
-    `SELECT DISTINCT ON (e->>'id') e->>'id' AS section_id, h.id, h.revision, h.status
-       FROM handovers h
-      CROSS JOIN LATERAL jsonb_array_elements(CASE WHEN jsonb_typeof(h.snapshot->'sections') = 'array' THEN h.snapshot->'sections' ELSE '[]'::jsonb END) e
-      WHERE h.project_id = ANY(?::uuid[]) AND h.status IN ('issued', 'accepted', 'returned') AND e->>'id' = ANY(?::text[])
-      ORDER BY e->>'id', h.revision DESC`,
-    [projectIds, sectionIds],
-  );
-  return new Map(rows.map((r: Record<string, any>) => [r.section_id, { handoverId: r.id, revision: r.revision, status: r.status }]));
 }

@@ -14,6 +14,7 @@
 //   --keep keeps the generated town (about a gigabyte); --reuse measures again on the kept one without generating
 import { execFileSync, spawn, type ChildProcess } from 'node:child_process';
 import { randomUUID } from 'node:crypto';
+import { readFileSync } from 'node:fs';
 import http from 'node:http';
 import path from 'node:path';
 
@@ -198,6 +199,20 @@ async function drive(port: number, headers: Record<string, string>, next: () => 
   return { latencies, seconds: (performance.now() - t0) / 1000, errors, lastBody };
 }
 
+/** CPU time (user + system, ms) of processes, from /proc/<pid>/stat (clock ticks of 10 ms on Linux). */
+function cpuMs(pids: number[]): number {
+  let ticks = 0;
+  for (const pid of pids) {
+    try {
+      const f = readFileSync(`/proc/${pid}/stat`, 'utf8');
+      const fields = f.slice(f.lastIndexOf(')') + 2).split(' ');
+      ticks += Number(fields[11]) + Number(fields[12]);
+    } catch { /* ended meanwhile */ }
+  }
+  return ticks * 10;
+}
+const postgresPids = () => execFileSync('pgrep', ['-u', 'postgres', 'postgres'], { encoding: 'utf8' }).trim().split('\n').map(Number);
+
 const pct = (xs: number[], p: number) => {
   const s = [...xs].sort((a, b) => a - b);
   return s[Math.min(s.length - 1, Math.ceil((p / 100) * s.length) - 1)];
@@ -266,8 +281,15 @@ async function main() {
     rows.push(['search, 1 client', await drive(API_PORT, auth, typed, 1, { requests: 1000 })]);
     rows.push(['nearby, 1 client', await drive(API_PORT, auth, nearby, 1, { requests: 1000 })]);
     rows.push(['bare nearby, 1 client', await drive(BARE_PORT, {}, bareNearby, 1, { requests: 1000 })]);
-    rows.push(['nearby, 16 clients (15 s)', await drive(API_PORT, auth, nearby, 16, { seconds: 15 })]);
-    rows.push(['bare nearby, 16 clients (15 s)', await drive(BARE_PORT, {}, bareNearby, 16, { seconds: 15 })]);
+    const cpu = async (name: string, pid: number, run: () => Promise<Run>) => {
+      const [app0, pg0] = [cpuMs([pid]), cpuMs(postgresPids())];
+      const r = await run();
+      const [app, pgm] = [cpuMs([pid]) - app0, cpuMs(postgresPids()) - pg0];
+      console.log(`${name}: CPU per request ${(app / r.latencies.length).toFixed(2)} ms in the server process, ${(pgm / r.latencies.length).toFixed(2)} ms in PostgreSQL`);
+      return r;
+    };
+    rows.push(['nearby, 16 clients (15 s)', await cpu('nearby through the API', children[0].pid!, () => drive(API_PORT, auth, nearby, 16, { seconds: 15 }))]);
+    rows.push(['bare nearby, 16 clients (15 s)', await cpu('bare nearby', children[1].pid!, () => drive(BARE_PORT, {}, bareNearby, 16, { seconds: 15 }))]);
     rows.push(['search, 16 clients (15 s)', await drive(API_PORT, auth, typed, 16, { seconds: 15 })]);
     for (const [name, r] of rows) console.log(line(name, r));
     const get = (name: string) => rows.find(([n]) => n.startsWith(name))![1];

@@ -1,8 +1,8 @@
 import { z } from 'zod';
 import type { Db } from '@/db/client';
 import { searchAddresses, type AddressCandidate } from '@/db/address-search';
-import { listDuctBundlesOnRoutes } from '@/db/duct-bundles';
-import { coverReadings, crossingsOn, handedOverIn, ownerContacts, nearbyPoints, nearbySections, routesByRef, uploadClasses, type NearbyPoint } from '@/db/lookup';
+import { crossingsOn, lookupStretches, nearbyPoints, type NearbyPoint } from '@/db/lookup';
+import { bundleSummary } from '@/lib/records/duct-spec';
 import { listProjectsForOrganisation, type Project } from '@/db/projects';
 import { ACCURACY_CLASS_LABELS, type AccuracyClass } from '@/lib/records/accuracy-classes';
 import { snapOnLine } from '@/lib/records/anchor';
@@ -97,18 +97,9 @@ export async function lookupNearby(db: Db, me: Principal, q: z.infer<typeof near
   const byId = new Map(projects.map((p) => [p.id, p]));
   const spot: LonLat = [q.lon, q.lat];
   const radiusM = q.radius ?? env().LOOKUP_RADIUS_M;
-  const sections = await nearbySections(db, ids, spot, radiusM);
-  // what the stretches need, read side by side (independent queries, each on a connection of the pool)
-  const routesAndRecords = (async () => {
-    const routes = await routesByRef(db, [...new Map(sections.filter((s) => s.routeRef).map((s) => [`${s.projectId}|${s.routeRef}`, { projectId: s.projectId, ref: s.routeRef! }])).values()]);
-    const [covers, bundles] = await Promise.all([coverReadings(db, routes), listDuctBundlesOnRoutes(db, routes)]);
-    return { routes, covers, bundles };
-  })();
-  const [{ routes, covers, bundles: allBundles }, contacts, classes, handovers, nearby, crossingRows, address] = await Promise.all([
-    routesAndRecords,
-    ownerContacts(db, [...new Set(projects.map((p) => p.ownerOrgId))]),
-    uploadClasses(db, [...new Set(sections.flatMap((s) => s.sourceUploadIds))]),
-    handedOverIn(db, [...new Set(sections.map((s) => s.projectId))], sections.map((s) => s.id)),
+  // the stretches with all they need in one statement; the points, crossings and the picked address beside it
+  const [sections, nearby, crossingRows, address] = await Promise.all([
+    lookupStretches(db, ids, spot, radiusM),
     nearbyPoints(db, ids, spot, radiusM),
     crossingsOn(db, ids, spot, radiusM),
     q.addressId
@@ -116,32 +107,26 @@ export async function lookupNearby(db: Db, me: Principal, q: z.infer<typeof near
       : Promise.resolve(undefined),
   ]);
   if (q.addressId && !address) throw new AppError('not_found', 'That address is not in a project your organisation may see.');
-  const route = (projectId: string, ref: string | null) => routes.find((r) => r.projectId === projectId && r.ref === ref);
-  let addressSide: RouteSide | null = null;
 
   const stretches: Stretch[] = [];
   for (const s of sections) {
-    const r = route(s.projectId, s.routeRef);
+    const r = s.route;
     const line = r?.coords ?? s.coords;
     const snap = snapOnLine(line, spot);
     const side = sideOf(snap.offsetM);
-    addressSide = address ? sideOf(snapOnLine(line, [address.lon, address.lat]).offsetM) : null;
-    const onStretch = r ? covers.filter((c) => c.routeId === r.id && c.chainageM >= s.fromChainageM && c.chainageM <= s.toChainageM) : [];
-    const nearest = [...onStretch].sort((a, b) => Math.abs(a.chainageM - snap.chainageM) - Math.abs(b.chainageM - snap.chainageM)).slice(0, 2);
-    // the bundles on this stretch, planned and installed, by chainage (as on the section's page)
-    const bundles = r ? allBundles.filter((b) => b.routeId === r.id && b.fromChainageM < s.toChainageM && b.toChainageM > s.fromChainageM) : [];
-    const installed = bundles.filter((b) => b.kind === 'installed');
-    const srcClasses = [...new Set(s.sourceUploadIds.map((u) => classes.get(u)?.accuracyClass).filter((c): c is AccuracyClass => c !== undefined))];
+    const addressSide: RouteSide | null = address ? sideOf(snapOnLine(line, [address.lon, address.lat]).offsetM) : null;
+    const nearest = [...s.covers].sort((a, b) => Math.abs(a.chainageM - snap.chainageM) - Math.abs(b.chainageM - snap.chainageM)).slice(0, 2);
+    const installed = s.bundles.filter((b) => b.kind === 'installed');
     const p = byId.get(s.projectId)!;
     stretches.push({
-      id: s.id, projectId: s.projectId, projectName: p.name, ownerOrganisation: p.ownerOrgName, ownerContact: contacts.get(p.ownerOrgId) ?? '', routeRef: s.routeRef, street: r?.street ?? null, status: s.status,
+      id: s.id, projectId: s.projectId, projectName: p.name, ownerOrganisation: p.ownerOrgName, ownerContact: s.ownerContact, routeRef: s.routeRef, street: r?.street ?? null, status: s.status,
       fromChainageM: s.fromChainageM, toChainageM: s.toChainageM, distanceM: round(s.distanceM, 2), radiusM: s.accuracyM === null ? null : round(s.accuracyM, 3),
-      radiusSource: srcClasses.length ? srcClasses.map((c) => ACCURACY_CLASS_LABELS[c]).join(', ') : 'unknown',
+      radiusSource: s.classes.length ? sortClasses(s.classes).map((c) => ACCURACY_CLASS_LABELS[c]).join(', ') : 'unknown',
       couldBeThisCloseM: round(couldBeThisClose(s.distanceM, s.accuracyM), 2), side: r ? side : null, sideOfAddress: r ? relativeSide(side, addressSide) : null,
       chainageM: r ? round(snap.chainageM, 1) : null,
-      cover: { nearest: nearest.map((c) => ({ chainageM: c.chainageM, coverM: c.coverM })), shallowestM: onStretch.length ? Math.min(...onStretch.map((c) => c.coverM)) : null },
-      ducts: (installed.length ? installed : bundles).map((b) => ({ summary: b.summary, kind: b.kind, ducts: b.ducts.map((d) => ({ position: d.position, colour: d.colourLabel, colourHex: d.colourHex, outerMm: d.outerMm, innerMm: d.innerMm })) })),
-      laidOn: s.laidOn, review: s.review, handoverRevision: handovers.get(s.id) ?? null, coords: s.coords, band: s.band,
+      cover: { nearest, shallowestM: s.covers.length ? Math.min(...s.covers.map((c) => c.coverM)) : null },
+      ducts: (installed.length ? installed : s.bundles).map((b) => ({ summary: bundleSummary(b.ducts), kind: b.kind, ducts: b.ducts.map((d) => ({ position: d.position, colour: d.colourLabel, colourHex: d.colourHex, outerMm: d.outerMm, innerMm: d.innerMm })) })),
+      laidOn: s.laidOn, review: s.review, handoverRevision: s.handover, coords: s.coords, band: s.band,
     });
   }
   const sorted = sortStretches(stretches, q.order);
@@ -150,6 +135,9 @@ export async function lookupNearby(db: Db, me: Principal, q: z.infer<typeof near
 }
 
 const round = (x: number, d: number) => Math.round(x * 10 ** d) / 10 ** d;
+/** Classes in the catalogue's order (the best surveyed first), whatever order the database gave them in. */
+const CLASS_ORDER = Object.keys(ACCURACY_CLASS_LABELS) as AccuracyClass[];
+const sortClasses = (cs: AccuracyClass[]) => [...cs].sort((a, b) => CLASS_ORDER.indexOf(a) - CLASS_ORDER.indexOf(b));
 
 /** The stretches as GeoJSON: each a LineString feature with the fields as properties (id = section id). */
 export function nearbyGeoJson(r: NearbyResult): GeoJSON.FeatureCollection {
