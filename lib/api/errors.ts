@@ -6,7 +6,7 @@
 export const ERROR_CODES = {
   bad_json: { status: 400, summary: 'The request body is not valid JSON.' },
   bad_request: { status: 400, summary: 'The request is malformed.' },
-  bad_parameter: { status: 400, summary: 'A query parameter has a value the route does not take; the message names it and lists the values it does.' },
+  bad_parameter: { status: 400, summary: 'A query or path parameter has a value the route does not take; the message names it and lists the values it does.' },
   unauthenticated: { status: 401, summary: 'Not signed in, or the API token is missing, malformed, revoked or expired.' },
   forbidden: { status: 403, summary: 'Signed in, but the role does not allow this.' },
   not_found: { status: 404, summary: 'The object does not exist or is not visible to your organisation.' },

@@ -331,6 +331,13 @@ const MATRIX: Record<string, Row | PublicRow> = {
     allowed: 'owner',
     success: 200,
   },
+  'GET /api/projects/[projectId]/tiles/[layer]/[z]/[x]/[y]': {
+    url: (c) => `/api/projects/${c.projectId}/tiles/all/0/0/0.mvt`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/tiles/all/0/0/0.mvt`,
+    denied: ALL_ROLES,
+    allowed: 'owner',
+    success: 200,
+  },
   'POST /api/sections/[sectionId]/review': {
     // resolved when the test runs: a later plan revision in this file may retire the sections seen at the start
     url: () => '/api/sections/CURRENT/review',
