@@ -130,34 +130,35 @@ export interface NearbyPoint {
  */
 export const boxDegrees = (p: LonLat, radiusM: number) => Math.min(180, (radiusM / (110_574 * Math.max(Math.cos((p[1] * Math.PI) / 180), 0.01))) * 1.01);
 
-/** Utility crossings and test pits of the projects within the radius, nearest first (geodesic). */
-export async function nearbyPoints(db: Db, projectIds: string[], p: LonLat, radiusM: number): Promise<NearbyPoint[]> {
-  if (projectIds.length === 0) return [];
+/**
+ * Utility crossings and test pits of the projects within the radius, nearest first (geodesic), and the road
+ * crossing records whose route passes within it: one statement.
+ */
+export async function nearbyPointsAndCrossings(db: Db, projectIds: string[], p: LonLat, radiusM: number): Promise<{ points: NearbyPoint[]; crossings: { id: string; projectId: string; routeRef: string; built: boolean; coords: LonLat[] }[] }> {
+  if (projectIds.length === 0) return { points: [], crossings: [] };
+  const box = boxDegrees(p, radiusM);
   const { rows } = await db.raw(
-    `WITH spot AS (SELECT ST_SetSRID(ST_MakePoint(?, ?), 4326)::geography AS g)
-     SELECT 'utility' AS kind, u.id, u.project_id, ST_X(u.geom) AS lon, ST_Y(u.geom) AS lat, ST_Distance(u.geom::geography, spot.g) AS distance_m,
-            k.label, u.depth_m, u.clearance_m, u.owner
+    `WITH spot AS (SELECT ST_SetSRID(ST_MakePoint(?, ?), 4326) AS g)
+     SELECT 'utility' AS kind, u.id, u.project_id, ST_X(u.geom) AS lon, ST_Y(u.geom) AS lat, ST_Distance(u.geom::geography, spot.g::geography) AS distance_m,
+            k.label, u.depth_m, u.clearance_m, u.owner, NULL::text AS route_ref, NULL::boolean AS built, NULL::json AS geometry
        FROM utility_crossings u JOIN utility_kinds k ON k.id = u.utility_kind_id, spot
-      WHERE u.project_id = ANY(?::uuid[]) AND u.geom && ST_Expand(spot.g::geometry, ?) AND ST_DWithin(u.geom::geography, spot.g, ?)
+      WHERE u.project_id = ANY(?::uuid[]) AND u.geom && ST_Expand(spot.g, ?) AND ST_DWithin(u.geom::geography, spot.g::geography, ?)
      UNION ALL
-     SELECT 'pit', t.id, t.project_id, ST_X(t.geom), ST_Y(t.geom), ST_Distance(t.geom::geography, spot.g), 'Test pit ' || t.name, t.depth_m, NULL, ''
+     SELECT 'pit', t.id, t.project_id, ST_X(t.geom), ST_Y(t.geom), ST_Distance(t.geom::geography, spot.g::geography), 'Test pit ' || t.name, t.depth_m, NULL, '', NULL, NULL, NULL
        FROM test_pits t, spot
-      WHERE t.project_id = ANY(?::uuid[]) AND t.geom && ST_Expand(spot.g::geometry, ?) AND ST_DWithin(t.geom::geography, spot.g, ?)
-      ORDER BY distance_m`,
-    [p[0], p[1], projectIds, boxDegrees(p, radiusM), radiusM, projectIds, boxDegrees(p, radiusM), radiusM],
+      WHERE t.project_id = ANY(?::uuid[]) AND t.geom && ST_Expand(spot.g, ?) AND ST_DWithin(t.geom::geography, spot.g::geography, ?)
+     UNION ALL
+     SELECT 'crossing', c.id, c.project_id, NULL, NULL, ST_Distance(r.geom::geography, spot.g::geography), NULL, NULL, NULL, '', r.ref, c.built, ST_AsGeoJSON(r.geom, 9)::json
+       FROM road_crossings c JOIN planned_routes r ON r.id = c.route_id, spot
+      WHERE c.project_id = ANY(?::uuid[]) AND r.geom && ST_Expand(spot.g, ?) AND ST_DWithin(r.geom::geography, spot.g::geography, ?)
+      ORDER BY distance_m, id`,
+    [p[0], p[1], projectIds, box, radiusM, projectIds, box, radiusM, projectIds, box, radiusM],
   );
-  return rows.map((r: Record<string, any>) => ({ kind: r.kind, id: r.id, projectId: r.project_id, lon: r.lon, lat: r.lat, distanceM: Number(r.distance_m), label: r.label, depthM: r.depth_m, clearanceM: r.clearance_m, owner: r.owner }));
-}
-
-/** Road crossing records of the routes, for the map and the list. */
-export async function crossingsOn(db: Db, projectIds: string[], p: LonLat, radiusM: number): Promise<{ id: string; projectId: string; routeRef: string; built: boolean; coords: LonLat[] }[]> {
-  if (projectIds.length === 0) return [];
-  const { rows } = await db.raw(
-    `SELECT c.id, c.project_id, r.ref, c.built, ST_AsGeoJSON(r.geom, 9)::json AS geometry
-       FROM road_crossings c JOIN planned_routes r ON r.id = c.route_id
-      WHERE c.project_id = ANY(?::uuid[]) AND r.geom && ST_Expand(ST_SetSRID(ST_MakePoint(?, ?), 4326), ?)
-        AND ST_DWithin(r.geom::geography, ST_SetSRID(ST_MakePoint(?, ?), 4326)::geography, ?)`,
-    [projectIds, p[0], p[1], boxDegrees(p, radiusM), p[0], p[1], radiusM],
-  );
-  return rows.map((r: Record<string, any>) => ({ id: r.id, projectId: r.project_id, routeRef: r.ref, built: r.built, coords: r.geometry.coordinates }));
+  const points: NearbyPoint[] = [];
+  const crossings: { id: string; projectId: string; routeRef: string; built: boolean; coords: LonLat[] }[] = [];
+  for (const r of rows as Record<string, any>[]) {
+    if (r.kind === 'crossing') crossings.push({ id: r.id, projectId: r.project_id, routeRef: r.route_ref, built: r.built, coords: r.geometry.coordinates });
+    else points.push({ kind: r.kind, id: r.id, projectId: r.project_id, lon: r.lon, lat: r.lat, distanceM: Number(r.distance_m), label: r.label, depthM: r.depth_m, clearanceM: r.clearance_m, owner: r.owner });
+  }
+  return { points, crossings };
 }

@@ -140,6 +140,16 @@ export async function listProjectsForOrganisation(db: Db, organisationId: string
   return (rows as JoinedRow[]).map(toDto);
 }
 
+/** The projects an organisation owns or builds, with only their names: the lookup's list on every request. */
+export async function listVisibleProjectNames(db: Db, organisationId: string): Promise<{ id: string; name: string; ownerOrgName: string }[]> {
+  const rows = await db('projects as p')
+    .join('organisations as o', 'o.id', 'p.owner_org_id')
+    .where((q) => q.where('p.owner_org_id', organisationId).orWhere('p.contractor_org_id', organisationId))
+    .orderBy('p.created_at', 'desc')
+    .select('p.id', 'p.name', 'o.name as owner_org_name');
+  return rows.map((r: { id: string; name: string; owner_org_name: string }) => ({ id: r.id, name: r.name, ownerOrgName: r.owner_org_name }));
+}
+
 function toColumns(db: Db, v: Partial<ProjectValues>): Record<string, unknown> {
   const c: Record<string, unknown> = {};
   if (v.name !== undefined) c.name = v.name.trim();

@@ -291,6 +291,8 @@ async function main() {
     rows.push(['nearby, 16 clients (15 s)', await cpu('nearby through the API', children[0].pid!, () => drive(API_PORT, auth, nearby, 16, { seconds: 15 }))]);
     rows.push(['bare nearby, 16 clients (15 s)', await cpu('bare nearby', children[1].pid!, () => drive(BARE_PORT, {}, bareNearby, 16, { seconds: 15 }))]);
     rows.push(['search, 16 clients (15 s)', await drive(API_PORT, auth, typed, 16, { seconds: 15 })]);
+    // the framework's floor: the health route (no sign-in, one `select 1`) through the same server
+    rows.push(['health route, 16 clients (5 s)', await cpu('health route (the floor)', children[0].pid!, () => drive(API_PORT, {}, () => '/api/health', 16, { seconds: 5 }))]);
     for (const [name, r] of rows) console.log(line(name, r));
     const get = (name: string) => rows.find(([n]) => n.startsWith(name))![1];
     const share = get('nearby, 16').latencies.length / get('nearby, 16').seconds / (get('bare nearby, 16').latencies.length / get('bare nearby, 16').seconds);

@@ -1,9 +1,9 @@
 import { z } from 'zod';
 import type { Db } from '@/db/client';
 import { searchAddresses, type AddressCandidate } from '@/db/address-search';
-import { crossingsOn, lookupStretches, nearbyPoints, type NearbyPoint } from '@/db/lookup';
+import { lookupStretches, nearbyPointsAndCrossings, type NearbyPoint } from '@/db/lookup';
 import { bundleSummary } from '@/lib/records/duct-spec';
-import { listProjectsForOrganisation, type Project } from '@/db/projects';
+import { listVisibleProjectNames } from '@/db/projects';
 import { ACCURACY_CLASS_LABELS, type AccuracyClass } from '@/lib/records/accuracy-classes';
 import { snapOnLine } from '@/lib/records/anchor';
 import { couldBeThisClose, LOOKUP_MAX_RADIUS_M, relativeSide, sideOf, sortStretches, type RouteSide } from '@/lib/lookup/stretches';
@@ -40,8 +40,8 @@ export const nearbyQuery = z.object({
 });
 
 /** The projects the person's organisation may see: the owner all its own, a contractor those it builds. */
-export async function visibleProjects(db: Db, me: Principal): Promise<Project[]> {
-  return listProjectsForOrganisation(db, me.organisationId);
+export async function visibleProjects(db: Db, me: Principal): Promise<{ id: string; name: string; ownerOrgName: string }[]> {
+  return listVisibleProjectNames(db, me.organisationId);
 }
 
 export async function lookupAddresses(db: Db, me: Principal, q: z.infer<typeof addressSearchQuery>): Promise<(AddressCandidate & { projectName: string })[]> {
@@ -98,10 +98,9 @@ export async function lookupNearby(db: Db, me: Principal, q: z.infer<typeof near
   const spot: LonLat = [q.lon, q.lat];
   const radiusM = q.radius ?? env().LOOKUP_RADIUS_M;
   // the stretches with all they need in one statement; the points, crossings and the picked address beside it
-  const [sections, nearby, crossingRows, address] = await Promise.all([
+  const [sections, { points: nearby, crossings: crossingRows }, address] = await Promise.all([
     lookupStretches(db, ids, spot, radiusM),
-    nearbyPoints(db, ids, spot, radiusM),
-    crossingsOn(db, ids, spot, radiusM),
+    nearbyPointsAndCrossings(db, ids, spot, radiusM),
     q.addressId
       ? db('addresses').where({ id: q.addressId }).whereIn('project_id', ids).first<{ project_id: string; lon: number; lat: number } | undefined>('project_id', db.raw('ST_X(geom) as lon, ST_Y(geom) as lat'))
       : Promise.resolve(undefined),
