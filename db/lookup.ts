@@ -1,3 +1,4 @@
+import type { Knex } from 'knex';
 import type { Db } from './client';
 import type { LonLat } from '@/lib/matching/types';
 import type { AccuracyClass } from '@/lib/records/accuracy-classes';
@@ -54,7 +55,8 @@ const nearbyRow = (r: Record<string, any>): NearbySectionRow => ({
   coords: r.geometry.coordinates, band: r.band ?? null,
 });
 
-/** A nearby section with everything the lookup says about it, read in one statement. */
+
+/** A nearby section with everything the lookup says about it, read in two statements. */
 export interface LookupStretchRow extends NearbySectionRow {
   route: { id: string; street: string | null; coords: LonLat[] } | null;
   ownerContact: string;
@@ -69,44 +71,64 @@ export interface LookupStretchRow extends NearbySectionRow {
 }
 
 /**
- * The nearby sections (NEARBY_SECTIONS_SQL) with their route, owner's contact, cover readings, duct bundles,
- * source classes and handover revision: one statement, each part a correlated subquery on its index, so that
- * a lookup costs one round trip rather than one per part and stretch.
+ * What the lookup says about each section beyond its line, by section id: route, owner's contact, cover
+ * readings on the stretch, bundles with their ducts, source classes and handover revision, each a correlated
+ * subquery on its index. `$1` is the section ids. It runs as a NAMED prepared statement (`namedQuery`), the
+ * one exception to the rule that queries go unnamed: bench:lookup showed planning at most of its cost, and
+ * its generic plan can only be primary-key and index lookups (a test EXPLAINs it). The nearby query itself
+ * stays unnamed: its generic plan dropped the KNN walk on a small table. Pattern and trigram queries must
+ * never be named either.
  */
-export async function lookupStretches(db: Db, projectIds: string[], p: LonLat, radiusM: number): Promise<LookupStretchRow[]> {
-  if (projectIds.length === 0) return [];
-  const { rows } = await db.raw(
-    `WITH near AS (${NEARBY_SECTIONS_SQL})
-     SELECT n.*, r.id AS route_id, r.street, ST_AsGeoJSON(r.geom, 9)::json AS route_geometry,
-            (SELECT o.contact FROM projects pr JOIN organisations o ON o.id = pr.owner_org_id WHERE pr.id = n.project_id) AS owner_contact,
+export const SECTION_DETAILS_SQL = `SELECT s.id, r.id AS route_id, r.street, ST_AsGeoJSON(r.geom, 9)::json AS route_geometry,
+            (SELECT o.contact FROM projects pr JOIN organisations o ON o.id = pr.owner_org_id WHERE pr.id = s.project_id) AS owner_contact,
             (SELECT coalesce(json_agg(json_build_object('chainageM', d.chainage_m, 'coverM', d.cover_m) ORDER BY d.chainage_m), '[]'::json)
                FROM depth_readings d
-              WHERE d.project_id = n.project_id AND d.route_id = r.id AND d.cover_m IS NOT NULL AND d.chainage_m BETWEEN n.from_chainage_m AND n.to_chainage_m) AS covers,
+              WHERE d.project_id = s.project_id AND d.route_id = r.id AND d.cover_m IS NOT NULL AND d.chainage_m BETWEEN s.from_chainage_m AND s.to_chainage_m) AS covers,
             (SELECT coalesce(json_agg(json_build_object('kind', b.kind,
                       'ducts', (SELECT coalesce(json_agg(row_to_json(dd) ORDER BY dd.position), '[]'::json) FROM duct_bundle_ducts dd WHERE dd.bundle_id = b.id))
                     ORDER BY b.from_chainage_m, b.kind DESC), '[]'::json)
                FROM duct_bundles b
-              WHERE b.project_id = n.project_id AND b.route_id = r.id AND b.from_chainage_m < n.to_chainage_m AND b.to_chainage_m > n.from_chainage_m) AS bundles,
-            (SELECT coalesce(array_agg(DISTINCT u.accuracy_class), '{}') FROM uploads u WHERE u.id = ANY(n.source_upload_ids)) AS classes,
+              WHERE b.project_id = s.project_id AND b.route_id = r.id AND b.from_chainage_m < s.to_chainage_m AND b.to_chainage_m > s.from_chainage_m) AS bundles,
+            (SELECT coalesce(array_agg(DISTINCT u.accuracy_class), '{}') FROM uploads u WHERE u.id = ANY(s.source_upload_ids)) AS classes,
             (SELECT json_build_object('handoverId', h.id, 'revision', h.revision, 'status', h.status)
                FROM handovers h
-              WHERE h.project_id = n.project_id AND h.status IN ('issued', 'accepted', 'returned')
-                AND h.snapshot->'sections' @> jsonb_build_array(jsonb_build_object('id', n.id::text))
+              WHERE h.project_id = s.project_id AND h.status IN ('issued', 'accepted', 'returned')
+                AND h.snapshot->'sections' @> jsonb_build_array(jsonb_build_object('id', s.id::text))
               ORDER BY h.revision DESC LIMIT 1) AS handover
-       FROM near n
-       LEFT JOIN planned_routes r ON r.project_id = n.project_id AND r.ref = n.planned_route_ref
-      ORDER BY n.distance_m, n.id`,
-    [p[0], p[1], projectIds, radiusM],
-  );
-  return rows.map((r: Record<string, any>) => ({
-    ...nearbyRow(r),
-    route: r.route_id ? { id: r.route_id, street: r.street, coords: r.route_geometry.coordinates } : null,
-    ownerContact: r.owner_contact ?? '',
-    covers: r.covers,
-    bundles: r.bundles.map((b: { kind: 'planned' | 'installed'; ducts: DuctBundleDuctRow[] }) => ({ kind: b.kind, ducts: b.ducts.map(toDuct) })),
-    classes: r.classes ?? [],
-    handover: r.handover ?? null,
-  }));
+       FROM sections s
+       LEFT JOIN planned_routes r ON r.project_id = s.project_id AND r.ref = s.planned_route_ref
+      WHERE s.id = ANY($1::uuid[])`;
+
+/** A named prepared statement on a connection of knex's pool: PostgreSQL plans it once per connection. */
+async function namedQuery(db: Db, name: string, text: string, values: unknown[]): Promise<{ rows: Record<string, any>[] }> {
+  const client = (db as Knex).client;
+  const conn = await client.acquireConnection();
+  try {
+    return await conn.query({ name, text, values });
+  } finally {
+    await client.releaseConnection(conn);
+  }
+}
+
+/** The nearby sections (NEARBY_SECTIONS_SQL, unnamed) with what the lookup says about each (SECTION_DETAILS_SQL). */
+export async function lookupStretches(db: Db, projectIds: string[], p: LonLat, radiusM: number): Promise<LookupStretchRow[]> {
+  if (projectIds.length === 0) return [];
+  const { rows: near } = await db.raw(NEARBY_SECTIONS_SQL, [p[0], p[1], projectIds, radiusM]);
+  if (near.length === 0) return [];
+  const { rows } = await namedQuery(db, 'lookup_section_details', SECTION_DETAILS_SQL, [near.map((n: { id: string }) => n.id)]);
+  const details = new Map(rows.map((r) => [r.id as string, r]));
+  return near.map((n: Record<string, any>) => {
+    const r = details.get(n.id)!;
+    return {
+      ...nearbyRow(n),
+      route: r.route_id ? { id: r.route_id, street: r.street, coords: r.route_geometry.coordinates } : null,
+      ownerContact: r.owner_contact ?? '',
+      covers: r.covers,
+      bundles: r.bundles.map((b: { kind: 'planned' | 'installed'; ducts: DuctBundleDuctRow[] }) => ({ kind: b.kind, ducts: b.ducts.map(toDuct) })),
+      classes: r.classes ?? [],
+      handover: r.handover ?? null,
+    };
+  });
 }
 
 export interface NearbyPoint {

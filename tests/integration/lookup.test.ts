@@ -6,6 +6,7 @@ import { closeDb, getDb } from '@/db/client';
 import { searchAddresses } from '@/db/address-search';
 import { normaliseStreet, parseHouseNumber } from '@/lib/households/normalise';
 import { lookupAddresses, lookupNearby, nearbyQuery } from '@/lib/services/lookup';
+import { SECTION_DETAILS_SQL } from '@/db/lookup';
 import { createToken } from '@/lib/services/tokens';
 import { GET as nearbyRoute } from '@/app/api/lookup/nearby/route';
 import { GET as addressesRoute } from '@/app/api/lookup/addresses/route';
@@ -235,6 +236,24 @@ describe('nearby stretches', () => {
       await db('test_pits').where({ project_id: plan.project.id }).delete();
       await db('road_crossings').where({ project_id: plan.project.id }).delete();
     }
+  });
+  it("the named details statement's generic plan finds the sections by primary key and their records by index (EXPLAIN)", async () => {
+    // SECTION_DETAILS_SQL runs prepared and named (db/lookup.ts): its cached, generic plan must stay on indexes
+    const ids = (await lookupNearby(db, plan.maintenance, q(50, 7))).stretches.map((st) => st.id);
+    await db.transaction(async (trx) => {
+      await trx.raw('SET LOCAL plan_cache_mode = force_generic_plan');
+      await trx.raw('SET LOCAL enable_seqscan = off'); // test tables are small enough for a scan to win anyway
+      await trx.raw(`PREPARE details_plan_test AS ${SECTION_DETAILS_SQL}`);
+      const { rows } = await trx.raw(`EXPLAIN EXECUTE details_plan_test('{${ids.join(',')}}')`);
+      await trx.raw('DEALLOCATE details_plan_test');
+      const text = rows.map((r: Record<string, string>) => r['QUERY PLAN']).join('\n');
+      expect(text).toMatch(/Index Scan on sections_pkey|Index Scan using sections_pkey on sections s/);
+      expect(text).not.toMatch(/Seq Scan/);
+      expect(text).toMatch(/Index Scan using planned_routes_project_ref_unique on planned_routes r/);
+      expect(text).toMatch(/depth_readings_project_route_chainage_idx/);
+    });
+    // and the lookup through it answers as before, again and again on the pool's connections (cached plans)
+    for (let i = 0; i < 12; i++) expect((await lookupNearby(db, plan.maintenance, q(50, 7))).stretches[0].ducts[0].ducts.map((d) => d.colour)).toEqual(['blue', 'orange']);
   });
   it('sorts by "could be this close" too: the walked crossing, 9.79 m uncertain, could be nearer than the surveyed street', async () => {
     const r = await lookupNearby(db, plan.maintenance, q(45, 9, { order: 'could_be' }));
