@@ -1,5 +1,6 @@
 import type { Db } from './client';
 import type { ApiTokenRow, UserRow } from './tables';
+import type { OrgKind } from '@/lib/auth/roles';
 
 export interface ApiToken {
   id: string;
@@ -39,20 +40,24 @@ export async function getApiToken(db: Db, id: string): Promise<(ApiToken & { use
   return row && { ...toDto(row), userId: row.user_id };
 }
 
-/** The live token's owner, or undefined when the hash is unknown or the token revoked. */
-export async function findUserByTokenHash(db: Db, tokenHash: string): Promise<UserRow | undefined> {
+/**
+ * The live token's owner with the name and kind of its organisation (so the principal needs no second query),
+ * or undefined when the hash is unknown or the token revoked.
+ */
+export async function findUserByTokenHash(db: Db, tokenHash: string): Promise<(UserRow & { org_name: string; org_kind: OrgKind }) | undefined> {
   const row = await db('api_tokens as t')
     .join('users as u', 'u.id', 't.user_id')
+    .join('organisations as o', 'o.id', 'u.organisation_id')
     .where('t.token_hash', tokenHash)
     .whereNull('t.revoked_at')
-    .select('u.*', 't.id as token_id', db.raw('(t.last_used_at IS NULL OR t.last_used_at < now() - interval \'1 minute\') AS token_stale'))
+    .select('u.*', 'o.name as org_name', 'o.kind as org_kind', 't.id as token_id', db.raw('(t.last_used_at IS NULL OR t.last_used_at < now() - interval \'1 minute\') AS token_stale'))
     .first();
   if (!row) return undefined;
   // "last used" to the minute: a token that calls many times a minute is not written (and synced) each time
   if (row.token_stale) await db('api_tokens').where({ id: row.token_id }).update({ last_used_at: db.fn.now() });
   delete row.token_id;
   delete row.token_stale;
-  return row as UserRow;
+  return row as UserRow & { org_name: string; org_kind: OrgKind };
 }
 
 export async function revokeApiToken(db: Db, id: string): Promise<void> {

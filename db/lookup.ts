@@ -153,29 +153,35 @@ export interface NearbyPoint {
 export const boxDegrees = (p: LonLat, radiusM: number) => Math.min(180, (radiusM / (110_574 * Math.max(Math.cos((p[1] * Math.PI) / 180), 0.01))) * 1.01);
 
 /**
- * Utility crossings and test pits of the projects within the radius, nearest first (geodesic), and the road
- * crossing records whose route passes within it: one statement.
+ * Utility crossings and test pits within the radius, and the road crossing records whose route passes within
+ * it: one statement, each part found through its GIST index by a box (`boxDegrees`) before the geodesic test.
+ * `$1` lon, `$2` lat, `$3` project ids, `$4` the box's half side in degrees, `$5` the radius in metres. Named
+ * and prepared like SECTION_DETAILS_SQL: its planning (1.4 ms) was four times its execution; its generic plan
+ * keeps the box on the indexes (a test EXPLAINs it).
  */
+export const POINTS_AND_CROSSINGS_SQL = `SELECT 'utility' AS kind, u.id, u.project_id, ST_X(u.geom) AS lon, ST_Y(u.geom) AS lat,
+            ST_Distance(u.geom::geography, ST_SetSRID(ST_MakePoint($1, $2), 4326)::geography) AS distance_m,
+            k.label, u.depth_m, u.clearance_m, u.owner, NULL::text AS route_ref, NULL::boolean AS built, NULL::json AS geometry
+       FROM utility_crossings u JOIN utility_kinds k ON k.id = u.utility_kind_id
+      WHERE u.project_id = ANY($3::uuid[]) AND u.geom && ST_Expand(ST_SetSRID(ST_MakePoint($1, $2), 4326), $4)
+        AND ST_DWithin(u.geom::geography, ST_SetSRID(ST_MakePoint($1, $2), 4326)::geography, $5)
+     UNION ALL
+     SELECT 'pit', t.id, t.project_id, ST_X(t.geom), ST_Y(t.geom), ST_Distance(t.geom::geography, ST_SetSRID(ST_MakePoint($1, $2), 4326)::geography),
+            'Test pit ' || t.name, t.depth_m, NULL, '', NULL, NULL, NULL
+       FROM test_pits t
+      WHERE t.project_id = ANY($3::uuid[]) AND t.geom && ST_Expand(ST_SetSRID(ST_MakePoint($1, $2), 4326), $4)
+        AND ST_DWithin(t.geom::geography, ST_SetSRID(ST_MakePoint($1, $2), 4326)::geography, $5)
+     UNION ALL
+     SELECT 'crossing', c.id, c.project_id, NULL, NULL, ST_Distance(r.geom::geography, ST_SetSRID(ST_MakePoint($1, $2), 4326)::geography),
+            NULL, NULL, NULL, '', r.ref, c.built, ST_AsGeoJSON(r.geom, 9)::json
+       FROM road_crossings c JOIN planned_routes r ON r.id = c.route_id
+      WHERE c.project_id = ANY($3::uuid[]) AND r.geom && ST_Expand(ST_SetSRID(ST_MakePoint($1, $2), 4326), $4)
+        AND ST_DWithin(r.geom::geography, ST_SetSRID(ST_MakePoint($1, $2), 4326)::geography, $5)
+      ORDER BY distance_m, id`;
+
 export async function nearbyPointsAndCrossings(db: Db, projectIds: string[], p: LonLat, radiusM: number): Promise<{ points: NearbyPoint[]; crossings: { id: string; projectId: string; routeRef: string; built: boolean; coords: LonLat[] }[] }> {
   if (projectIds.length === 0) return { points: [], crossings: [] };
-  const box = boxDegrees(p, radiusM);
-  const { rows } = await db.raw(
-    `WITH spot AS (SELECT ST_SetSRID(ST_MakePoint(?, ?), 4326) AS g)
-     SELECT 'utility' AS kind, u.id, u.project_id, ST_X(u.geom) AS lon, ST_Y(u.geom) AS lat, ST_Distance(u.geom::geography, spot.g::geography) AS distance_m,
-            k.label, u.depth_m, u.clearance_m, u.owner, NULL::text AS route_ref, NULL::boolean AS built, NULL::json AS geometry
-       FROM utility_crossings u JOIN utility_kinds k ON k.id = u.utility_kind_id, spot
-      WHERE u.project_id = ANY(?::uuid[]) AND u.geom && ST_Expand(spot.g, ?) AND ST_DWithin(u.geom::geography, spot.g::geography, ?)
-     UNION ALL
-     SELECT 'pit', t.id, t.project_id, ST_X(t.geom), ST_Y(t.geom), ST_Distance(t.geom::geography, spot.g::geography), 'Test pit ' || t.name, t.depth_m, NULL, '', NULL, NULL, NULL
-       FROM test_pits t, spot
-      WHERE t.project_id = ANY(?::uuid[]) AND t.geom && ST_Expand(spot.g, ?) AND ST_DWithin(t.geom::geography, spot.g::geography, ?)
-     UNION ALL
-     SELECT 'crossing', c.id, c.project_id, NULL, NULL, ST_Distance(r.geom::geography, spot.g::geography), NULL, NULL, NULL, '', r.ref, c.built, ST_AsGeoJSON(r.geom, 9)::json
-       FROM road_crossings c JOIN planned_routes r ON r.id = c.route_id, spot
-      WHERE c.project_id = ANY(?::uuid[]) AND r.geom && ST_Expand(spot.g, ?) AND ST_DWithin(r.geom::geography, spot.g::geography, ?)
-      ORDER BY distance_m, id`,
-    [p[0], p[1], projectIds, box, radiusM, projectIds, box, radiusM, projectIds, box, radiusM],
-  );
+  const { rows } = await namedQuery(db, 'lookup_points_crossings', POINTS_AND_CROSSINGS_SQL, [p[0], p[1], projectIds, boxDegrees(p, radiusM), radiusM]);
   const points: NearbyPoint[] = [];
   const crossings: { id: string; projectId: string; routeRef: string; built: boolean; coords: LonLat[] }[] = [];
   for (const r of rows as Record<string, any>[]) {

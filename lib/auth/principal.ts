@@ -17,9 +17,10 @@ export interface Principal {
   unitSystem: 'metric' | 'imperial' | null;
 }
 
-export async function principalFromRow(db: Db, row: UserRow | undefined): Promise<Principal | undefined> {
+export async function principalFromRow(db: Db, row: (UserRow & { org_name?: string; org_kind?: OrgKind }) | undefined): Promise<Principal | undefined> {
   if (!row || !row.active) return undefined;
-  const org = await getOrganisation(db, row.organisation_id);
+  // a row read with its organisation (the API token's lookup joins it) needs no second query
+  const org = row.org_name !== undefined && row.org_kind !== undefined ? { id: row.organisation_id, name: row.org_name, kind: row.org_kind } : await getOrganisation(db, row.organisation_id);
   if (!org) return undefined;
   return {
     id: row.id,

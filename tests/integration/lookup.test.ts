@@ -6,7 +6,7 @@ import { closeDb, getDb } from '@/db/client';
 import { searchAddresses } from '@/db/address-search';
 import { normaliseStreet, parseHouseNumber } from '@/lib/households/normalise';
 import { lookupAddresses, lookupNearby, nearbyQuery } from '@/lib/services/lookup';
-import { SECTION_DETAILS_SQL } from '@/db/lookup';
+import { POINTS_AND_CROSSINGS_SQL, SECTION_DETAILS_SQL } from '@/db/lookup';
 import { createToken } from '@/lib/services/tokens';
 import { GET as nearbyRoute } from '@/app/api/lookup/nearby/route';
 import { GET as addressesRoute } from '@/app/api/lookup/addresses/route';
@@ -251,6 +251,17 @@ describe('nearby stretches', () => {
       expect(text).not.toMatch(/Seq Scan/);
       expect(text).toMatch(/Index Scan using planned_routes_project_ref_unique on planned_routes r/);
       expect(text).toMatch(/depth_readings_project_route_chainage_idx/);
+    });
+    // POINTS_AND_CROSSINGS_SQL, named too: the generic plan finds each part through its GIST index by the box
+    await db.transaction(async (trx) => {
+      await trx.raw('SET LOCAL plan_cache_mode = force_generic_plan');
+      await trx.raw('SET LOCAL enable_seqscan = off');
+      await trx.raw(`PREPARE points_plan_test AS ${POINTS_AND_CROSSINGS_SQL}`);
+      const [lon, lat] = plan.at(50, 7);
+      const { rows } = await trx.raw(`EXPLAIN EXECUTE points_plan_test(${lon}, ${lat}, '{${plan.project.id}}', 0.001, 50)`);
+      await trx.raw('DEALLOCATE points_plan_test');
+      const text = rows.map((r: Record<string, string>) => r['QUERY PLAN']).join('\n');
+      for (const index of ['utility_crossings_geom_gist', 'test_pits_geom_gist', 'planned_routes_geom_gist']) expect(text).toContain(index);
     });
     // and the lookup through it answers as before, again and again on the pool's connections (cached plans)
     for (let i = 0; i < 12; i++) expect((await lookupNearby(db, plan.maintenance, q(50, 7))).stretches[0].ducts[0].ducts.map((d) => d.colour)).toEqual(['blue', 'orange']);
