@@ -97,7 +97,7 @@ export async function lookupNearby(db: Db, me: Principal, q: z.infer<typeof near
   const byId = new Map(projects.map((p) => [p.id, p]));
   const spot: LonLat = [q.lon, q.lat];
   const radiusM = q.radius ?? env().LOOKUP_RADIUS_M;
-  // the stretches with all they need in one statement; the points, crossings and the picked address beside it
+  // the stretches with all they need (db/lookup.ts: two statements), the points and crossings, and the picked address, side by side
   const [sections, { points: nearby, crossings: crossingRows }, address] = await Promise.all([
     lookupStretches(db, ids, spot, radiusM),
     nearbyPointsAndCrossings(db, ids, spot, radiusM),
@@ -134,7 +134,7 @@ export async function lookupNearby(db: Db, me: Principal, q: z.infer<typeof near
 }
 
 const round = (x: number, d: number) => Math.round(x * 10 ** d) / 10 ** d;
-/** Classes in the catalogue's order (the best surveyed first), whatever order the database gave them in. */
+/** Classes in the catalogue's order, whatever order the database gave them in. */
 const CLASS_ORDER = Object.keys(ACCURACY_CLASS_LABELS) as AccuracyClass[];
 const sortClasses = (cs: AccuracyClass[]) => [...cs].sort((a, b) => CLASS_ORDER.indexOf(a) - CLASS_ORDER.indexOf(b));
 
