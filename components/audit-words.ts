@@ -1,6 +1,6 @@
 // The activity log in sentences a person reads, not the JSON the audit table stores.
 
-import { ACCURACY_CLASS_LABELS } from '@/lib/records/accuracy-classes';
+import { ACCURACY_CLASS_LABELS, type AccuracyClass } from '@/lib/records/accuracy-classes';
 import { plural } from '@/components/ui/upload-words';
 
 export interface AuditLike {
@@ -289,6 +289,11 @@ export function describeAudit(e: AuditLike): string {
       return `Read a refused upload again${isObj(a.settings) && a.settings.crs ? ` in ${say(a.settings.crs)}` : ''}: ${a.status === 'stored' ? 'now stored' : `still refused (${REFUSAL[String(a.error)] ?? say(a.error)})`}.`;
     case 'upload withdraw':
       return `Withdrew an upload from the record. Reason: ${quoted(a.reason)}`;
+    case 'upload accuracy': {
+      const b = isObj(e.before) ? e.before : {};
+      const label = (c: unknown) => ACCURACY_CLASS_LABELS[c as AccuracyClass] ?? say(c);
+      return `Set the upload's accuracy to ${label(a.accuracyClass)} (σ ${say(a.sigmaM)} m); it was ${label(b.accuracyClass)} (σ ${say(b.sigmaM)} m). The project is reconciled again.`;
+    }
     case 'upload exclude_range':
       return `Left ${a.kind === 'time' ? `the time from ${say(a.from)} to ${say(a.to)}` : `${say(a.from)}–${say(a.to)} m`} of an upload out of matching. Reason: ${quoted(a.reason)}`;
     case 'upload include_range':

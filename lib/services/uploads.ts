@@ -220,6 +220,34 @@ export async function withdrawUpload(db: Knex, actor: Principal, project: Projec
   });
 }
 
+export const uploadAccuracySchema = z.object({
+  accuracy: z.enum(ACCURACY_CLASSES, { message: `Pick one of the accuracy classes: ${ACCURACY_CLASSES.join(', ')}.` }),
+}).strict();
+
+/**
+ * Sets an upload's accuracy class afterwards (an RTK survey uploaded under the project's default, say): its σ
+ * follows the class (the project's override, else the default), with an audit entry; the caller then has the
+ * project reconciled again, so that the sections' 95 % radii follow. A withdrawn or superseded upload keeps
+ * what it had.
+ */
+export async function setUploadAccuracy(db: Knex, actor: Principal, project: Project, uploadId: string, input: z.infer<typeof uploadAccuracySchema>): Promise<{ upload: Upload; changed: boolean }> {
+  return db.transaction(async (trx) => {
+    const upload = await getUpload(trx, uploadId);
+    if (!upload || upload.projectId !== project.id) throw new AppError('not_found', 'Upload not found.');
+    if (upload.status === 'withdrawn' || upload.status === 'superseded') {
+      throw new AppError('conflict', `The upload is ${upload.status}: it no longer counts, so its accuracy is kept as it was.`);
+    }
+    const sigmaM = sigmaFor(project, input.accuracy);
+    if (upload.accuracyClass === input.accuracy && upload.sigmaM === sigmaM) return { upload, changed: false };
+    await trx('uploads').where({ id: uploadId }).update({ accuracy_class: input.accuracy, sigma_m: sigmaM, updated_at: trx.fn.now() });
+    await writeAudit(trx, auditActor(actor), {
+      projectId: project.id, objectType: 'upload', objectId: uploadId, action: 'accuracy',
+      before: { accuracyClass: upload.accuracyClass, sigmaM: upload.sigmaM }, after: { accuracyClass: input.accuracy, sigmaM },
+    });
+    return { upload: (await getUpload(trx, uploadId))!, changed: true };
+  });
+}
+
 /** The upload as the API answers it. */
 export function publicUpload(u: Upload) {
   return {

@@ -256,6 +256,15 @@ const MATRIX: Record<string, Row | PublicRow> = {
     allowed: 'owner',
     success: 200,
   },
+  'PATCH /api/projects/[projectId]/uploads/[uploadId]': {
+    // the refused upload, before the retry row stores it: a failed upload changes class without a reconciliation
+    url: (c) => `/api/projects/${c.projectId}/uploads/${c.failedUploadId}`,
+    foreign: (c) => `/api/projects/${c.foreignProjectId}/uploads/${c.foreignUploadId}`,
+    denied: 'owner',
+    allowed: 'surveyor',
+    body: () => ({ accuracy: 'rtk_gnss' }),
+    success: 200,
+  },
   'GET /api/projects/[projectId]/uploads/[uploadId]/original': {
     url: (c) => `/api/projects/${c.projectId}/uploads/${c.uploadId}/original`,
     foreign: (c) => `/api/projects/${c.foreignProjectId}/uploads/${c.foreignUploadId}/original`,

@@ -6,13 +6,14 @@ import { getUpload, listUploadFiles, uploadFeatureCollection } from '@/db/upload
 import { isUuid } from '@/lib/api/with-route';
 import { requireProjectPage } from '@/lib/auth/page-guards';
 import { can } from '@/lib/auth/roles';
-import { ACCURACY_CLASS_LABELS, R95_FACTOR } from '@/lib/records/accuracy-classes';
+import { ACCURACY_CLASS_LABELS, ACCURACY_CLASSES, DEFAULT_SIGMA_M, R95_FACTOR } from '@/lib/records/accuracy-classes';
 import { formatLength } from '@/lib/records/units';
 import { explainRefusal, plural } from '@/components/ui/upload-words';
 import { DataTable } from '@/components/ui/data-table';
 import { Badge, Card, Notice, PageHeader } from '@/components/ui/primitives';
 import { GeoMap, type MapLayer } from '@/components/map/geo-map';
 import { WithdrawUpload } from '@/components/forms/withdraw-upload';
+import { UploadAccuracyForm } from '@/components/forms/upload-accuracy-form';
 import { plannedFeatureCollection } from '@/lib/services/planned';
 import { SupersedeUpload } from '@/components/forms/supersede-upload';
 import { ExcludeRange, RemoveExclusion } from '@/components/forms/exclude-range';
@@ -45,6 +46,8 @@ export default async function UploadPage({ params, searchParams }: { params: Pro
   const tz = project.timeZone;
   const at = (iso: string | number) => formatInZone(typeof iso === 'number' ? iso * 1000 : iso, tz);
   const engineer = upload.status === 'stored' && can(me.role, 'reconcile.run');
+  // the contractor's people set the accuracy afterwards; a withdrawn or superseded upload keeps its own
+  const canSetAccuracy = can(me.role, 'upload.manage') && me.organisationId === project.contractorOrgId && (upload.status === 'stored' || upload.status === 'failed');
   // times along the trace: about six marks a trace, from its first fix to its last
   const marks = [...new Set(fixes.fixes.map((f) => f.trace))].map((k) => {
     const own = fixes.fixes.filter((f) => f.trace === k && f.t !== null);
@@ -93,6 +96,10 @@ export default async function UploadPage({ params, searchParams }: { params: Pro
                 </div>
               ))}
             </dl>
+            {canSetAccuracy && (
+              <UploadAccuracyForm projectId={project.id} uploadId={upload.id} current={upload.accuracyClass}
+                sigmas={Object.fromEntries(ACCURACY_CLASSES.map((c) => [c, project.accuracySigmas[c] ?? DEFAULT_SIGMA_M[c]])) as Record<(typeof ACCURACY_CLASSES)[number], number>} />
+            )}
           </Card>
           <Card title="Original files">
             <ul className="space-y-2 text-sm">

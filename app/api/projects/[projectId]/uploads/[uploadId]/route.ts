@@ -2,7 +2,8 @@ import { z } from 'zod';
 import { withRoute } from '@/lib/api/with-route';
 import { byUploadParam } from '@/lib/api/scopes';
 import { getUpload, listUploadExclusions, listUploadFiles, uploadFeatureCollection } from '@/db/uploads';
-import { publicUpload } from '@/lib/services/uploads';
+import { publicUpload, setUploadAccuracy, uploadAccuracySchema } from '@/lib/services/uploads';
+import { reconcileAfterUpload } from '@/lib/services/reconcile';
 
 export const GET = withRoute(
   { action: 'upload.read', scope: byUploadParam, query: z.object({ geometry: z.enum(['geojson']).optional() }) },
@@ -14,3 +15,10 @@ export const GET = withRoute(
     return body;
   },
 );
+
+// The upload's accuracy class, set afterwards by the contractor's people; the project is reconciled again.
+export const PATCH = withRoute({ action: 'upload.manage', scope: byUploadParam, side: 'contractor', body: uploadAccuracySchema }, async ({ db, principal, project, params, body }) => {
+  const { upload, changed } = await setUploadAccuracy(db, principal, project, params.uploadId, body);
+  if (changed && upload.status === 'stored') await reconcileAfterUpload(db, project.id, principal.id);
+  return { upload: publicUpload(upload), reconciling: changed && upload.status === 'stored' };
+});
